@@ -1,0 +1,119 @@
+/**
+ * Every table of Penumbra's relational store. Plural table names, camelCase keys over snake_case columns.
+ * Migrations are generated from this file by drizzle-kit into drizzle/ (`npm run db:generate`); never edit them by hand.
+ */
+import { sqliteTable, text, integer, blob, index, primaryKey } from 'drizzle-orm/sqlite-core'
+
+export const ROLES = ['owner', 'editor', 'reviewer', 'viewer'] as const
+export type Role = (typeof ROLES)[number]
+
+const createdAt = () => integer('created_at', { mode: 'number' }).notNull()
+
+export const users = sqliteTable('users', {
+  id: text('id').primaryKey(),
+  email: text('email').notNull().unique(),
+  name: text('name').notNull(),
+  passwordHash: text('password_hash').notNull(),
+  createdAt: createdAt(),
+})
+
+export const labs = sqliteTable('labs', {
+  id: text('id').primaryKey(),
+  name: text('name').notNull(),
+  createdBy: text('created_by').notNull().references(() => users.id),
+  createdAt: createdAt(),
+})
+
+export const memberships = sqliteTable(
+  'memberships',
+  {
+    labId: text('lab_id').notNull().references(() => labs.id, { onDelete: 'cascade' }),
+    userId: text('user_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
+    role: text('role', { enum: ROLES }).notNull(),
+    createdAt: createdAt(),
+  },
+  (t) => [primaryKey({ columns: [t.labId, t.userId] }), index('memberships_user_idx').on(t.userId)],
+)
+
+export const invitations = sqliteTable(
+  'invitations',
+  {
+    id: text('id').primaryKey(),
+    labId: text('lab_id').notNull().references(() => labs.id, { onDelete: 'cascade' }),
+    email: text('email').notNull(),
+    role: text('role', { enum: ROLES }).notNull(),
+    /** SHA-256 of the token in the mailed link; the token itself is never stored. */
+    tokenHash: text('token_hash').notNull().unique(),
+    invitedBy: text('invited_by').notNull().references(() => users.id),
+    createdAt: createdAt(),
+    expiresAt: integer('expires_at', { mode: 'number' }).notNull(),
+    acceptedAt: integer('accepted_at', { mode: 'number' }),
+    acceptedBy: text('accepted_by').references(() => users.id),
+  },
+  (t) => [index('invitations_lab_idx').on(t.labId)],
+)
+
+export const passwordResets = sqliteTable('password_resets', {
+  id: text('id').primaryKey(),
+  userId: text('user_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
+  tokenHash: text('token_hash').notNull().unique(),
+  createdAt: createdAt(),
+  expiresAt: integer('expires_at', { mode: 'number' }).notNull(),
+  usedAt: integer('used_at', { mode: 'number' }),
+})
+
+export const sheets = sqliteTable(
+  'sheets',
+  {
+    id: text('id').primaryKey(),
+    labId: text('lab_id').notNull().references(() => labs.id, { onDelete: 'cascade' }),
+    title: text('title').notNull(),
+    createdBy: text('created_by').notNull().references(() => users.id),
+    createdAt: createdAt(),
+    updatedAt: integer('updated_at', { mode: 'number' }).notNull(),
+  },
+  (t) => [index('sheets_lab_idx').on(t.labId)],
+)
+
+/** Outgoing mail, as handed to the SMTP transport (kept for the developer mailbox and for audit). */
+export const mails = sqliteTable('mails', {
+  id: text('id').primaryKey(),
+  to: text('to').notNull(),
+  subject: text('subject').notNull(),
+  text: text('text').notNull(),
+  html: text('html').notNull(),
+  kind: text('kind').notNull(),
+  createdAt: createdAt(),
+  sentAt: integer('sent_at', { mode: 'number' }),
+  error: text('error'),
+})
+
+/**
+ * The live document's update log: every accepted Yjs update is appended here, synchronously, before it is relayed.
+ * `seq` orders updates within a sheet.
+ */
+export const sheetUpdates = sqliteTable(
+  'sheet_updates',
+  {
+    seq: integer('seq').primaryKey({ autoIncrement: true }),
+    sheetId: text('sheet_id').notNull().references(() => sheets.id, { onDelete: 'cascade' }),
+    update: blob('update', { mode: 'buffer' }).notNull(),
+    userId: text('user_id'),
+    createdAt: createdAt(),
+  },
+  (t) => [index('sheet_updates_sheet_idx').on(t.sheetId, t.seq)],
+)
+
+/** The compacted state of a sheet's document: covers every update with seq ≤ `uptoSeq`. */
+export const sheetStates = sqliteTable('sheet_states', {
+  sheetId: text('sheet_id').primaryKey().references(() => sheets.id, { onDelete: 'cascade' }),
+  state: blob('state', { mode: 'buffer' }).notNull(),
+  uptoSeq: integer('upto_seq').notNull(),
+  updatedAt: integer('updated_at', { mode: 'number' }).notNull(),
+})
+
+/** Signed-out sessions: their token id is refused until it would have expired anyway. */
+export const sessionsRevoked = sqliteTable('revoked_sessions', {
+  jti: text('jti').primaryKey(),
+  expiresAt: integer('expires_at', { mode: 'number' }).notNull(),
+})

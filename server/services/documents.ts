@@ -1,0 +1,47 @@
+/**
+ * A sheet's stored document: a compacted state row plus the update rows after it. The collaboration server appends
+ * and compacts; REST export and seeding read and write through here so both see the same document.
+ */
+import { asc, and, eq, gt } from 'drizzle-orm'
+import * as Y from 'yjs'
+import type { Db } from '../db/client'
+import { sheetStates, sheetUpdates } from '../db/schema'
+import { docToSheetFile, sheetFileToUpdate } from '../../shared/doc/sheetDoc'
+import type { SheetFile } from '../../shared/schema/sheet'
+
+/** Writes the initial state of a newly created sheet. */
+export function seedDocument(db: Db, sheetId: string, file: SheetFile): void {
+  const state = Buffer.from(sheetFileToUpdate(file))
+  db.insert(sheetStates)
+    .values({ sheetId, state, uptoSeq: 0, updatedAt: Date.now() })
+    .onConflictDoUpdate({ target: sheetStates.sheetId, set: { state, uptoSeq: 0, updatedAt: Date.now() } })
+    .run()
+}
+
+/** The stored state and the update rows after it, oldest first. */
+export function storedUpdates(db: Db, sheetId: string): { state: Uint8Array | null; uptoSeq: number; updates: { seq: number; update: Uint8Array }[] } {
+  const row = db.select().from(sheetStates).where(eq(sheetStates.sheetId, sheetId)).get()
+  const uptoSeq = row?.uptoSeq ?? 0
+  const updates = db
+    .select({ seq: sheetUpdates.seq, update: sheetUpdates.update })
+    .from(sheetUpdates)
+    .where(and(eq(sheetUpdates.sheetId, sheetId), gt(sheetUpdates.seq, uptoSeq)))
+    .orderBy(asc(sheetUpdates.seq))
+    .all()
+  return { state: row ? new Uint8Array(row.state) : null, uptoSeq, updates: updates.map((u) => ({ seq: u.seq, update: new Uint8Array(u.update) })) }
+}
+
+/** Loads a sheet's document from the database (state, then the remaining updates merged in one pass). */
+export function loadDocument(db: Db, sheetId: string): Y.Doc {
+  const { state, updates } = storedUpdates(db, sheetId)
+  const parts = state ? [state, ...updates.map((u) => u.update)] : updates.map((u) => u.update)
+  const doc = new Y.Doc()
+  if (parts.length > 0) Y.applyUpdate(doc, parts.length === 1 ? parts[0] : Y.mergeUpdates(parts))
+  return doc
+}
+
+/** The sheet file of a stored sheet (for export and snapshots). */
+export function loadSheetFile(db: Db, sheetId: string, title?: string) {
+  const file = docToSheetFile(loadDocument(db, sheetId))
+  return title ? { ...file, title } : file
+}

@@ -1,0 +1,99 @@
+/**
+ * Sessions: a jose-signed (HS256) token in an httpOnly cookie. The same check serves REST requests and the
+ * websocket upgrade, so both see the same person or nobody.
+ */
+import { SignJWT, jwtVerify, errors as joseErrors } from 'jose'
+import { eq } from 'drizzle-orm'
+import { randomUUID } from 'node:crypto'
+import type { Db } from '../db/client'
+import { users, sessionsRevoked } from '../db/schema'
+
+export const SESSION_COOKIE = 'penumbra_session'
+export const SESSION_TTL_SECONDS = 7 * 24 * 3600
+const ISSUER = 'penumbra'
+
+export interface SessionClaims {
+  userId: string
+  jti: string
+  /** Expiry, seconds since the epoch. */
+  exp: number
+}
+
+export type SessionFailure = 'missing' | 'expired' | 'invalid' | 'revoked' | 'unknown-user'
+
+export async function signSession(secret: Uint8Array, userId: string, ttlSeconds = SESSION_TTL_SECONDS) {
+  const jti = randomUUID()
+  const exp = Math.floor(Date.now() / 1000) + ttlSeconds
+  const token = await new SignJWT({})
+    .setProtectedHeader({ alg: 'HS256' })
+    .setSubject(userId)
+    .setJti(jti)
+    .setIssuer(ISSUER)
+    .setIssuedAt()
+    .setExpirationTime(exp)
+    .sign(secret)
+  return { token, jti, exp }
+}
+
+/** Verifies signature, issuer and expiry. Never throws: a bad token is a reason. */
+export async function verifySession(
+  secret: Uint8Array,
+  token: string | undefined,
+): Promise<{ ok: true; claims: SessionClaims } | { ok: false; reason: SessionFailure }> {
+  if (!token) return { ok: false, reason: 'missing' }
+  try {
+    const { payload } = await jwtVerify(token, secret, { issuer: ISSUER, algorithms: ['HS256'] })
+    if (typeof payload.sub !== 'string' || typeof payload.jti !== 'string' || typeof payload.exp !== 'number')
+      return { ok: false, reason: 'invalid' }
+    return { ok: true, claims: { userId: payload.sub, jti: payload.jti, exp: payload.exp } }
+  } catch (err) {
+    return { ok: false, reason: err instanceof joseErrors.JWTExpired ? 'expired' : 'invalid' }
+  }
+}
+
+/** Reads one cookie from a Cookie header (for the websocket upgrade, where cookie-parser does not run). */
+export function readCookie(header: string | undefined, name: string): string | undefined {
+  if (!header) return undefined
+  for (const part of header.split(';')) {
+    const eqAt = part.indexOf('=')
+    if (eqAt < 0) continue
+    if (part.slice(0, eqAt).trim() === name) {
+      const raw = part.slice(eqAt + 1).trim()
+      try {
+        return decodeURIComponent(raw)
+      } catch {
+        return raw
+      }
+    }
+  }
+  return undefined
+}
+
+export interface SessionUser {
+  id: string
+  email: string
+  name: string
+  jti: string
+  exp: number
+}
+
+/** The signed-in user behind a session token: valid signature, not expired, not signed out, user still exists. */
+export async function userForToken(
+  db: Db,
+  secret: Uint8Array,
+  token: string | undefined,
+): Promise<{ ok: true; user: SessionUser } | { ok: false; reason: SessionFailure }> {
+  const verified = await verifySession(secret, token)
+  if (!verified.ok) return verified
+  const { claims } = verified
+  const revoked = db.select().from(sessionsRevoked).where(eq(sessionsRevoked.jti, claims.jti)).get()
+  if (revoked) return { ok: false, reason: 'revoked' }
+  const user = db.select().from(users).where(eq(users.id, claims.userId)).get()
+  if (!user) return { ok: false, reason: 'unknown-user' }
+  return { ok: true, user: { id: user.id, email: user.email, name: user.name, jti: claims.jti, exp: claims.exp } }
+}
+
+/** Signs a session out for good: its jti is refused until the token would have expired anyway. */
+export function revokeSession(db: Db, jti: string, exp: number): void {
+  db.insert(sessionsRevoked).values({ jti, expiresAt: exp }).onConflictDoNothing().run()
+}

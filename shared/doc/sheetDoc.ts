@@ -1,0 +1,93 @@
+/**
+ * The live sheet document: one Yjs document per sheet.
+ *   doc.getArray('cells')  — a Y.Array of Y.Map, one per cell (id, kind, name, unit and the kind's own fields);
+ *                            formula sources (`source`) and note texts (`text`) are Y.Text so people can type at once.
+ *   doc.getMap('meta')     — `title`.
+ * These pure functions turn a sheet file into a document and back, so import, export, seeding and evaluation share
+ * one path.
+ */
+import * as Y from 'yjs'
+import { SHEET_FORMAT, SHEET_VERSION, type Cell, type SheetCell, type SheetFile } from '../schema/sheet'
+
+/** Fields held as Y.Text for concurrent typing. */
+export const TEXT_FIELDS = ['source', 'text'] as const
+
+export type CellMap = Y.Map<unknown>
+
+export function cellsOf(doc: Y.Doc): Y.Array<CellMap> {
+  return doc.getArray<CellMap>('cells')
+}
+
+export function metaOf(doc: Y.Doc): Y.Map<unknown> {
+  return doc.getMap('meta')
+}
+
+/** A random cell id: short, URL-safe, collision-free in practice within one sheet. */
+export function newCellId(): string {
+  const bytes = new Uint8Array(9)
+  globalThis.crypto.getRandomValues(bytes)
+  let out = 'c'
+  for (const b of bytes) out += (b % 36).toString(36)
+  return out
+}
+
+/** Builds the Y.Map for one cell (not yet attached to a document). */
+export function cellToMap(cell: Cell, id: string = cell.id ?? newCellId()): CellMap {
+  const map = new Y.Map<unknown>()
+  map.set('id', id)
+  for (const [key, value] of Object.entries(cell)) {
+    if (key === 'id' || value === undefined) continue
+    if ((TEXT_FIELDS as readonly string[]).includes(key) && typeof value === 'string') map.set(key, new Y.Text(value))
+    else map.set(key, structuredCloneJson(value))
+  }
+  return map
+}
+
+/** Reads one cell map back as a plain cell object. */
+export function mapToCell(map: CellMap): SheetCell {
+  const out: Record<string, unknown> = {}
+  for (const [key, value] of map.entries()) {
+    out[key] = value instanceof Y.Text ? value.toString() : value instanceof Y.AbstractType ? value.toJSON() : value
+  }
+  return out as SheetCell
+}
+
+/** Fills an empty document from a sheet file (cells without ids get new ones). Returns the document. */
+export function sheetFileToDoc(file: SheetFile, doc: Y.Doc = new Y.Doc()): Y.Doc {
+  doc.transact(() => {
+    metaOf(doc).set('title', file.title)
+    const cells = cellsOf(doc)
+    if (cells.length > 0) cells.delete(0, cells.length)
+    cells.push(file.cells.map((c) => cellToMap(c)))
+  })
+  return doc
+}
+
+/** The sheet file a document holds (every cell with its id). */
+export function docToSheetFile(doc: Y.Doc): SheetFile & { cells: SheetCell[] } {
+  const title = metaOf(doc).get('title')
+  return {
+    format: SHEET_FORMAT,
+    version: SHEET_VERSION,
+    title: typeof title === 'string' && title.length > 0 ? title : 'Untitled sheet',
+    cells: cellsOf(doc).toArray().map(mapToCell),
+  }
+}
+
+/** The encoded Yjs state of a sheet file: what a newly created sheet is seeded with. */
+export function sheetFileToUpdate(file: SheetFile): Uint8Array {
+  return Y.encodeStateAsUpdate(sheetFileToDoc(file))
+}
+
+/** Decodes a stored state (and optional later updates) into a fresh document. */
+export function docFromUpdates(updates: Iterable<Uint8Array>): Y.Doc {
+  const doc = new Y.Doc()
+  doc.transact(() => {
+    for (const u of updates) Y.applyUpdate(doc, u)
+  })
+  return doc
+}
+
+function structuredCloneJson<T>(value: T): T {
+  return value === null || typeof value !== 'object' ? value : (JSON.parse(JSON.stringify(value)) as T)
+}

@@ -1,0 +1,284 @@
+/**
+ * The sheet file (`*.penumbra.json`, media type `application/vnd.penumbra.sheet+json`): the exchange format read by
+ * import, export, the evaluate API and the command-line evaluator. One zod schema, used on every side.
+ */
+import { z } from 'zod'
+
+export const SHEET_MEDIA_TYPE = 'application/vnd.penumbra.sheet+json'
+export const SHEET_FORMAT = 'penumbra.sheet'
+export const SHEET_VERSION = 1
+
+/** Cell names: a letter first, then letters, digits or `_`. */
+export const IDENTIFIER = /^[A-Za-z][A-Za-z0-9_]*$/
+const name = z.string().regex(IDENTIFIER, 'must start with a letter and use only letters, digits and _').max(64)
+const id = z.string().min(1).max(64)
+const unit = z.string().max(64)
+const finite = z.number().finite()
+const description = z.string().max(2000)
+
+export const parameterCell = z.object({
+  id: id.optional(),
+  kind: z.literal('parameter'),
+  name,
+  value: finite,
+  unit: unit.optional(),
+  min: finite.optional(),
+  max: finite.optional(),
+  step: finite.positive().optional(),
+  description: description.optional(),
+})
+
+export const formulaCell = z.object({
+  id: id.optional(),
+  kind: z.literal('formula'),
+  name,
+  source: z.string().max(20000),
+  unit: unit.optional(),
+  description: description.optional(),
+})
+
+export const datasetColumn = z.object({
+  unit: unit,
+  values: z.array(z.number().nullable()).max(1_000_000),
+  /** What the column measures, when known: wavelength, energy, T (transmittance), R, A10 (absorbance), alpha … */
+  quantity: z.string().max(64).optional(),
+})
+
+export const spectrumCell = z.object({
+  id: id.optional(),
+  kind: z.literal('spectrum'),
+  name,
+  columns: z.record(z.string().regex(IDENTIFIER, 'column names must be identifiers'), datasetColumn),
+  /** The stored dataset this cell shows, when the app keeps it in the database; export inlines `columns`. */
+  datasetId: z.string().max(64).optional(),
+  source: z.string().max(500).optional(),
+  description: description.optional(),
+})
+
+const cellRef = z.string().regex(IDENTIFIER, 'must name a cell').max(64)
+
+export const fitParameter = z.object({
+  name: cellRef,
+  start: finite.optional(),
+  min: finite.optional(),
+  max: finite.optional(),
+})
+
+export const fitCell = z.object({
+  id: id.optional(),
+  kind: z.literal('fit'),
+  name,
+  method: z.enum(['tauc', 'urbach', 'model']),
+  x: cellRef,
+  y: cellRef,
+  /** Tauc exponent: 1/2 direct allowed, 2 indirect allowed, 3/2 direct forbidden, 3 indirect forbidden. */
+  r: finite.positive().optional(),
+  /** Fit window, in the display unit of the `x` cell. */
+  from: finite.optional(),
+  to: finite.optional(),
+  /** Unit of the fitted energies (Eg, Eu and their errors). */
+  unit: unit.optional(),
+  /** method `model`: the formula cell evaluated as the model, and its free parameter cells. */
+  model: cellRef.optional(),
+  parameters: z.array(fitParameter).max(20).optional(),
+  description: description.optional(),
+})
+
+export const sweepCell = z.object({
+  id: id.optional(),
+  kind: z.literal('sweep'),
+  name,
+  parameter: cellRef,
+  from: finite,
+  to: finite,
+  steps: z.number().int().min(2).max(10000),
+  scale: z.enum(['linear', 'log']).optional(),
+  unit: unit.optional(),
+  outputs: z.array(cellRef).min(1).max(20),
+  description: description.optional(),
+})
+
+export const figureTrace = z.object({
+  x: cellRef.or(z.string().max(200)),
+  y: cellRef.or(z.string().max(200)),
+  label: z.string().max(200).optional(),
+  style: z.enum(['line', 'points', 'line+points']).optional(),
+})
+
+export const figureAxis = z.object({
+  scale: z.enum(['linear', 'log']).optional(),
+  unit: unit.optional(),
+  label: z.string().max(200).optional(),
+  min: finite.optional(),
+  max: finite.optional(),
+})
+
+export const figureCell = z.object({
+  id: id.optional(),
+  kind: z.literal('figure'),
+  name: name.optional(),
+  title: z.string().max(200).optional(),
+  traces: z.array(figureTrace).max(50),
+  x: figureAxis.extend({ visibleBand: z.boolean().optional() }).optional(),
+  y: figureAxis.optional(),
+  /** References to band-gap energies to mark on the axis, e.g. "Eg" or "edge.Eg". */
+  marks: z.array(z.string().max(200)).max(20).optional(),
+  /** A sweep cell drawn as a family of curves (against the x trace's cell) or as a map. */
+  sweep: cellRef.optional(),
+  sweepView: z.enum(['curves', 'map']).optional(),
+  description: description.optional(),
+})
+
+export const noteCell = z.object({
+  id: id.optional(),
+  kind: z.literal('note'),
+  name: name.optional(),
+  text: z.string().max(100000),
+})
+
+export const stackLayer = z.object({
+  name: z.string().max(64).optional(),
+  d: z.union([finite, z.string().max(2000)]),
+  n: z.union([finite, z.string().max(2000)]),
+  k: z.union([finite, z.string().max(2000)]).optional(),
+})
+
+/** Accepted now so files written by later versions import; evaluated once the stack cell lands. */
+export const stackCell = z
+  .object({
+    id: id.optional(),
+    kind: z.literal('stack'),
+    name,
+    layers: z.array(stackLayer).max(100).optional(),
+    description: description.optional(),
+  })
+  .passthrough()
+
+export const cell = z.discriminatedUnion('kind', [
+  parameterCell,
+  formulaCell,
+  spectrumCell,
+  fitCell,
+  sweepCell,
+  figureCell,
+  noteCell,
+  stackCell,
+])
+
+export const sheetFile = z
+  .object({
+    format: z.literal(SHEET_FORMAT),
+    version: z.literal(SHEET_VERSION),
+    title: z.string().min(1).max(200),
+    cells: z.array(cell).max(2000),
+  })
+  .superRefine((sheet, ctx) => {
+    const seenNames = new Map<string, number>()
+    const seenIds = new Map<string, number>()
+    sheet.cells.forEach((c, i) => {
+      if (c.name !== undefined) {
+        const before = seenNames.get(c.name)
+        if (before !== undefined)
+          ctx.addIssue({ code: 'custom', path: ['cells', i, 'name'], message: `duplicate name "${c.name}" (also cells[${before}])` })
+        else seenNames.set(c.name, i)
+      }
+      if (c.id !== undefined) {
+        const before = seenIds.get(c.id)
+        if (before !== undefined)
+          ctx.addIssue({ code: 'custom', path: ['cells', i, 'id'], message: `duplicate id "${c.id}" (also cells[${before}])` })
+        else seenIds.set(c.id, i)
+      }
+    })
+  })
+
+export type ParameterCell = z.infer<typeof parameterCell>
+export type FormulaCell = z.infer<typeof formulaCell>
+export type SpectrumCell = z.infer<typeof spectrumCell>
+export type DatasetColumn = z.infer<typeof datasetColumn>
+export type FitCell = z.infer<typeof fitCell>
+export type FitParameter = z.infer<typeof fitParameter>
+export type SweepCell = z.infer<typeof sweepCell>
+export type FigureCell = z.infer<typeof figureCell>
+export type FigureTrace = z.infer<typeof figureTrace>
+export type NoteCell = z.infer<typeof noteCell>
+export type StackCell = z.infer<typeof stackCell>
+export type Cell = z.infer<typeof cell>
+export type CellKind = Cell['kind']
+export type SheetFile = z.infer<typeof sheetFile>
+/** A cell as the app holds it: always with an id. */
+export type SheetCell = Cell & { id: string }
+
+export const CELL_KINDS: readonly CellKind[] = ['parameter', 'formula', 'spectrum', 'fit', 'sweep', 'figure', 'note', 'stack']
+
+export interface SchemaIssue {
+  /** JSON path in dotted/bracket form: `cells[3].source` (empty for the root). */
+  path: string
+  message: string
+}
+
+/** `["cells", 3, "source"]` → `cells[3].source`. */
+export function formatPath(path: readonly PropertyKey[]): string {
+  let out = ''
+  for (const part of path) {
+    if (typeof part === 'number') out += `[${part}]`
+    else out += out === '' ? String(part) : `.${String(part)}`
+  }
+  return out
+}
+
+/** Turns zod issues into plain `{ path, message }` pairs; a missing field reads "required". */
+export function toSchemaIssues(error: z.ZodError): SchemaIssue[] {
+  const issues: SchemaIssue[] = []
+  for (const issue of error.issues) {
+    if (issue.code === 'invalid_union' && 'errors' in issue && Array.isArray(issue.errors) && issue.errors.length > 0) {
+      // discriminated union with a known kind: report the branch's own problems
+      const branch = issue.errors[0] as z.core.$ZodIssue[]
+      for (const sub of branch) issues.push(describe(sub, [...issue.path, ...sub.path]))
+      continue
+    }
+    issues.push(describe(issue, issue.path))
+  }
+  return issues
+}
+
+function describe(issue: z.core.$ZodIssue, path: readonly PropertyKey[]): SchemaIssue {
+  let message = issue.message
+  if (issue.code === 'invalid_type' && /received undefined/.test(issue.message)) message = 'required'
+  else if (issue.code === 'invalid_union' && 'note' in issue && issue.note === 'No matching discriminator')
+    message = `unknown cell kind; expected one of ${CELL_KINDS.join(', ')}`
+  else if (issue.code === 'unrecognized_keys') message = `unknown field(s): ${issue.keys.join(', ')}`
+  return { path: formatPath(path), message }
+}
+
+export type ParseResult<T> = { ok: true; value: T } | { ok: false; issues: SchemaIssue[] }
+
+/** Validates an already-parsed JSON value as a sheet file, listing every problem by its JSON path. */
+export function parseSheetFile(input: unknown): ParseResult<SheetFile> {
+  const parsed = sheetFile.safeParse(input)
+  if (parsed.success) return { ok: true, value: parsed.data }
+  return { ok: false, issues: toSchemaIssues(parsed.error) }
+}
+
+/** Parses sheet-file text: a JSON syntax error is one issue at the root. */
+export function parseSheetFileText(text: string): ParseResult<SheetFile> {
+  let json: unknown
+  try {
+    json = JSON.parse(text)
+  } catch (err) {
+    return { ok: false, issues: [{ path: '', message: `not valid JSON: ${(err as Error).message}` }] }
+  }
+  return parseSheetFile(json)
+}
+
+/** Gives every cell an id (keeping the ones it has), so the app and the engine can address cells stably. */
+export function withCellIds(sheet: SheetFile, makeId: () => string): SheetFile & { cells: SheetCell[] } {
+  const used = new Set(sheet.cells.map((c) => c.id).filter((x): x is string => !!x))
+  const cells = sheet.cells.map((c) => {
+    if (c.id) return c as SheetCell
+    let next = makeId()
+    while (used.has(next)) next = makeId()
+    used.add(next)
+    return { ...c, id: next } as SheetCell
+  })
+  return { ...sheet, cells }
+}
