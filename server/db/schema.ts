@@ -15,6 +15,8 @@ export const users = sqliteTable('users', {
   name: text('name').notNull(),
   passwordHash: text('password_hash').notNull(),
   createdAt: createdAt(),
+  /** Seconds since the epoch: session tokens issued before this (a password reset or change) are refused. */
+  sessionsValidFrom: integer('sessions_valid_from', { mode: 'number' }),
 })
 
 export const labs = sqliteTable('labs', {
@@ -116,4 +118,20 @@ export const sheetStates = sqliteTable('sheet_states', {
 export const sessionsRevoked = sqliteTable('revoked_sessions', {
   jti: text('jti').primaryKey(),
   expiresAt: integer('expires_at', { mode: 'number' }).notNull(),
+})
+
+/**
+ * Sign-ups waiting for their mailed confirmation link: the account is created only when the link is opened, so the
+ * sign-up answer never tells whether an address already has an account.
+ */
+export const pendingSignups = sqliteTable('pending_signups', {
+  id: text('id').primaryKey(),
+  email: text('email').notNull(),
+  name: text('name').notNull(),
+  passwordHash: text('password_hash').notNull(),
+  /** SHA-256 of the token in the mailed link. */
+  tokenHash: text('token_hash').notNull().unique(),
+  createdAt: createdAt(),
+  expiresAt: integer('expires_at', { mode: 'number' }).notNull(),
+  usedAt: integer('used_at', { mode: 'number' }),
 })

@@ -17,6 +17,8 @@ export interface SessionClaims {
   jti: string
   /** Expiry, seconds since the epoch. */
   exp: number
+  /** Issue time, seconds since the epoch (0 when the token has none). */
+  iat: number
 }
 
 export type SessionFailure = 'missing' | 'expired' | 'invalid' | 'revoked' | 'unknown-user'
@@ -45,7 +47,7 @@ export async function verifySession(
     const { payload } = await jwtVerify(token, secret, { issuer: ISSUER, algorithms: ['HS256'] })
     if (typeof payload.sub !== 'string' || typeof payload.jti !== 'string' || typeof payload.exp !== 'number')
       return { ok: false, reason: 'invalid' }
-    return { ok: true, claims: { userId: payload.sub, jti: payload.jti, exp: payload.exp } }
+    return { ok: true, claims: { userId: payload.sub, jti: payload.jti, exp: payload.exp, iat: typeof payload.iat === 'number' ? payload.iat : 0 } }
   } catch (err) {
     return { ok: false, reason: err instanceof joseErrors.JWTExpired ? 'expired' : 'invalid' }
   }
@@ -90,6 +92,8 @@ export async function userForToken(
   if (revoked) return { ok: false, reason: 'revoked' }
   const user = db.select().from(users).where(eq(users.id, claims.userId)).get()
   if (!user) return { ok: false, reason: 'unknown-user' }
+  // a password reset or change ends every session issued before it
+  if (user.sessionsValidFrom != null && claims.iat < user.sessionsValidFrom) return { ok: false, reason: 'revoked' }
   return { ok: true, user: { id: user.id, email: user.email, name: user.name, jti: claims.jti, exp: claims.exp } }
 }
 
