@@ -25,6 +25,9 @@ export const PASSWORD_MIN_LENGTH = 10
 export const PASSWORD_MAX_LENGTH = 256
 /** Client routes that mailed links open (the SPA serves them; the page then calls the API with the token). */
 export const MAIL_LINK_ROUTES = {
+  signIn: '/sign-in',
+  /** The page that asks for a reset link (no token). */
+  requestReset: '/reset',
   confirmSignUp: '/confirm/:token',
   resetPassword: '/reset/:token',
   acceptInvitation: '/invitations/:token',
