@@ -1,0 +1,16 @@
+/**
+ * The physics library of DESIGN §6 (all groups but "grids and arrays", which the engine owns), in camelCase with the
+ * same argument order as the sheet names: photon_energy → photonEnergy, alpha_edge → alphaEdge, … SI in and out;
+ * arguments Num (number | Float64Array), results Num (scalars in → number, any array in → Float64Array).
+ */
+export type { Num } from './num'
+export { isArray, broadcastLength, map1, map2, mapN, at, toArray } from './num'
+export * as constants from './constants'
+export { photonEnergy, photonWavelength, wavenumber, photonFrequency, kT } from './photons'
+export {
+  alphaTauc, alphaDirect, alphaIndirect, alphaIndirectPhonon, alphaUrbach, alphaEdge, edgeJunctionOffset,
+} from './absorption'
+export {
+  reflectance, absorbedFraction, absorptionDepth, thicknessFor, transmittanceSlab, reflectanceSlab, absorptanceSlab,
+  alphaFromTransmittance, alphaFromAbsorbance, absorptanceLambertian,
+} from './slabs'
