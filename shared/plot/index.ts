@@ -1,0 +1,11 @@
+/** Pure helpers for drawing figures: references, units, visible band, marks, sweeps, fits, thinning, colours. */
+export * from './units'
+export * from './resolve'
+export * from './format'
+export * from './visible'
+export * from './marks'
+export * from './palette'
+export * from './downsample'
+export * from './sweep'
+export * from './fitplot'
+export * from './figure'
