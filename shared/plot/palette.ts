@@ -6,9 +6,9 @@
 /** Trace colours in the order traces take them. */
 export const TRACE_COLORS: readonly string[] = [
   '#23406e', // night blue
-  '#c2622d', // copper
   '#2b8a84', // teal
   '#8c4a86', // plum
+  '#c2622d', // copper (kept off second place: the warm accent marks band gaps)
   '#6f8a2a', // moss
   '#b8455a', // brick rose
   '#5b7a9c', // slate
