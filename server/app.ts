@@ -1,0 +1,82 @@
+/**
+ * createApp(deps): the Express app — middleware, the API routes, the developer mailbox, the built client and the
+ * one error path. It never listens; server/index.ts does, and tests call it directly with an in-memory database.
+ */
+import express, { type Express } from 'express'
+import helmet from 'helmet'
+import cookieParser from 'cookie-parser'
+import { readFileSync } from 'node:fs'
+import type { AppDeps } from './deps'
+import { sessionLoader } from './middleware/auth'
+import { csrfGuard } from './middleware/csrf'
+import { errorHandler, notFoundHandler } from './middleware/errorHandler'
+import { authRoutes } from './routes/auth'
+import { labRoutes } from './routes/labs'
+import { invitationRoutes } from './routes/invitations'
+import { sheetRoutes } from './routes/sheets'
+import { evaluateRoutes } from './routes/evaluate'
+import { devMailRoutes } from './routes/devMail'
+import { clientRoutes } from './static'
+import { SHEET_MEDIA_TYPE } from '../shared/schema/sheet'
+import './types'
+
+export type { AppDeps, AppHooks } from './deps'
+
+const VERSION: string = (() => {
+  try {
+    return (JSON.parse(readFileSync(new URL('../package.json', import.meta.url), 'utf8')) as { version: string }).version
+  } catch {
+    return '0.0.0'
+  }
+})()
+
+export function createApp(deps: AppDeps): Express {
+  const { config } = deps
+  const app = express()
+  app.disable('x-powered-by')
+  app.set('trust proxy', config.trustProxy)
+
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        useDefaults: true,
+        directives: {
+          'img-src': ["'self'", 'data:', 'blob:'],
+          'worker-src': ["'self'", 'blob:'],
+          'connect-src': ["'self'"],
+          'upgrade-insecure-requests': config.cookieSecure ? [] : null,
+        },
+      },
+      strictTransportSecurity: config.cookieSecure,
+    }),
+  )
+  app.use(cookieParser())
+  app.use(express.json({ limit: config.maxBodyBytes, type: ['application/json', 'application/*+json', SHEET_MEDIA_TYPE] }))
+  app.use(sessionLoader(deps))
+  app.use(csrfGuard)
+
+  const api = express.Router()
+  api.use((_req, res, next) => {
+    res.set('Cache-Control', 'no-store')
+    next()
+  })
+  api.get('/health', (_req, res) => {
+    res.json({ ok: true, version: VERSION })
+  })
+  api.use('/auth', authRoutes(deps))
+  const { labSheets, sheets } = sheetRoutes(deps)
+  api.use('/labs/:labId/sheets', labSheets)
+  api.use('/labs', labRoutes(deps))
+  api.use('/invitations', invitationRoutes(deps))
+  api.use('/sheets', sheets)
+  api.use('/evaluate', evaluateRoutes(deps))
+  api.use(notFoundHandler)
+  app.use('/api', api)
+
+  if (!config.production) app.use('/dev', devMailRoutes(deps))
+  if (config.clientDir) app.use(clientRoutes(config.clientDir))
+
+  app.use(notFoundHandler)
+  app.use(errorHandler(config.maxBodyBytes))
+  return app
+}

@@ -1,0 +1,191 @@
+/**
+ * Starts Penumbra: opens the SQLite database in DATA_DIR (running migrations), seeds the demo lab into an empty
+ * database, serves the built client and the API on one port, routes websocket upgrades under /collab/ to the
+ * collaboration server, and closes everything cleanly on SIGTERM or SIGINT.
+ *
+ *   node --import tsx server/index.ts        (npm run serve; npm start builds the client first)
+ */
+import http from 'node:http'
+import path from 'node:path'
+import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs'
+import { randomBytes } from 'node:crypto'
+import { fileURLToPath, pathToFileURL } from 'node:url'
+import type { AddressInfo } from 'node:net'
+import type { Duplex } from 'node:stream'
+import { createApp } from './app'
+import { defaultConfig, type AppConfig } from './config'
+import { openDb, type DbHandle } from './db/client'
+import { demoAccountsPresent, formatDemoTable, isEmpty, seedDemo } from './db/seed'
+import { createDevMailer, smtpMailer, type Mailer } from './mail/mailer'
+import { createCollab, type Collab } from './collab/index'
+import type { AppHooks } from './deps'
+
+const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..')
+
+export interface ServerEnv {
+  PORT?: string
+  HOST?: string
+  DATA_DIR?: string
+  PENUMBRA_SECRET?: string
+  SMTP_URL?: string
+  NODE_ENV?: string
+  /** Base URL for mailed links when the app is reached through another address (a reverse proxy). */
+  PUBLIC_URL?: string
+  /** Express 'trust proxy' (e.g. 1 behind one reverse proxy). */
+  TRUST_PROXY?: string
+  /** Port of the local fake SMTP server (default: any free port). */
+  DEV_SMTP_PORT?: string
+}
+
+export interface RunningServer {
+  url: string
+  port: number
+  dataDir: string
+  handle: DbHandle
+  mailer: Mailer
+  config: AppConfig
+  collab: Collab | null
+  close(): Promise<void>
+}
+
+/** PENUMBRA_SECRET, or a random secret generated once and kept in DATA_DIR/session-secret. */
+export function loadSecret(dataDir: string, fromEnv: string | undefined, warn: (m: string) => void): Uint8Array {
+  if (fromEnv) {
+    if (fromEnv.length < 32) warn('PENUMBRA_SECRET is shorter than 32 characters; use a long random value.')
+    return new TextEncoder().encode(fromEnv)
+  }
+  const file = path.join(dataDir, 'session-secret')
+  if (!existsSync(file)) writeFileSync(file, randomBytes(32).toString('base64url') + '\n', { mode: 0o600, flag: 'wx' })
+  const text = readFileSync(file, 'utf8').trim()
+  if (text.length < 32) throw new Error(`${file} holds a secret that is too short; delete it to generate a new one.`)
+  return new TextEncoder().encode(text)
+}
+
+function parseTrustProxy(value: string | undefined): AppConfig['trustProxy'] {
+  if (!value) return false
+  if (value === 'true') return true
+  if (value === 'false') return false
+  return /^\d+$/.test(value) ? Number(value) : value
+}
+
+export async function startServer(env: ServerEnv = process.env, log: (m: string) => void = console.log): Promise<RunningServer> {
+  const warn = (m: string) => console.warn(m)
+  const production = env.NODE_ENV === 'production'
+  const port = env.PORT ? Number(env.PORT) : 3000
+  if (!Number.isInteger(port) || port < 0 || port > 65535) throw new Error(`PORT must be a port number, not "${env.PORT}".`)
+  const dataDir = path.resolve(env.DATA_DIR ?? 'data')
+  mkdirSync(dataDir, { recursive: true })
+
+  const handle = openDb(path.join(dataDir, 'penumbra.sqlite'))
+  const secret = loadSecret(dataDir, env.PENUMBRA_SECRET, warn)
+
+  let mailer: Mailer
+  if (env.SMTP_URL) mailer = smtpMailer(env.SMTP_URL, defaultConfig().mailFrom)
+  else {
+    if (production) warn('SMTP_URL is not set: mail goes to a local catcher and reaches nobody. Set SMTP_URL in production.')
+    mailer = await createDevMailer(defaultConfig().mailFrom, { port: env.DEV_SMTP_PORT ? Number(env.DEV_SMTP_PORT) : 0 })
+  }
+
+  const clientDir = path.join(ROOT, 'dist')
+  const hasClient = existsSync(path.join(clientDir, 'index.html'))
+  if (!hasClient) warn('The client is not built (no dist/index.html): serving the API only. `npm start` builds it; `npm run dev` serves it with hot reload.')
+  const config = defaultConfig({
+    publicUrl: env.PUBLIC_URL?.replace(/\/+$/, '') ?? `http://localhost:${port}`,
+    production,
+    clientDir: hasClient ? clientDir : null,
+    cookieSecure: !!env.PUBLIC_URL?.startsWith('https:'),
+    trustProxy: parseTrustProxy(env.TRUST_PROXY),
+  })
+
+  if (isEmpty(handle.db)) {
+    const seeded = await seedDemo({ db: handle.db, config }, { warn })
+    log(`Seeded the demo lab with ${seeded.sheets.length} sheet(s).`)
+  }
+
+  const collab = createCollab({ db: handle.db, secret, log: (m) => log(`collab: ${m}`) })
+  const hooks: AppHooks = {
+    membershipChanged: (labId, userId) => collab.membershipChanged(labId, userId),
+    sheetDeleted: (sheetId) => collab.sheetDeleted(sheetId),
+  }
+  const app = createApp({ db: handle.db, secret, mailer, config, hooks })
+  const server = http.createServer(app)
+  server.on('upgrade', (req, socket: Duplex, head: Buffer) => {
+    if (req.url?.startsWith('/collab/')) {
+      collab.handleUpgrade(req, socket, head).catch((err: unknown) => {
+        warn(`collab upgrade failed: ${err instanceof Error ? err.message : String(err)}`)
+        socket.destroy()
+      })
+    } else {
+      socket.end('HTTP/1.1 404 Not Found\r\nConnection: close\r\nContent-Length: 0\r\n\r\n')
+      socket.destroy()
+    }
+  })
+
+  await new Promise<void>((resolve, reject) => {
+    server.once('error', reject)
+    server.listen(port, env.HOST, () => {
+      server.off('error', reject)
+      resolve()
+    })
+  })
+  const actualPort = (server.address() as AddressInfo).port
+  if (!env.PUBLIC_URL) config.publicUrl = `http://localhost:${actualPort}`
+  const url = `http://localhost:${actualPort}`
+
+  let closing: Promise<void> | null = null
+  const close = () =>
+    (closing ??= (async () => {
+      await collab.close().catch((err: unknown) => warn(`closing collab: ${String(err)}`))
+      await new Promise<void>((resolve) => {
+        server.close(() => resolve())
+        server.closeAllConnections()
+      })
+      await mailer.close().catch((err: unknown) => warn(`closing mail: ${String(err)}`))
+      try {
+        handle.sqlite.pragma('wal_checkpoint(TRUNCATE)')
+      } catch {
+        // an in-memory or already-closed database has nothing to checkpoint
+      }
+      handle.close()
+    })())
+
+  return { url, port: actualPort, dataDir, handle, mailer, config, collab, close }
+}
+
+async function main(): Promise<void> {
+  let running: RunningServer
+  try {
+    running = await startServer()
+  } catch (err) {
+    console.error(`Penumbra could not start: ${err instanceof Error ? err.message : String(err)}`)
+    process.exit(1)
+  }
+  console.log(`Penumbra is running at ${running.url}`)
+  const demo = demoAccountsPresent(running.handle.db)
+  if (demo.length > 0) console.log(`\nDemo sign-ins (fictional lab "Halvorsen Thin-Film Lab"):\n${formatDemoTable(demo)}\n`)
+  if (!running.config.production) console.log(`Mail sent while developing: ${running.url}/dev/mail`)
+
+  let stopping = false
+  const stop = (signal: string) => {
+    if (stopping) {
+      console.log(`${signal} again: exiting now.`)
+      process.exit(1)
+    }
+    stopping = true
+    console.log(`${signal}: closing…`)
+    running.close().then(
+      () => {
+        console.log('Penumbra stopped.')
+        process.exit(0)
+      },
+      (err: unknown) => {
+        console.error(`error while closing: ${String(err)}`)
+        process.exit(1)
+      },
+    )
+  }
+  process.on('SIGTERM', () => stop('SIGTERM'))
+  process.on('SIGINT', () => stop('SIGINT'))
+}
+
+if (process.argv[1] && import.meta.url === pathToFileURL(path.resolve(process.argv[1])).href) void main()

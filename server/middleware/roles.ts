@@ -1,0 +1,47 @@
+/**
+ * Loaders for a route's lab or sheet. A lab or sheet that does not exist, or whose lab the caller is not a member
+ * of, answers 404 (its existence is not theirs to know); a member whose role may not answers 403.
+ */
+import type { RequestHandler } from 'express'
+import type { AppDeps } from '../deps'
+import type { Role } from '../db/schema'
+import { roleInLab, sheetAccess } from '../services/access'
+import { labById } from '../services/labs'
+import { forbidden, notFound, unauthorized } from '../errors'
+
+const NO_LAB = 'No such lab, or you are not a member of it.'
+const NO_SHEET = 'No such sheet, or you are not a member of its lab.'
+
+export function loadLab(deps: AppDeps, param = 'labId'): RequestHandler {
+  return (req, _res, next) => {
+    if (!req.user) throw unauthorized()
+    const lab = labById(deps, String(req.params[param]))
+    const role = lab ? roleInLab(deps.db, lab.id, req.user.id) : null
+    if (!lab || !role) throw notFound(NO_LAB)
+    req.lab = lab
+    req.role = role
+    next()
+  }
+}
+
+export function loadSheet(deps: AppDeps, param = 'sheetId'): RequestHandler {
+  return (req, _res, next) => {
+    if (!req.user) throw unauthorized()
+    const { sheet, role } = sheetAccess(deps.db, String(req.params[param]), req.user.id)
+    if (!sheet || !role) throw notFound(NO_SHEET)
+    const lab = labById(deps, sheet.labId)
+    if (!lab) throw notFound(NO_SHEET)
+    req.sheet = sheet
+    req.lab = lab
+    req.role = role
+    next()
+  }
+}
+
+/** After loadLab/loadSheet: only these roles pass; the message says who may. */
+export function allowRoles(roles: readonly Role[], message: string): RequestHandler {
+  return (req, _res, next) => {
+    if (!req.role || !roles.includes(req.role)) throw forbidden(message)
+    next()
+  }
+}

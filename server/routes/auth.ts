@@ -1,0 +1,80 @@
+/** /api/auth: sign-up and its confirmation, sign-in and out, who am I, profile, password change and reset. */
+import { Router } from 'express'
+import type { AppDeps } from '../deps'
+import { clearSession, requireUser, startSession } from '../middleware/auth'
+import { limiter } from '../middleware/rateLimits'
+import { parse } from '../middleware/validate'
+import {
+  changePassword, checkCredentials, confirmSignUp, publicUser, requestReset, requestSignUp, resetPassword, updateName, userById,
+} from '../services/accounts'
+import { revokeSession } from '../services/sessions'
+import { unauthorized } from '../errors'
+import {
+  changePasswordBody, confirmSignUpBody, resetBody, resetRequestBody, signInBody, signUpBody, updateMeBody,
+} from '../../shared/schema/api'
+
+export function authRoutes(deps: AppDeps): Router {
+  const r = Router()
+  const signInLimit = limiter(deps.config.limits.signIn, 'failed sign-ins from this address', { onlyFailures: true })
+  const mailLimit = limiter(deps.config.limits.mail, 'mail requests from this address')
+  const tokenLimit = limiter(deps.config.limits.token, 'attempts with mailed links from this address', { onlyFailures: true })
+
+  r.post('/sign-up', mailLimit, async (req, res) => {
+    const body = parse(signUpBody, req.body)
+    await requestSignUp(deps, body)
+    res.status(201).json({ message: `Check your mail: we sent a link to ${body.email} to finish signing up.` })
+  })
+
+  r.post('/confirm', tokenLimit, async (req, res) => {
+    const { token } = parse(confirmSignUpBody, req.body)
+    const user = confirmSignUp(deps, token)
+    await startSession(deps, res, user.id)
+    res.json({ user: publicUser(user) })
+  })
+
+  r.post('/sign-in', signInLimit, async (req, res) => {
+    const { email, password } = parse(signInBody, req.body)
+    const user = await checkCredentials(deps, email, password)
+    if (!user) throw unauthorized('E-mail or password is wrong.')
+    await startSession(deps, res, user.id)
+    res.json({ user: publicUser(user) })
+  })
+
+  r.post('/sign-out', (req, res) => {
+    if (req.user) revokeSession(deps.db, req.user.jti, req.user.exp)
+    clearSession(deps, res)
+    res.status(204).end()
+  })
+
+  r.get('/me', requireUser, (req, res) => {
+    res.json({ user: publicUser(req.user!) })
+  })
+
+  r.patch('/me', requireUser, (req, res) => {
+    const { name } = parse(updateMeBody, req.body)
+    res.json({ user: publicUser(updateName(deps, req.user!.id, name)) })
+  })
+
+  r.post('/password', requireUser, async (req, res) => {
+    const body = parse(changePasswordBody, req.body)
+    await changePassword(deps, req.user!.id, body.currentPassword, body.newPassword)
+    // every older session ended; this one continues with a fresh token
+    const user = userById(deps, req.user!.id)
+    if (user) await startSession(deps, res, user.id)
+    res.status(204).end()
+  })
+
+  r.post('/reset-request', mailLimit, (req, res) => {
+    const { email } = parse(resetRequestBody, req.body)
+    requestReset(deps, email)
+    res.status(202).json({ message: `If ${email} has a Penumbra account, a link to choose a new password is on its way.` })
+  })
+
+  r.post('/reset', tokenLimit, async (req, res) => {
+    const { token, password } = parse(resetBody, req.body)
+    await resetPassword(deps, token, password)
+    res.status(204).end()
+  })
+
+  return r
+}
