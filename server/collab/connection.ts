@@ -1,0 +1,279 @@
+/**
+ * One websocket of one person on one sheet: rate limit, decoding, and the role rules. Readers (reviewer, viewer) may
+ * ask for the document (sync step 1), publish their own presence and query presence; their document updates are
+ * dropped unread, counted, and answered once with permission-denied, and they stay connected.
+ */
+import type { RawData, WebSocket } from 'ws'
+import type { Role } from '../db/schema'
+import { canWrite } from '../services/access'
+import type { Admission } from './auth'
+import type { DocEntry, DocumentRegistry, RegistryPeer } from './registry'
+import { checkUpdate, decodeClientMessage, encodePermissionDenied, type AwarenessEntry } from './protocol'
+
+/** Close codes. 44xx tell the y-websocket client not to reconnect (the server decided); the others are transient. */
+export const CLOSE = {
+  goingAway: 1001,
+  unsupportedData: 1003,
+  malformed: 1007,
+  rateLimited: 1008,
+  tooBig: 1009,
+  saveFailed: 1011,
+  tooSlow: 1013,
+  sessionEnded: 4401,
+  removed: 4403,
+  sheetDeleted: 4404,
+} as const
+
+export interface RateLimit {
+  /** Messages per second, sustained. */
+  messagesPerSecond: number
+  /** Messages allowed in a burst. */
+  messageBurst: number
+  /** Bytes per second, sustained. */
+  bytesPerSecond: number
+  /** Bytes allowed in a burst. */
+  byteBurst: number
+}
+
+export const DEFAULT_RATE_LIMIT: RateLimit = {
+  messagesPerSecond: 200,
+  messageBurst: 600,
+  bytesPerSecond: 4 * 1024 * 1024,
+  byteBurst: 8 * 1024 * 1024,
+}
+
+/** A connection whose unsent backlog grows past this is not reading: it is closed rather than buffered for ever. */
+export const MAX_BUFFERED_BYTES = 32 * 1024 * 1024
+
+export interface ConnectionCounters {
+  deniedUpdates: number
+  malformedFrames: number
+  oversizeFrames: number
+  textFrames: number
+  rateLimited: number
+  awarenessRefused: number
+}
+
+export function emptyConnectionCounters(): ConnectionCounters {
+  return { deniedUpdates: 0, malformedFrames: 0, oversizeFrames: 0, textFrames: 0, rateLimited: 0, awarenessRefused: 0 }
+}
+
+const WS_OPEN = 1
+
+/** Close reasons are at most 123 bytes of UTF-8. */
+function reasonText(reason: string): string {
+  let out = reason
+  while (Buffer.byteLength(out) > 123) out = out.slice(0, -2) + '…'
+  return out
+}
+
+function toBytes(data: RawData): Uint8Array {
+  if (Array.isArray(data)) return new Uint8Array(Buffer.concat(data))
+  if (data instanceof ArrayBuffer) return new Uint8Array(data)
+  return data
+}
+
+export class CollabConnection implements RegistryPeer {
+  readonly userId: string
+  readonly userName: string
+  readonly sheetId: string
+  readonly labId: string
+  readonly token: string
+  readonly expiresAt: number
+  role: Role
+  /** Document updates this connection sent without the right to edit. */
+  denied = 0
+  closed = false
+  alive = true
+  lastRecheck = Date.now()
+  /** Settles when the socket has closed. */
+  readonly whenClosed: Promise<void>
+  private deniedAnswered = false
+  private messageTokens: number
+  private byteTokens: number
+  private lastRefill = Date.now()
+
+  constructor(
+    private readonly ws: WebSocket,
+    admission: Admission,
+    private readonly entry: DocEntry,
+    private readonly registry: DocumentRegistry,
+    private readonly counters: ConnectionCounters,
+    private readonly limit: RateLimit,
+    private readonly onClosed: (conn: CollabConnection) => void,
+  ) {
+    this.userId = admission.user.id
+    this.userName = admission.user.name
+    this.sheetId = admission.sheetId
+    this.labId = admission.labId
+    this.token = admission.token
+    this.expiresAt = admission.user.exp * 1000
+    this.role = admission.role
+    this.messageTokens = limit.messageBurst
+    this.byteTokens = limit.byteBurst
+    ws.on('message', (data, isBinary) => this.onMessage(data, isBinary))
+    ws.on('pong', () => {
+      this.alive = true
+    })
+    ws.on('error', (err: Error & { code?: string }) => {
+      // ws has already sent its close frame (1009 for an oversize frame, 1002/1007 for a broken one).
+      if (err.code === 'WS_ERR_UNSUPPORTED_MESSAGE_LENGTH') this.counters.oversizeFrames++
+      else this.counters.malformedFrames++
+      this.detach()
+    })
+    this.whenClosed = new Promise((resolve) => ws.once('close', () => resolve()))
+    ws.on('close', () => this.detach())
+    registry.join(entry, this, this.canWrite)
+  }
+
+  get canWrite(): boolean {
+    return canWrite(this.role)
+  }
+
+  send(frame: Uint8Array): void {
+    if (this.closed || this.ws.readyState !== WS_OPEN) return
+    if (this.ws.bufferedAmount > MAX_BUFFERED_BYTES) {
+      this.close(CLOSE.tooSlow, 'too far behind; reconnect to catch up')
+      return
+    }
+    this.ws.send(frame)
+  }
+
+  /** Closes with a code and reason; the connection stops receiving document traffic at once. */
+  close(code: number, reason: string): void {
+    if (this.closed) return
+    this.detach()
+    try {
+      this.ws.close(code, reasonText(reason))
+    } catch {
+      this.ws.terminate()
+    }
+  }
+
+  /** Drops the socket without a closing handshake (shutdown of a peer that did not answer). */
+  terminate(): void {
+    this.detach()
+    this.ws.terminate()
+  }
+
+  /** A role change from the lab: removed → disconnected, demoted → read-only now, promoted → asked for its state. */
+  applyRole(role: Role | null): void {
+    if (this.closed) return
+    if (role === null) {
+      this.close(CLOSE.removed, 'you are no longer a member of this lab')
+      return
+    }
+    const couldWrite = this.canWrite
+    this.role = role
+    if (!couldWrite && this.canWrite) this.registry.requestState(this.entry, this)
+  }
+
+  /** Liveness: a connection that did not answer the last ping is dropped. */
+  ping(): void {
+    if (this.closed) return
+    if (!this.alive) {
+      this.detach()
+      this.ws.terminate()
+      return
+    }
+    this.alive = false
+    try {
+      this.ws.ping()
+    } catch {
+      this.detach()
+    }
+  }
+
+  private detach(): void {
+    if (this.closed) return
+    this.closed = true
+    this.registry.leave(this.entry, this)
+    this.onClosed(this)
+  }
+
+  private takeTokens(bytes: number): boolean {
+    const now = Date.now()
+    const elapsed = (now - this.lastRefill) / 1000
+    this.lastRefill = now
+    this.messageTokens = Math.min(this.limit.messageBurst, this.messageTokens + elapsed * this.limit.messagesPerSecond)
+    this.byteTokens = Math.min(this.limit.byteBurst, this.byteTokens + elapsed * this.limit.bytesPerSecond)
+    if (this.messageTokens < 1 || this.byteTokens < bytes) return false
+    this.messageTokens -= 1
+    this.byteTokens -= bytes
+    return true
+  }
+
+  private onMessage(data: RawData, isBinary: boolean): void {
+    if (this.closed || !this.entry.peers.has(this)) return
+    if (!isBinary) {
+      this.counters.textFrames++
+      this.close(CLOSE.unsupportedData, 'text frames are not part of the protocol; send binary y-websocket messages')
+      return
+    }
+    const frame = toBytes(data)
+    if (!this.takeTokens(frame.byteLength)) {
+      this.counters.rateLimited++
+      this.close(CLOSE.rateLimited, 'too many messages; slow down')
+      return
+    }
+    const decoded = decodeClientMessage(frame)
+    if (!decoded.ok) {
+      this.counters.malformedFrames++
+      this.close(CLOSE.malformed, `malformed message: ${decoded.reason}`)
+      return
+    }
+    const message = decoded.message
+    switch (message.type) {
+      case 'sync-step1':
+        this.registry.answerSyncStep1(this.entry, this, message.stateVector)
+        return
+      case 'sync-step2':
+      case 'update': {
+        if (!this.canWrite) {
+          this.deny()
+          return
+        }
+        const problem = checkUpdate(message.update)
+        if (problem) {
+          this.counters.malformedFrames++
+          this.close(CLOSE.malformed, problem)
+          return
+        }
+        try {
+          this.registry.applyUpdate(this.entry, this, message.update)
+        } catch (err) {
+          this.counters.malformedFrames++
+          this.close(CLOSE.malformed, `update refused: ${(err as Error).message}`)
+        }
+        return
+      }
+      case 'awareness': {
+        const refused = this.registry.applyAwareness(this.entry, this, message.entries.map((e) => this.stamp(e)))
+        this.counters.awarenessRefused += refused
+        return
+      }
+      case 'query-awareness':
+        this.registry.sendAwarenessStates(this.entry, this)
+        return
+      case 'auth':
+        // Permission messages flow from server to client; one sent the other way means nothing.
+        return
+    }
+  }
+
+  private deny(): void {
+    this.denied++
+    this.counters.deniedUpdates++
+    if (this.deniedAnswered) return
+    this.deniedAnswered = true
+    this.registry.queueSend(this.entry, this, encodePermissionDenied(`your role (${this.role}) may read this sheet but not change it`))
+  }
+
+  /** Presence carries the signed-in name and id, whatever the client claimed. */
+  private stamp(entry: AwarenessEntry): AwarenessEntry {
+    if (entry.state === null) return entry
+    const claimed = entry.state.user
+    const user = claimed && typeof claimed === 'object' && !Array.isArray(claimed) ? (claimed as Record<string, unknown>) : {}
+    return { ...entry, state: { ...entry.state, user: { ...user, id: this.userId, name: this.userName } } }
+  }
+}

@@ -1,0 +1,244 @@
+/**
+ * The collaboration server behind `/collab/<sheetId>`: the stock y-websocket client connects unchanged.
+ *
+ *   const collab = createCollab({ db, secret })
+ *   server.on('upgrade', (req, socket, head) => { if (req.url?.startsWith('/collab/')) collab.handleUpgrade(req, socket, head) })
+ *
+ * Three hooks (STYLE 13) — `authenticate` (auth.ts), `loadDocument` / `storeUpdates` / `compact` (store.ts) — around a
+ * transport (connection.ts, this file) kept apart from the document registry (registry.ts), which reaches other app
+ * instances only through the bus (bus.ts).
+ */
+import type { IncomingMessage } from 'node:http'
+import type { Duplex } from 'node:stream'
+import { randomUUID } from 'node:crypto'
+import { WebSocketServer } from 'ws'
+import type * as Y from 'yjs'
+import type { Db } from '../db/client'
+import { userForToken } from '../services/sessions'
+import { roleInLab } from '../services/access'
+import { createAuthenticate, sessionMessage, type Authenticate } from './auth'
+import { createLocalBus, type CollabBus } from './bus'
+import { CLOSE, CollabConnection, DEFAULT_RATE_LIMIT, emptyConnectionCounters, type ConnectionCounters, type RateLimit } from './connection'
+import { rejectUpgrade } from './http'
+import { DocumentRegistry, type RegistryCounters } from './registry'
+import { createSqliteStore, type CollabStore } from './store'
+
+export { CLOSE } from './connection'
+export type { RateLimit } from './connection'
+export { createLocalBus, createMemoryBus, type CollabBus, type BusEvent } from './bus'
+export { COLLAB_PATH_PREFIX } from './auth'
+
+/** Largest frame accepted (bytes); a bigger one closes that connection with 1009. */
+export const MAX_PAYLOAD = 2 * 1024 * 1024
+
+export interface CollabOptions {
+  db: Db
+  secret: Uint8Array
+  /** Browser origins allowed to open sheets; without it an Origin must match the request's Host. */
+  allowedOrigins?: readonly string[]
+  maxPayload?: number
+  rateLimit?: Partial<RateLimit>
+  /** Compact once this many rows sit on top of a sheet's state row (default 500). */
+  compactEvery?: number
+  /** Compact a sheet with rows after this long without a change (default 10 s). */
+  idleCompactMs?: number
+  /** Unload a sheet this long after its last connection left (default 30 s). */
+  evictAfterMs?: number
+  /** Housekeeping period (default 1 s). */
+  sweepMs?: number
+  /** Ping period; a connection that misses a pong is dropped (default 30 s). */
+  pingMs?: number
+  /** How often each connection's session and role are checked again in the database (default 15 s). */
+  recheckMs?: number
+  /** Fan-out to other app instances (default: none, one process). */
+  bus?: CollabBus
+  instanceId?: string
+  hooks?: { authenticate?: Authenticate; store?: CollabStore }
+  log?: (message: string) => void
+}
+
+export interface CollabStats {
+  documents: number
+  connections: number
+  readers: number
+  writers: number
+  counters: RegistryCounters & ConnectionCounters & { upgradesRefused: number }
+  sheets: { sheetId: string; connections: number; rowsSinceCompaction: number; uptoSeq: number }[]
+}
+
+export interface Collab {
+  /** Handles an HTTP upgrade under `/collab/`: refuses with 400/401/403/404/503 before the websocket exists. */
+  handleUpgrade(req: IncomingMessage, socket: Duplex, head: Buffer): Promise<void>
+  /** A member's role changed or they left: applied to their open connections at once (and on other instances). */
+  membershipChanged(labId: string, userId: string): void
+  /** A sheet was deleted: its connections are closed (4404) and its document unloaded. */
+  sheetDeleted(sheetId: string): void
+  /**
+   * Changes a sheet's live document from the server (import into an existing sheet, restore): stored before it
+   * returns and relayed to everyone connected, like an editor's change.
+   */
+  changeDocument(sheetId: string, mutate: (doc: Y.Doc) => void, userId?: string | null): void
+  /** Closes every connection (1001), stores and compacts every open document. Leaves the database open. */
+  close(): Promise<void>
+  stats(): CollabStats
+}
+
+export function createCollab(options: CollabOptions): Collab {
+  const { db } = options
+  const log = options.log ?? ((message: string) => console.warn(`[collab] ${message}`))
+  const instanceId = options.instanceId ?? randomUUID()
+  const bus = options.bus ?? createLocalBus()
+  const authenticate = options.hooks?.authenticate ?? createAuthenticate(db, options.secret, options.allowedOrigins)
+  const limit: RateLimit = { ...DEFAULT_RATE_LIMIT, ...options.rateLimit }
+  const pingMs = options.pingMs ?? 30_000
+  const recheckMs = options.recheckMs ?? 15_000
+  const connCounters = emptyConnectionCounters()
+  let upgradesRefused = 0
+  let closing = false
+  const connections = new Set<CollabConnection>()
+
+  const registry = new DocumentRegistry({
+    store: options.hooks?.store ?? createSqliteStore(db),
+    bus,
+    instanceId,
+    compactEvery: options.compactEvery ?? 500,
+    idleCompactMs: options.idleCompactMs ?? 10_000,
+    evictAfterMs: options.evictAfterMs ?? 30_000,
+    log,
+    onControl: (event) => {
+      if (event.type === 'membership') applyMembership(event.labId, event.userId)
+      else closeSheet(event.sheetId)
+    },
+  })
+
+  const wss = new WebSocketServer({ noServer: true, maxPayload: options.maxPayload ?? MAX_PAYLOAD, perMessageDeflate: false, clientTracking: false })
+
+  let lastPing = Date.now()
+  const sweep = setInterval(() => {
+    const now = Date.now()
+    registry.sweep(now)
+    const pingDue = now - lastPing >= pingMs
+    if (pingDue) lastPing = now
+    for (const conn of [...connections]) {
+      if (pingDue) conn.ping()
+      if (now >= conn.expiresAt) conn.close(CLOSE.sessionEnded, 'your session has expired; sign in again')
+      else if (now - conn.lastRecheck >= recheckMs) recheck(conn, now)
+    }
+  }, options.sweepMs ?? 1000)
+  sweep.unref()
+
+  /** Session signed out, ended by a password reset, or membership changed without the hook reaching us: caught within `recheckMs`. */
+  function recheck(conn: CollabConnection, now: number) {
+    conn.lastRecheck = now
+    userForToken(db, options.secret, conn.token).then(
+      (session) => {
+        if (conn.closed) return
+        if (!session.ok) {
+          conn.close(CLOSE.sessionEnded, sessionMessage(session.reason))
+          return
+        }
+        const role = roleInLab(db, conn.labId, conn.userId)
+        if (role !== conn.role) conn.applyRole(role)
+      },
+      (err: Error) => log(`recheck of a connection failed: ${err.message}`),
+    )
+  }
+
+  function applyMembership(labId: string, userId: string) {
+    let role: ReturnType<typeof roleInLab> | undefined
+    for (const conn of connections) {
+      if (conn.labId !== labId || conn.userId !== userId) continue
+      role ??= roleInLab(db, labId, userId)
+      conn.applyRole(role)
+    }
+  }
+
+  function closeSheet(sheetId: string) {
+    registry.drop(sheetId, CLOSE.sheetDeleted, 'this sheet was deleted')
+    for (const conn of [...connections]) if (conn.sheetId === sheetId) conn.close(CLOSE.sheetDeleted, 'this sheet was deleted')
+  }
+
+  async function handleUpgrade(req: IncomingMessage, socket: Duplex, head: Buffer): Promise<void> {
+    const onSocketError = () => socket.destroy()
+    socket.on('error', onSocketError)
+    const refuse = (status: number, message: string) => {
+      upgradesRefused++
+      rejectUpgrade(socket, status, message)
+    }
+    if (closing) return refuse(503, 'the server is shutting down; try again shortly')
+    let outcome
+    try {
+      outcome = await authenticate(req)
+    } catch (err) {
+      log(`authentication failed: ${(err as Error).message}`)
+      return refuse(500, 'could not check your session')
+    }
+    if (!outcome.ok) return refuse(outcome.status, outcome.message)
+    if (socket.destroyed) return
+    if (closing) return refuse(503, 'the server is shutting down; try again shortly')
+    const { admission } = outcome
+    let entry
+    try {
+      // Loaded before the websocket exists, so the first sync step 1 is answered from the stored document.
+      entry = registry.open(admission.sheetId)
+    } catch (err) {
+      log(`could not load sheet ${admission.sheetId}: ${(err as Error).message}`)
+      return refuse(500, 'could not load this sheet')
+    }
+    wss.handleUpgrade(req, socket, head, (ws) => {
+      socket.off('error', onSocketError)
+      const current = registry.get(admission.sheetId)
+      if (closing || current !== entry) {
+        ws.close(closing ? CLOSE.goingAway : 1013, closing ? 'the server is shutting down' : 'the sheet was reloaded; reconnect')
+        return
+      }
+      const conn = new CollabConnection(ws, admission, entry, registry, connCounters, limit, (c) => connections.delete(c))
+      connections.add(conn)
+    })
+  }
+
+  return {
+    handleUpgrade,
+
+    membershipChanged(labId, userId) {
+      applyMembership(labId, userId)
+      bus.publish(instanceId, { type: 'membership', labId, userId })
+    },
+
+    sheetDeleted(sheetId) {
+      closeSheet(sheetId)
+      bus.publish(instanceId, { type: 'sheet-deleted', sheetId })
+    },
+
+    changeDocument(sheetId, mutate, userId = null) {
+      registry.change(sheetId, mutate, userId)
+    },
+
+    async close() {
+      if (closing) return
+      closing = true
+      clearInterval(sweep)
+      // Whatever is queued is stored and sent first, then everyone is told to go, then every document is compacted.
+      registry.flush()
+      const open = [...connections]
+      for (const conn of open) conn.close(CLOSE.goingAway, 'the server is shutting down')
+      registry.close()
+      wss.close()
+      await Promise.race([Promise.all(open.map((c) => c.whenClosed)), new Promise((resolve) => setTimeout(resolve, 1000).unref())])
+      for (const conn of open) conn.terminate()
+    },
+
+    stats() {
+      let readers = 0
+      for (const conn of connections) if (!conn.canWrite) readers++
+      return {
+        documents: registry.sheets().length,
+        connections: connections.size,
+        readers,
+        writers: connections.size - readers,
+        counters: { ...registry.counters, ...connCounters, upgradesRefused },
+        sheets: registry.sheets().map((e) => ({ sheetId: e.sheetId, connections: e.peers.size, rowsSinceCompaction: e.seqs.length, uptoSeq: e.uptoSeq })),
+      }
+    },
+  }
+}

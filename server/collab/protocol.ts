@@ -1,0 +1,196 @@
+/**
+ * The y-websocket wire protocol, read and written with lib0 and y-protocols only — never by looking at raw bytes, so a
+ * message type written as a non-minimal varint (`0x80 0x00` for 0) is understood as the number it decodes to.
+ *
+ * Frame = varUint messageType, then per type:
+ *   0 sync       varUint syncType (0 step 1: varUint8Array state vector; 1 step 2 / 2 update: varUint8Array update)
+ *   1 awareness  varUint8Array awareness update (varUint n, then n × varUint clientId, varUint clock, varString JSON)
+ *   2 auth       varUint authType (0 permission denied: varString reason) — server to client only
+ *   3 query awareness (no body)
+ */
+import * as decoding from 'lib0/decoding'
+import * as encoding from 'lib0/encoding'
+import * as Y from 'yjs'
+import * as syncProtocol from 'y-protocols/sync'
+import * as authProtocol from 'y-protocols/auth'
+import * as awarenessProtocol from 'y-protocols/awareness'
+
+export const MESSAGE_SYNC = 0
+export const MESSAGE_AWARENESS = 1
+export const MESSAGE_AUTH = 2
+export const MESSAGE_QUERY_AWARENESS = 3
+
+export interface AwarenessEntry {
+  clientId: number
+  clock: number
+  /** The parsed state; null means the client left. */
+  state: Record<string, unknown> | null
+}
+
+export type ClientMessage =
+  | { type: 'sync-step1'; stateVector: Uint8Array }
+  | { type: 'sync-step2'; update: Uint8Array }
+  | { type: 'update'; update: Uint8Array }
+  | { type: 'awareness'; entries: AwarenessEntry[] }
+  | { type: 'query-awareness' }
+  | { type: 'auth' }
+
+export type Decoded = { ok: true; message: ClientMessage } | { ok: false; reason: string }
+
+/** Largest awareness state we keep for one client (JSON characters): presence is a name, a colour and a cursor. */
+export const MAX_AWARENESS_STATE_CHARS = 16 * 1024
+/** Most awareness entries one message may carry. */
+export const MAX_AWARENESS_ENTRIES = 64
+
+class FrameError extends Error {}
+
+/** A length-prefixed byte array, refusing a length that runs past the end of the frame. */
+function readBytes(decoder: decoding.Decoder): Uint8Array {
+  const len = decoding.readVarUint(decoder)
+  const left = decoder.arr.length - decoder.pos
+  if (len > left) throw new FrameError(`declares ${len} bytes but only ${left} follow`)
+  // A copy with its own buffer: lib0 views reach past a slice's end into the socket's pooled memory.
+  const out = new Uint8Array(decoder.arr.subarray(decoder.pos, decoder.pos + len))
+  decoder.pos += len
+  return out
+}
+
+function readString(decoder: decoding.Decoder): string {
+  const bytes = readBytes(decoder)
+  return new TextDecoder('utf-8', { fatal: true }).decode(bytes)
+}
+
+function expectEnd(decoder: decoding.Decoder) {
+  if (decoder.pos !== decoder.arr.length) throw new FrameError(`${decoder.arr.length - decoder.pos} unexpected trailing bytes`)
+}
+
+/** Decodes an awareness update into its entries (the JSON of each state is parsed and size-checked). */
+export function decodeAwarenessUpdate(update: Uint8Array): AwarenessEntry[] {
+  const decoder = decoding.createDecoder(update)
+  const n = decoding.readVarUint(decoder)
+  if (n > MAX_AWARENESS_ENTRIES) throw new FrameError(`awareness update lists ${n} clients (at most ${MAX_AWARENESS_ENTRIES})`)
+  const entries: AwarenessEntry[] = []
+  for (let i = 0; i < n; i++) {
+    const clientId = decoding.readVarUint(decoder)
+    const clock = decoding.readVarUint(decoder)
+    if (clientId > 0xffffffff) throw new FrameError('awareness client id out of range')
+    const json = readString(decoder)
+    if (json.length > MAX_AWARENESS_STATE_CHARS) throw new FrameError(`awareness state of ${json.length} characters (at most ${MAX_AWARENESS_STATE_CHARS})`)
+    let state: unknown
+    try {
+      state = JSON.parse(json)
+    } catch {
+      throw new FrameError('awareness state is not JSON')
+    }
+    if (state !== null && (typeof state !== 'object' || Array.isArray(state))) throw new FrameError('awareness state must be an object or null')
+    entries.push({ clientId, clock, state: state as Record<string, unknown> | null })
+  }
+  expectEnd(decoder)
+  return entries
+}
+
+/** Re-encodes awareness entries in the y-protocols format. */
+export function encodeAwarenessEntries(entries: readonly AwarenessEntry[]): Uint8Array {
+  const encoder = encoding.createEncoder()
+  encoding.writeVarUint(encoder, entries.length)
+  for (const e of entries) {
+    encoding.writeVarUint(encoder, e.clientId)
+    encoding.writeVarUint(encoder, e.clock)
+    encoding.writeVarString(encoder, JSON.stringify(e.state))
+  }
+  return encoding.toUint8Array(encoder)
+}
+
+/**
+ * Decodes one client frame. Structure only: a sync step 1's state vector is checked here, a Yjs update's content is
+ * checked by whoever means to apply it (`checkUpdate`), so a reader's dropped update costs no parse.
+ */
+export function decodeClientMessage(frame: Uint8Array): Decoded {
+  try {
+    const decoder = decoding.createDecoder(frame)
+    const messageType = decoding.readVarUint(decoder)
+    let message: ClientMessage
+    switch (messageType) {
+      case MESSAGE_SYNC: {
+        const syncType = decoding.readVarUint(decoder)
+        const payload = readBytes(decoder)
+        if (syncType === syncProtocol.messageYjsSyncStep1) {
+          try {
+            Y.decodeStateVector(payload)
+          } catch {
+            throw new FrameError('sync step 1 carries a malformed state vector')
+          }
+          message = { type: 'sync-step1', stateVector: payload }
+        } else if (syncType === syncProtocol.messageYjsSyncStep2) message = { type: 'sync-step2', update: payload }
+        else if (syncType === syncProtocol.messageYjsUpdate) message = { type: 'update', update: payload }
+        else throw new FrameError(`unknown sync message type ${syncType}`)
+        break
+      }
+      case MESSAGE_AWARENESS:
+        message = { type: 'awareness', entries: decodeAwarenessUpdate(readBytes(decoder)) }
+        break
+      case MESSAGE_QUERY_AWARENESS:
+        message = { type: 'query-awareness' }
+        break
+      case MESSAGE_AUTH: {
+        const authType = decoding.readVarUint(decoder)
+        if (authType === authProtocol.messagePermissionDenied) readString(decoder)
+        else throw new FrameError(`unknown auth message type ${authType}`)
+        message = { type: 'auth' }
+        break
+      }
+      default:
+        throw new FrameError(`unknown message type ${messageType}`)
+    }
+    expectEnd(decoder)
+    return { ok: true, message }
+  } catch (err) {
+    if (err instanceof FrameError) return { ok: false, reason: err.message }
+    return { ok: false, reason: `truncated or malformed frame (${(err as Error).message})` }
+  }
+}
+
+/** Parses a Yjs (v1) update completely without applying it, so a malformed one is refused before it touches a document. */
+export function checkUpdate(update: Uint8Array): string | null {
+  try {
+    Y.decodeUpdate(update)
+    return null
+  } catch (err) {
+    return `malformed document update (${(err as Error).message})`
+  }
+}
+
+export function encodeSyncStep1(doc: Y.Doc): Uint8Array {
+  const encoder = encoding.createEncoder()
+  encoding.writeVarUint(encoder, MESSAGE_SYNC)
+  syncProtocol.writeSyncStep1(encoder, doc)
+  return encoding.toUint8Array(encoder)
+}
+
+export function encodeSyncStep2(doc: Y.Doc, stateVector?: Uint8Array): Uint8Array {
+  const encoder = encoding.createEncoder()
+  encoding.writeVarUint(encoder, MESSAGE_SYNC)
+  syncProtocol.writeSyncStep2(encoder, doc, stateVector)
+  return encoding.toUint8Array(encoder)
+}
+
+export function encodeUpdateMessage(update: Uint8Array): Uint8Array {
+  const encoder = encoding.createEncoder()
+  encoding.writeVarUint(encoder, MESSAGE_SYNC)
+  syncProtocol.writeUpdate(encoder, update)
+  return encoding.toUint8Array(encoder)
+}
+
+export function encodeAwarenessMessage(awareness: awarenessProtocol.Awareness, clients: number[]): Uint8Array {
+  const encoder = encoding.createEncoder()
+  encoding.writeVarUint(encoder, MESSAGE_AWARENESS)
+  encoding.writeVarUint8Array(encoder, awarenessProtocol.encodeAwarenessUpdate(awareness, clients))
+  return encoding.toUint8Array(encoder)
+}
+
+export function encodePermissionDenied(reason: string): Uint8Array {
+  const encoder = encoding.createEncoder()
+  encoding.writeVarUint(encoder, MESSAGE_AUTH)
+  authProtocol.writePermissionDenied(encoder, reason)
+  return encoding.toUint8Array(encoder)
+}
