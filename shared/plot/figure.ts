@@ -3,13 +3,14 @@
  * marks, an optional sweep family or map, and a plain sentence for everything that could not be drawn.
  * Independent of the charting library; the figure component maps this model onto it.
  */
+import type { SweepValue } from '../schema/result'
 import type { FigureCell, FigureTrace } from '../schema/sheet'
-import { downsample } from './downsample'
+import { downsample, downsampleColumns } from './downsample'
 import { placeMark, type Mark } from './marks'
 import { traceColor } from './palette'
 import { resolveRef, type Quantity, type Results } from './resolve'
 import { sweepFamily, sweepMap, type SweepFamily, type SweepMap } from './sweep'
-import { convertValues, prettyUnit, spectralQuantity, type SpectralQuantity } from './units'
+import { converter, convertValues, prettyUnit, spectralQuantity, type SpectralQuantity } from './units'
 import { visibleBand, type BandSegment } from './visible'
 
 /** Longest series drawn point for point; longer ones are thinned (see downsample). */
@@ -43,7 +44,11 @@ export interface FigureModel {
   /** Marks on the x axis (or on y when only y is spectral). */
   marks: Mark[]
   markAxis: 'x' | 'y'
-  sweep?: { view: 'curves'; family: SweepFamily; yUnit: string } | { view: 'map'; map: SweepMap; zUnit: string }
+  /**
+   * A sweep drawn as a family of curves (array outputs; curves already in the axes' units) or as a map (x in the x
+   * axis unit, rows = parameter values on y, z in the output's unit). Scalar sweep outputs are ordinary `series`.
+   */
+  sweep?: { view: 'curves'; family: SweepFamily; yUnit: string; parameterLabel: string; logParameter: boolean } | { view: 'map'; map: SweepMap; zUnit: string; zTitle: string; logParameter: boolean }
   /** Plain sentences: what could not be drawn and why. */
   messages: string[]
 }
@@ -56,8 +61,9 @@ const QUANTITY_TITLES: Record<SpectralQuantity, string> = {
 }
 
 /**
- * An axis title with its unit: the user's label if set, else the quantity for spectral axes and the names drawn.
- * axisTitle(undefined, 'eV', ['E'], 'energy') → "Photon energy E (eV)"; axisTitle('α', '1/cm', []) → "α (cm⁻¹)".
+ * An axis title with its unit: the user's label if set, else the names drawn, else the spectral quantity.
+ * axisTitle(undefined, 'eV', ['E'], 'energy') → "E (eV)"; axisTitle(undefined, 'nm', [], 'wavelength') → "Wavelength (nm)";
+ * axisTitle('α', '1/cm', []) → "α (cm⁻¹)".
  */
 export function axisTitle(label: string | undefined, unit: string, names: readonly string[], quantity: SpectralQuantity | null = null): string {
   const u = prettyUnit(unit)
@@ -65,7 +71,8 @@ export function axisTitle(label: string | undefined, unit: string, names: readon
   if (label && label.trim()) return `${label.trim()}${suffix}`
   const unique = [...new Set(names)].slice(0, 3)
   const list = unique.join(', ') + (new Set(names).size > 3 ? ', …' : '')
-  const head = quantity ? `${QUANTITY_TITLES[quantity]}${list ? ` ${list}` : ''}` : list
+  // The quantity word only stands in when nothing is named: a nm axis may be a thickness, an eV axis a swept gap.
+  const head = list || (quantity ? QUANTITY_TITLES[quantity] : '')
   return `${head || 'value'}${suffix}`
 }
 
@@ -84,27 +91,34 @@ function asArray(q: Quantity, n: number): number[] {
   return q.kind === 'array' ? q.values : new Array<number>(n).fill(q.value)
 }
 
-function isSweepOutput(ref: string, sweep: string | undefined, outputs: string[]): string | undefined {
-  if (!sweep) return undefined
+function sweepOutputName(ref: string, sweep: string, outputs: string[]): string | undefined {
   const bare = ref.startsWith(`${sweep}.`) ? ref.slice(sweep.length + 1) : ref
   return outputs.includes(bare) ? bare : undefined
+}
+
+/** True for parameter values spaced by a constant ratio (a log sweep), so they are best shown on a log axis. */
+export function isGeometric(values: readonly number[]): boolean {
+  if (values.length < 3 || values.some((v) => !(v > 0))) return false
+  const r0 = values[1] / values[0]
+  if (Math.abs(r0 - 1) < 1e-9) return false
+  for (let i = 2; i < values.length; i++) if (Math.abs(values[i] / values[i - 1] - r0) > 1e-6 * r0) return false
+  return true
 }
 
 /** Builds the drawing model of a figure cell from the sheet's results (by cell name). */
 export function buildFigure(cell: FigureCell, results: Results): FigureModel {
   const messages: string[] = []
   const pairs: Pair[] = []
-  const sweepResult = cell.sweep ? results[cell.sweep] : undefined
-  const sweepOutputs =
-    sweepResult && sweepResult.kind === 'sweep' && typeof sweepResult.value === 'object' && sweepResult.value && 'outputs' in sweepResult.value
-      ? Object.keys((sweepResult.value as { outputs: object }).outputs)
-      : []
-  const sweepPicks: { output: string; xRef: string }[] = []
+  const sweepName = cell.sweep
+  const sweepResult = sweepName ? results[sweepName] : undefined
+  const sweepValue = sweepResult?.status === 'ok' && sweepResult.kind === 'sweep' ? (sweepResult.value as SweepValue | undefined) : undefined
+  const sweepOutputs = sweepValue && typeof sweepValue.outputs === 'object' ? Object.keys(sweepValue.outputs) : []
+  const picks: { output: string; trace?: FigureTrace; index: number }[] = []
 
   cell.traces.forEach((trace, i) => {
-    const out = isSweepOutput(trace.y, cell.sweep, sweepOutputs)
+    const out = sweepName ? sweepOutputName(trace.y, sweepName, sweepOutputs) : undefined
     if (out) {
-      sweepPicks.push({ output: out, xRef: trace.x })
+      picks.push({ output: out, trace, index: i })
       return
     }
     const x = resolveRef(trace.x, results)
@@ -122,45 +136,70 @@ export function buildFigure(cell: FigureCell, results: Results): FigureModel {
     pairs.push({ index: i, trace, x: x.value, y: y.value })
   })
 
-  // sweep: chosen outputs, or the first output against the first trace's x
-  let sweepModel: FigureModel['sweep']
-  let sweepXUnit: string | undefined
-  let sweepYUnit: string | undefined
-  if (cell.sweep) {
-    const pick = sweepPicks[0] ?? { output: sweepOutputs[0], xRef: cell.traces[0]?.x ?? '' }
-    let xValues: number[] | undefined
-    let xUnit: string | undefined
-    if (pick.xRef) {
-      const xr = resolveRef(pick.xRef, results)
-      if (xr.ok && xr.value.kind === 'array') {
+  // The sweep: outputs named by traces (or the first output), against the first such trace's x.
+  let family: SweepFamily | undefined
+  let familyYUnit = ''
+  let map: SweepMap | undefined
+  let mapZUnit = ''
+  const view = cell.sweepView ?? 'curves'
+  if (sweepName) {
+    if (!sweepValue) {
+      const r = sweepFamily(sweepResult, {})
+      messages.push(`Sweep "${sweepName}" is not drawn: ${r.ok ? 'it has no result yet.' : r.message}`)
+    } else {
+      if (picks.length === 0 && sweepOutputs.length > 0) picks.push({ output: sweepOutputs[0], trace: cell.traces[0], index: -1 })
+      const xRef = picks.find((p) => p.trace)?.trace?.x
+      let xValues: number[] | undefined
+      let xUnit: string | undefined
+      const xr = xRef ? resolveRef(xRef, results) : undefined
+      if (xr?.ok && xr.value.kind === 'array') {
         xValues = xr.value.values
         xUnit = xr.value.unit
-      } else if (!xr.ok) messages.push(`The sweep's x series: ${xr.message}`)
+      }
+      const used = view === 'map' ? picks.slice(0, 1) : picks
+      if (view === 'map' && picks.length > 1) messages.push(`A map shows one sweep output; showing "${picks[0].output}".`)
+      for (const pick of used) {
+        const opts = { output: pick.output, xValues, xUnit }
+        if (view === 'map') {
+          const m = sweepMap(sweepResult, opts)
+          if (!m.ok) {
+            messages.push(`Sweep "${sweepName}" is not drawn: ${m.message}`)
+            continue
+          }
+          map = m.value
+          mapZUnit = results[pick.output]?.unit ?? ''
+          if (m.value.note) messages.push(m.value.note)
+          continue
+        }
+        const f = sweepFamily(sweepResult, opts)
+        if (!f.ok) {
+          messages.push(`Sweep "${sweepName}" is not drawn: ${f.message}`)
+          continue
+        }
+        const outUnit = results[pick.output]?.unit ?? ''
+        if (f.value.mode === 'single') {
+          const c = f.value.curves[0]
+          const label = pick.trace && pick.trace.x !== pick.output ? pick.trace.x : sweepName
+          pairs.push({
+            index: pick.index,
+            trace: { x: label, y: pick.output, label: pick.trace?.label ?? pick.output, style: pick.trace?.style },
+            x: { kind: 'array', ref: label, cell: sweepName, values: c.x, unit: f.value.parameterUnit },
+            y: { kind: 'array', ref: pick.output, cell: sweepName, values: c.y, unit: outUnit },
+          })
+        } else if (family) {
+          messages.push(`One family of curves is drawn at a time; "${pick.output}" is left out (showing "${family.output}").`)
+        } else {
+          if (f.value.note) messages.push(f.value.note)
+          family = f.value
+          familyYUnit = outUnit
+        }
+      }
     }
-    const outputUnit = pick.output ? (results[pick.output]?.unit ?? '') : ''
-    const opts = { output: pick.output, xValues, xUnit }
-    if ((cell.sweepView ?? 'curves') === 'map') {
-      const m = sweepMap(sweepResult, opts)
-      if (m.ok) {
-        sweepModel = { view: 'map', map: m.value, zUnit: outputUnit }
-        sweepXUnit = m.value.xUnit
-        sweepYUnit = m.value.parameterUnit
-        if (m.value.note) messages.push(m.value.note)
-      } else messages.push(`Sweep "${cell.sweep}" is not drawn: ${m.message}`)
-    } else {
-      const f = sweepFamily(sweepResult, opts)
-      if (f.ok) {
-        sweepModel = { view: 'curves', family: f.value, yUnit: outputUnit }
-        sweepXUnit = f.value.xUnit
-        sweepYUnit = outputUnit
-        if (f.value.note) messages.push(f.value.note)
-      } else messages.push(`Sweep "${cell.sweep}" is not drawn: ${f.message}`)
-    }
-    if (sweepPicks.length > 1) messages.push(`Only one sweep output is drawn at a time; showing "${pick.output}".`)
   }
 
-  const xUnit = cell.x?.unit ?? pairs[0]?.x.unit ?? sweepXUnit ?? ''
-  const yUnit = cell.y?.unit ?? (sweepModel?.view === 'map' ? sweepYUnit : undefined) ?? pairs[0]?.y.unit ?? sweepYUnit ?? ''
+  pairs.sort((a, b) => a.index - b.index)
+  const xUnit = cell.x?.unit ?? pairs[0]?.x.unit ?? family?.xUnit ?? map?.xUnit ?? ''
+  const yUnit = cell.y?.unit ?? (map ? map.parameterUnit : undefined) ?? pairs[0]?.y.unit ?? (family ? familyYUnit : '')
   const xQuantity = spectralQuantity(xUnit)
   const yQuantity = cell.y?.unit && spectralQuantity(cell.y.unit) !== 'wavenumber' ? spectralQuantity(cell.y.unit) : null
 
@@ -187,20 +226,52 @@ export function buildFigure(cell: FigureCell, results: Results): FigureModel {
     })
   }
 
-  const names = (axis: 'x' | 'y'): string[] => pairs.map((p) => p[axis].ref)
+  let sweep: FigureModel['sweep']
+  const parameterLabel = `${sweepName ?? ''}`
+  if (family) {
+    const cx = converter(family.xUnit, xUnit)
+    const cy = converter(familyYUnit, yUnit)
+    if (!cx.ok || !cy.ok) messages.push(`Sweep "${sweepName}" is not drawn: ${!cx.ok ? `its x ${cx.message}` : `its "${family.output}" ${(cy as { message: string }).message}`}.`)
+    else {
+      const fx = cx.value
+      const fy = cy.value
+      const curves = family.curves.map((c) => {
+        const thin = downsample(c.x.map(fx), c.y.map(fy), MAX_DRAWN_POINTS)
+        return { parameter: c.parameter, x: thin.x, y: thin.y }
+      })
+      sweep = { view: 'curves', family: { ...family, curves }, yUnit: familyYUnit, parameterLabel, logParameter: isGeometric(family.parameter) }
+    }
+  } else if (map) {
+    const cx = converter(map.xUnit, xUnit)
+    const cy = converter(map.parameterUnit, yUnit)
+    if (!cx.ok || !cy.ok) messages.push(`Sweep "${sweepName}" is not drawn: ${!cx.ok ? `its x ${cx.message}` : `its parameter ${(cy as { message: string }).message}`}.`)
+    else {
+      const thin = downsampleColumns(map.x.map(cx.value), map.z, 1500)
+      sweep = {
+        view: 'map',
+        map: { ...map, x: thin.x, z: thin.z, y: map.y.map(cy.value) },
+        zUnit: mapZUnit,
+        zTitle: axisTitle(undefined, mapZUnit, [map.output]),
+        logParameter: isGeometric(map.y),
+      }
+    }
+  }
+
+  const xNames = pairs.map((p) => p.x.ref)
+  if (!xNames.length && (family || map)) xNames.push(...cell.traces.slice(0, 1).map((t) => t.x))
   const x: AxisModel = {
-    title: axisTitle(cell.x?.label, xUnit, pairs.length ? names('x') : sweepModel?.view === 'curves' && sweepModel.family.mode === 'single' ? [cell.sweep ?? ''] : names('x'), xQuantity),
+    title: axisTitle(cell.x?.label, xUnit, xNames, xQuantity),
     unit: xUnit,
     scale: cell.x?.scale ?? 'linear',
     quantity: xQuantity,
     range: cell.x?.min !== undefined && cell.x?.max !== undefined ? [cell.x.min, cell.x.max] : undefined,
   }
-  const yNames = names('y')
-  if (sweepModel?.view === 'curves') yNames.push(sweepModel.family.output)
+  const yNames = pairs.map((p) => p.y.ref)
+  if (family) yNames.push(family.output)
   const y: AxisModel = {
-    title: axisTitle(cell.y?.label, yUnit, sweepModel?.view === 'map' ? [`${cell.sweep}`] : yNames, yQuantity),
+    title: axisTitle(cell.y?.label, yUnit, map ? [`${sweepName}: swept value`] : yNames, yQuantity),
     unit: yUnit,
-    scale: cell.y?.scale ?? 'linear',
+    scale: cell.y?.scale ?? (map && isGeometric(map.y) ? 'log' : 'linear'),
     quantity: yQuantity,
     range: cell.y?.min !== undefined && cell.y?.max !== undefined ? [cell.y.min, cell.y.max] : undefined,
   }
@@ -219,5 +290,5 @@ export function buildFigure(cell: FigureCell, results: Results): FigureModel {
     else messages.push(m.message)
   }
 
-  return { title: cell.title, series, x, y, band, marks, markAxis, sweep: sweepModel, messages }
+  return { title: cell.title, series, x, y, band, marks, markAxis, sweep, messages }
 }

@@ -1,5 +1,5 @@
 import { describe, it, expect } from 'vitest'
-import { axisTitle, buildFigure, MAX_DRAWN_POINTS } from '../../../shared/plot/figure'
+import { axisTitle, buildFigure, isGeometric, MAX_DRAWN_POINTS } from '../../../shared/plot/figure'
 import { HC_EV_NM } from '../../../shared/plot/units'
 import type { FigureCell } from '../../../shared/schema/sheet'
 import { E, results } from './fixtures'
@@ -7,8 +7,8 @@ import { E, results } from './fixtures'
 const fig = (f: Partial<FigureCell>): FigureCell => ({ kind: 'figure', traces: [], ...f })
 
 describe('axisTitle', () => {
-  it('axisTitle names the spectral quantity and the unit', () => {
-    expect(axisTitle(undefined, 'eV', ['E'], 'energy')).toBe('Photon energy E (eV)')
+  it('axisTitle names what is drawn with its unit, and the spectral quantity only when nothing is named', () => {
+    expect(axisTitle(undefined, 'eV', ['E'], 'energy')).toBe('E (eV)')
     expect(axisTitle(undefined, 'nm', [], 'wavelength')).toBe('Wavelength (nm)')
   })
   it('axisTitle prefers the user\'s label and typesets the unit', () => {
@@ -26,7 +26,7 @@ describe('buildFigure', () => {
     expect(m.series[0].x).toEqual(E)
     expect(m.series[0].name).toBe('alpha')
     expect(m.series[0].style).toBe('line')
-    expect(m.x.title).toBe('Photon energy E (eV)')
+    expect(m.x.title).toBe('E (eV)')
     expect(m.y.title).toBe('alpha (cm⁻¹)')
     expect(m.y.scale).toBe('log')
     expect(m.x.quantity).toBe('energy')
@@ -122,5 +122,32 @@ describe('buildFigure', () => {
       neg: { index: 41, name: 'neg', kind: 'formula', status: 'ok', value: E.map(() => -1), unit: '1/cm' },
     })
     expect(m.messages).toEqual(['Trace 2 (neg against E) has no positive values, so nothing of it shows on a log axis.'])
+  })
+})
+
+describe('buildFigure with scalar sweep outputs', () => {
+  it('buildFigure draws each scalar sweep output named by a trace as its own curve against the parameter', () => {
+    const rs = results()
+    ;(rs.thick.value as { outputs: Record<string, unknown> }).outputs.J2 = [11, 16, 19]
+    rs.J2 = { index: 50, name: 'J2', kind: 'formula', status: 'ok', value: 16, unit: 'mA/cm^2' }
+    const m = buildFigure(
+      fig({ traces: [{ x: 'd', y: 'Jsc', label: 'flat film' }, { x: 'd', y: 'J2', label: 'light trapping' }], sweep: 'thick' }),
+      rs,
+    )
+    expect(m.messages).toEqual([])
+    expect(m.sweep).toBeUndefined()
+    expect(m.series.map((s) => s.name)).toEqual(['flat film', 'light trapping'])
+    expect(m.series[1].x).toEqual([100, 200, 300])
+    expect(m.series[1].y).toEqual([11, 16, 19])
+    expect(m.x.title).toBe('d (nm)')
+    expect(m.y.title).toBe('Jsc, J2 (mA/cm²)')
+  })
+})
+
+describe('isGeometric', () => {
+  it('isGeometric tells a log sweep from a linear one', () => {
+    expect(isGeometric([10, 100, 1000, 10000])).toBe(true)
+    expect(isGeometric([100, 150, 200])).toBe(false)
+    expect(isGeometric([0, 1, 10])).toBe(false)
   })
 })
