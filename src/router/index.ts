@@ -1,0 +1,63 @@
+/**
+ * The route table. `meta.access` is the guard: `signed-in` pages send a signed-out visitor to sign-in (and back
+ * afterwards), `guest` pages send a signed-in person on to their labs, `public` pages are for everyone.
+ * The server checks every request anyway; the guards only keep people from landing on pages that cannot work.
+ */
+import { createRouter, createWebHistory, type RouteLocationRaw } from 'vue-router'
+import { useSessionStore } from '@/stores/session'
+
+declare module 'vue-router' {
+  interface RouteMeta {
+    access?: 'signed-in' | 'guest' | 'public'
+    /** Shown in the browser tab; views with a name of their own (a lab, a sheet) set the title themselves. */
+    title?: string
+    /** Pages without the header frame (the centred sign-in card). */
+    bare?: boolean
+  }
+}
+
+/** A `next` query parameter we may follow: only paths inside the app, never another site. */
+export function safeNext(next: unknown): string | null {
+  const value = Array.isArray(next) ? next[0] : next
+  if (typeof value !== 'string') return null
+  if (!value.startsWith('/') || value.startsWith('//') || value.startsWith('/\\')) return null
+  return value
+}
+
+export const router = createRouter({
+  history: createWebHistory(),
+  scrollBehavior: (_to, _from, saved) => saved ?? { top: 0 },
+  routes: [
+    { path: '/', redirect: '/labs' },
+    { path: '/sign-in', name: 'sign-in', component: () => import('@/views/SignInView.vue'), meta: { access: 'guest', title: 'Sign in', bare: true } },
+    { path: '/sign-up', name: 'sign-up', component: () => import('@/views/SignUpView.vue'), meta: { access: 'guest', title: 'Create an account', bare: true } },
+    { path: '/confirm/:token', name: 'confirm', component: () => import('@/views/ConfirmView.vue'), meta: { access: 'public', title: 'Confirm your account', bare: true } },
+    { path: '/reset', name: 'reset-request', component: () => import('@/views/ResetRequestView.vue'), meta: { access: 'public', title: 'Reset your password', bare: true } },
+    { path: '/reset/:token', name: 'reset', component: () => import('@/views/ResetPasswordView.vue'), meta: { access: 'public', title: 'Choose a new password', bare: true } },
+    { path: '/invitations/:token', name: 'invitation', component: () => import('@/views/InvitationView.vue'), meta: { access: 'public', title: 'Invitation', bare: true } },
+    { path: '/labs', name: 'labs', component: () => import('@/views/LabsView.vue'), meta: { access: 'signed-in', title: 'My labs' } },
+    { path: '/labs/:labId', name: 'lab', component: () => import('@/views/LabView.vue'), meta: { access: 'signed-in', title: 'Lab' } },
+    { path: '/sheets/:sheetId', name: 'sheet', component: () => import('@/views/SheetView.vue'), meta: { access: 'signed-in', title: 'Sheet' } },
+    { path: '/profile', name: 'profile', component: () => import('@/views/ProfileView.vue'), meta: { access: 'signed-in', title: 'Profile' } },
+    { path: '/help', name: 'help', component: () => import('@/views/HelpView.vue'), meta: { access: 'public', title: 'Help' } },
+    { path: '/:pathMatch(.*)*', name: 'not-found', component: () => import('@/views/NotFoundView.vue'), meta: { access: 'public', title: 'Page not found' } },
+  ],
+})
+
+router.beforeEach(async (to): Promise<RouteLocationRaw | true> => {
+  const session = useSessionStore()
+  await session.ensureLoaded()
+  const access = to.meta.access ?? 'signed-in'
+  if (access === 'signed-in' && !session.signedIn) return { name: 'sign-in', query: { next: to.fullPath } }
+  if (access === 'guest' && session.signedIn) return safeNext(to.query.next) ?? { name: 'labs' }
+  return true
+})
+
+router.afterEach((to) => {
+  document.title = to.meta.title ? `${to.meta.title} · Penumbra` : 'Penumbra'
+})
+
+/** Sets the browser tab's title from a view (a lab's or a sheet's name). */
+export function setPageTitle(title: string): void {
+  document.title = title ? `${title} · Penumbra` : 'Penumbra'
+}
