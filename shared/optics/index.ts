@@ -14,3 +14,15 @@ export {
   reflectance, absorbedFraction, absorptionDepth, thicknessFor, transmittanceSlab, reflectanceSlab, absorptanceSlab,
   alphaFromTransmittance, alphaFromAbsorbance, absorptanceLambertian,
 } from './slabs'
+export {
+  alphaFromK, kFromAlpha, nFromEps, kFromEps, cauchyN, sellmeierN, drudeEps1, drudeEps2, taucLorentzEps2,
+  taucLorentzEps1,
+} from './opticalConstants'
+export { filmReflectance, filmTransmittance } from './films'
+export { tmmNormal } from './tmm'
+export type { TmmLayer, TmmResult } from './tmm'
+export { varshni } from './temperature'
+export {
+  planckPhotonRadiance, photonFlux, photocurrent, detailedBalance, shockleyQueisserPoint, boseIntegral2,
+} from './spectra'
+export type { DetailedBalanceResult } from './spectra'

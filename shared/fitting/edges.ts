@@ -1,0 +1,130 @@
+/**
+ * Band-edge fits in a window: the Tauc plot ((αE)^(1/r) against E) for the gap, and ln α against E for the Urbach
+ * energy. SI in and out: E in J, α in 1/m. The window is inclusive at both ends and may be given in either order.
+ */
+import { FitError } from './errors'
+import { linearFit } from './linear'
+import { q } from '../optics/constants'
+
+export interface TaucFit {
+  /** Gap −intercept/slope, J. */
+  Eg: number
+  /** Standard error of Eg propagated from the regression covariance, J. */
+  Eg_err: number
+  /** Tauc coefficient (the slope), in the units of alphaTauc's B. */
+  B: number
+  B_err: number
+  r2: number
+  /** Points inside the window. */
+  n: number
+}
+
+export interface UrbachFit {
+  /** Urbach energy 1/slope of ln α, J. */
+  Eu: number
+  Eu_err: number
+  /** α at E = 0 of the fitted line, 1/m: alphaUrbach(E, alpha0, 0, Eu) reproduces the fit. */
+  alpha0: number
+  r2: number
+  n: number
+}
+
+const eV = (x: number): string => `${(x / q).toPrecision(4)} eV`
+
+function windowIndices(E: ArrayLike<number>, alpha: ArrayLike<number>, from: number, to: number, method: string): number[] {
+  if (E.length !== alpha.length) {
+    throw new FitError(`The energies and absorption coefficients have different lengths (${E.length} and ${alpha.length}).`)
+  }
+  if (!Number.isFinite(from) || !Number.isFinite(to)) throw new FitError(`The ${method} fit window needs finite limits.`)
+  const lo = Math.min(from, to)
+  const hi = Math.max(from, to)
+  const idx: number[] = []
+  for (let i = 0; i < E.length; i++) {
+    const e = E[i]
+    if (e >= lo && e <= hi) {
+      if (!Number.isFinite(alpha[i])) {
+        throw new FitError(`The absorption coefficient is not a finite number at ${eV(e)}, inside the ${method} fit window.`)
+      }
+      idx.push(i)
+    }
+  }
+  if (idx.length < 3) {
+    throw new FitError(
+      `The ${method} fit window from ${eV(lo)} to ${eV(hi)} holds ${idx.length} point${idx.length === 1 ? '' : 's'}; a fit needs at least 3.`,
+    )
+  }
+  return idx
+}
+
+/**
+ * Tauc fit: linear regression of (αE)^(1/r) on E inside the window; Eg = −intercept/slope, B = slope, and
+ * Eg_err from the regression covariance. With ȳ the window mean of (αE)^(1/r), Eg = x̄ − ȳ/slope and ȳ and the slope
+ * are uncorrelated, so var(Eg) = s²/(n·slope²) + ȳ²·s²/(slope⁴·Sxx) (the same as propagating the full
+ * intercept–slope covariance, without its cancellation).
+ *
+ * - `E`: photon energies, J; `alpha`: α, 1/m (≥ 0 inside the window); `r`: Tauc exponent (1/2 direct, 2 indirect)
+ * - `from`, `to`: window limits, J (inclusive, either order); at least 3 points inside
+ * - result: { Eg, Eg_err (J), B, B_err, r2, n }
+ *
+ * Source: J. Tauc, R. Grigorovici, A. Vancu, phys. stat. sol. 15, 627 (1966); error propagation as in Draper &
+ * Smith, Applied Regression Analysis (1998), ch. 1 and 3.
+ *
+ * @example taucFit(E, alphaDirect(E, 1.5 eV, B), 0.5, 1.55 eV, 1.9 eV) → Eg = 1.5 eV (to rounding), Eg_err ≈ 0, r2 = 1
+ * @throws FitError for too few points in the window, a negative or non-finite α inside it, or a falling Tauc plot
+ */
+export function taucFit(E: ArrayLike<number>, alpha: ArrayLike<number>, r: number, from: number, to: number): TaucFit {
+  if (!(r > 0)) throw new FitError(`The Tauc exponent r must be positive (got ${r}).`)
+  const idx = windowIndices(E, alpha, from, to, 'Tauc')
+  const p = 1 / r
+  const x = new Float64Array(idx.length)
+  const y = new Float64Array(idx.length)
+  for (let j = 0; j < idx.length; j++) {
+    const i = idx[j]
+    if (alpha[i] < 0) throw new FitError(`The absorption coefficient is negative at ${eV(E[i])}, inside the Tauc fit window.`)
+    x[j] = E[i]
+    y[j] = p === 2 ? (alpha[i] * E[i]) ** 2 : Math.pow(alpha[i] * E[i], p)
+  }
+  const fit = linearFit(x, y)
+  if (!(fit.slope > 0)) {
+    throw new FitError('The Tauc plot does not rise inside the window, so it gives no band gap; move the window onto the edge.')
+  }
+  const s = fit.slope
+  const Eg = fit.xMean - fit.yMean / s
+  const s2 = fit.sigma * fit.sigma
+  const varEg = s2 / (fit.n * s * s) + (fit.yMean * fit.yMean * s2) / (s * s * s * s * fit.sxx)
+  return { Eg, Eg_err: Math.sqrt(varEg), B: s, B_err: fit.slopeErr, r2: fit.r2, n: fit.n }
+}
+
+/**
+ * Urbach fit: linear regression of ln α on E inside the window; Eu = 1/slope, Eu_err = slopeErr/slope²,
+ * alpha0 = exp(intercept) (α extrapolated to E = 0, so alphaUrbach(E, alpha0, 0, Eu) is the fitted line).
+ *
+ * - `E`: photon energies, J; `alpha`: α, 1/m (> 0 inside the window); `from`, `to`: window limits, J (inclusive)
+ * - result: { Eu (J), Eu_err (J), alpha0 (1/m), r2, n }
+ *
+ * Source: F. Urbach, Phys. Rev. 92, 1324 (1953); regression errors as in Draper & Smith (1998), ch. 1.
+ *
+ * @example urbachFit(E, alphaUrbach(E, 1e5, 1.5 eV, 20 meV), 1.3 eV, 1.45 eV) → Eu = 20 meV (to rounding), r2 = 1
+ * @throws FitError for too few points, α ≤ 0 inside the window (no logarithm), or a falling ln α
+ */
+export function urbachFit(E: ArrayLike<number>, alpha: ArrayLike<number>, from: number, to: number): UrbachFit {
+  const idx = windowIndices(E, alpha, from, to, 'Urbach')
+  const x = new Float64Array(idx.length)
+  const y = new Float64Array(idx.length)
+  for (let j = 0; j < idx.length; j++) {
+    const i = idx[j]
+    if (!(alpha[i] > 0)) {
+      throw new FitError(
+        `The absorption coefficient is ${alpha[i] === 0 ? 'zero' : 'negative'} at ${eV(E[i])}, inside the Urbach fit window; an Urbach fit takes its logarithm.`,
+      )
+    }
+    x[j] = E[i]
+    y[j] = Math.log(alpha[i])
+  }
+  const fit = linearFit(x, y)
+  if (!(fit.slope > 0)) {
+    throw new FitError('ln α does not rise with energy inside the window, so it gives no Urbach energy.')
+  }
+  const s = fit.slope
+  return { Eu: 1 / s, Eu_err: fit.slopeErr / (s * s), alpha0: Math.exp(fit.intercept), r2: fit.r2, n: fit.n }
+}
