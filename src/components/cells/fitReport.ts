@@ -1,0 +1,174 @@
+/**
+ * A fit cell's result as people read it: rows of value ± standard error with units, and the usual cautions when a
+ * Tauc window or an Urbach fit looks outside its usual validity. Modelling results are not measurements; these notes
+ * say where the model's assumptions are likely strained, they do not judge the data.
+ */
+import type { FitCell, SheetCell } from '../../../shared/schema/sheet'
+import type { CellResult } from '../../../shared/schema/result'
+import { converter } from '../../../shared/plot/units'
+import { formatNumber, formatWithError } from '../../../shared/plot/format'
+
+export interface FitRow {
+  quantity: string
+  /** What the quantity is, in words. */
+  meaning: string
+  value: string
+  unit: string
+}
+
+const ENERGY_KEYS = new Set(['Eg', 'Eu'])
+
+const MEANING: Record<string, string> = {
+  Eg: 'band gap (intercept of the Tauc line)',
+  B: 'slope of the Tauc line (SI)',
+  Eu: 'Urbach energy (width of the exponential tail)',
+  alpha0: 'tail prefactor',
+  r2: 'coefficient of determination',
+  n: 'points in the window',
+  chi2: 'sum of squared residuals',
+  iterations: 'iterations',
+}
+
+function isRecord(v: unknown): v is Record<string, unknown> {
+  return typeof v === 'object' && v !== null && !Array.isArray(v)
+}
+
+/**
+ * Rows for a fit result. Energies (Eg, Eu and errors) are in the fit's unit; alpha0 is SI (1/m) and shown in 1/cm;
+ * for model fits, `<name>` with `<name>_err`, or `params`/`errors` records, become one row per free parameter.
+ */
+export function fitRows(cell: FitCell, result: CellResult | undefined, unitOf: (name: string) => string | undefined): FitRow[] {
+  const value = result?.status === 'ok' ? result.value : undefined
+  if (!isRecord(value)) return []
+  const rows: FitRow[] = []
+  const fitUnit = cell.unit ?? 'eV'
+  const used = new Set<string>()
+  const numberAt = (rec: Record<string, unknown>, key: string) => (typeof rec[key] === 'number' ? (rec[key] as number) : undefined)
+
+  const push = (key: string, v: number, err: number | undefined, unit: string, meaning?: string) => {
+    rows.push({ quantity: key, meaning: meaning ?? MEANING[key] ?? '', value: formatWithError(v, err), unit })
+  }
+
+  // nested parameter records from a model fit
+  const params = isRecord(value.params) ? value.params : isRecord(value.parameters) ? value.parameters : null
+  const errors = isRecord(value.errors) ? value.errors : isRecord(value.stderr) ? value.stderr : null
+  if (params) {
+    for (const [name, v] of Object.entries(params)) {
+      if (typeof v !== 'number') continue
+      const err = errors && typeof errors[name] === 'number' ? (errors[name] as number) : undefined
+      push(name, v, err, unitOf(name) ?? '', 'fitted parameter')
+    }
+    used.add('params').add('parameters').add('errors').add('stderr')
+  }
+
+  const order = ['Eg', 'Eu', 'B', 'alpha0']
+  const keys = [...order.filter((k) => k in value), ...Object.keys(value).filter((k) => !order.includes(k))]
+  for (const key of keys) {
+    if (used.has(key) || key.endsWith('_err')) continue
+    const v = numberAt(value, key)
+    if (v === undefined) continue
+    const err = numberAt(value, `${key}_err`)
+    if (key === 'r2') {
+      rows.push({ quantity: 'R²', meaning: MEANING.r2, value: v.toFixed(5), unit: '' })
+    } else if (key === 'n' || key === 'iterations') {
+      rows.push({ quantity: key === 'n' ? 'points' : key, meaning: MEANING[key], value: String(v), unit: '' })
+    } else if (key === 'alpha0') {
+      push('α₀', v / 100, err !== undefined ? err / 100 : undefined, '1/cm', MEANING.alpha0)
+    } else if (ENERGY_KEYS.has(key)) {
+      push(key, v, err, fitUnit)
+    } else if (key === 'chi2') {
+      rows.push({ quantity: 'χ²', meaning: MEANING.chi2, value: formatNumber(v), unit: '' })
+    } else {
+      const unit = cell.method === 'model' ? (unitOf(key) ?? '') : key === 'B' ? 'SI' : ''
+      push(key, v, err, unit, cell.method === 'model' && err !== undefined ? 'fitted parameter' : undefined)
+    }
+  }
+  if (typeof value.converged === 'boolean' && !value.converged) {
+    rows.push({ quantity: 'converged', meaning: 'the fit stopped before converging', value: 'no', unit: '' })
+  }
+  return rows
+}
+
+/** The residuals of a model fit, when the engine returns them. */
+export function fitResiduals(result: CellResult | undefined): number[] | null {
+  const value = result?.status === 'ok' ? result.value : undefined
+  if (!isRecord(value) || !Array.isArray(value.residuals)) return null
+  return value.residuals.map((v) => (typeof v === 'number' ? v : NaN))
+}
+
+/** The window in the fit's energy unit (sorted), when both ends are set and the x unit converts. */
+function windowInFitUnit(cell: FitCell, xUnit: string | undefined): [number, number] | null {
+  if (cell.from === undefined || cell.to === undefined) return null
+  const c = converter(xUnit ?? cell.unit ?? 'eV', cell.unit ?? 'eV')
+  if (!c.ok) return null
+  const a = c.value(cell.from)
+  const b = c.value(cell.to)
+  if (!Number.isFinite(a) || !Number.isFinite(b)) return null
+  return a <= b ? [a, b] : [b, a]
+}
+
+function toEv(v: number, unit: string | undefined): number | null {
+  const c = converter(unit ?? 'eV', 'eV')
+  return c.ok ? c.value(v) : null
+}
+
+/**
+ * The cautions for a fit, as plain sentences. Thresholds are common practice, not a standard: a Tauc line is read on
+ * the straight part just above the edge (R² well above 0.98, the window starting at or above the fitted gap and
+ * reaching no more than a few tenths of an eV above it, enough points); an Urbach tail lies below the gap and is
+ * typically 10–100 meV wide in semiconductor films.
+ */
+export function fitCautions(cell: FitCell, result: CellResult | undefined, cells: readonly SheetCell[], resultsById: Record<string, CellResult>): string[] {
+  const value = result?.status === 'ok' ? result.value : undefined
+  if (!isRecord(value)) return []
+  const out: string[] = []
+  const fitUnit = cell.unit ?? 'eV'
+  const xCell = cells.find((c) => c.name === cell.x)
+  const xUnit = xCell && 'unit' in xCell ? (xCell.unit as string | undefined) : undefined
+  const win = windowInFitUnit(cell, xUnit)
+  const r2 = typeof value.r2 === 'number' ? value.r2 : undefined
+  const n = typeof value.n === 'number' ? value.n : undefined
+  const fmt = (v: number) => `${formatNumber(v, 4)} ${fitUnit}`
+
+  if (n !== undefined && n < 5) out.push(`Only ${n} points lie in the window; a line through so few points says little. Widen the window.`)
+
+  if (cell.method === 'tauc' && typeof value.Eg === 'number') {
+    const Eg = value.Eg
+    if (r2 !== undefined && r2 < 0.98)
+      out.push(`The Tauc plot is not straight in this window (R² = ${r2.toFixed(3)}), so the gap depends on where the window sits. Move it onto the straight part just above the edge.`)
+    if (win && win[0] < Eg)
+      out.push(`The window starts at ${fmt(win[0])}, below the fitted gap (${fmt(Eg)}). Points below the gap belong to the tail and bend the Tauc line; start the window above the gap.`)
+    const EgEv = toEv(Eg, fitUnit)
+    const topEv = win ? toEv(win[1], fitUnit) : null
+    if (EgEv !== null && topEv !== null && topEv - EgEv > 0.5)
+      out.push(`The window reaches ${formatNumber(topEv - EgEv, 2)} eV above the gap. The Tauc form assumes parabolic bands and holds only near the edge; keep the window within a few tenths of an eV of it.`)
+    if (cell.r === undefined) out.push('No Tauc exponent is set; the fit assumes r = 1/2 (direct allowed). Choose the transition type that fits the material.')
+  }
+
+  if (cell.method === 'urbach' && typeof value.Eu === 'number') {
+    const EuEv = toEv(value.Eu, fitUnit)
+    if (EuEv !== null && (EuEv < 0.005 || EuEv > 0.2))
+      out.push(`An Urbach energy of ${formatNumber(EuEv * 1000, 3)} meV is unusual (films typically show about 10–100 meV). Check that the window lies on the exponential tail.`)
+    if (r2 !== undefined && r2 < 0.98)
+      out.push(`ln α is not straight in this window (R² = ${r2.toFixed(3)}): the tail is not a single exponential there.`)
+    // a gap to compare with: a Tauc fit of the same data, else a parameter named Eg
+    const tauc = cells.find((c) => c.kind === 'fit' && c.method === 'tauc' && c.y === cell.y)
+    const taucValue = tauc ? resultsById[tauc.id]?.value : undefined
+    let gapEv: number | null = null
+    let gapFrom = ''
+    if (tauc && isRecord(taucValue) && typeof taucValue.Eg === 'number') {
+      gapEv = toEv(taucValue.Eg, (tauc as FitCell).unit ?? 'eV')
+      gapFrom = `the Tauc fit ${tauc.name}`
+    } else {
+      const eg = cells.find((c) => c.kind === 'parameter' && c.name === 'Eg')
+      if (eg && eg.kind === 'parameter') {
+        gapEv = toEv(eg.value, eg.unit ?? 'eV')
+        gapFrom = 'parameter Eg'
+      }
+    }
+    const topEv = win ? toEv(win[1], fitUnit) : null
+    if (gapEv !== null && topEv !== null && topEv > gapEv)
+      out.push(`The window reaches ${formatNumber(topEv, 4)} eV, above the gap (${formatNumber(gapEv, 4)} eV from ${gapFrom}). An Urbach fit describes the tail below the gap only.`)
+  }
+  return out
+}

@@ -1,0 +1,90 @@
+/**
+ * New cells as the add menu makes them: a sensible start for each kind with a name not yet used in the sheet.
+ * The starting values are plain placeholders a researcher overwrites, chosen so the cell evaluates at once.
+ */
+import type { Cell, CellKind, SheetCell } from '../../../shared/schema/sheet'
+
+export interface KindInfo {
+  kind: CellKind
+  label: string
+  hint: string
+  /** Single-letter key in the add menu. */
+  key: string
+}
+
+/** Kinds a person can add from the page (spectrum cells come from an upload or an imported file). */
+export const ADDABLE_KINDS: KindInfo[] = [
+  { kind: 'parameter', label: 'Parameter', hint: 'a named input with unit and range', key: 'p' },
+  { kind: 'formula', label: 'Formula', hint: 'a named computed quantity', key: 'f' },
+  { kind: 'fit', label: 'Fit', hint: 'Tauc, Urbach or a model fit', key: 't' },
+  { kind: 'sweep', label: 'Sweep', hint: 'one parameter over a range', key: 's' },
+  { kind: 'figure', label: 'Figure', hint: 'a chart of other cells', key: 'g' },
+  { kind: 'note', label: 'Note', hint: 'free text in Markdown', key: 'n' },
+]
+
+export const KIND_LABELS: Record<CellKind, string> = {
+  parameter: 'parameter',
+  formula: 'formula',
+  spectrum: 'spectrum',
+  fit: 'fit',
+  sweep: 'sweep',
+  figure: 'figure',
+  note: 'note',
+  stack: 'stack',
+}
+
+const PREFIX: Record<CellKind, string> = {
+  parameter: 'p',
+  formula: 'f',
+  spectrum: 'spectrum',
+  fit: 'fit',
+  sweep: 'sweep',
+  figure: 'fig',
+  note: 'note',
+  stack: 'stack',
+}
+
+/** The first of `base1`, `base2`, … not used by any cell. A name that is free as given is kept. */
+export function freeName(base: string, cells: readonly SheetCell[], keepIfFree = false): string {
+  const used = new Set(cells.map((c) => c.name).filter(Boolean))
+  if (keepIfFree && !used.has(base)) return base
+  const stem = base.replace(/_?\d+$/, '') || base
+  for (let i = 1; ; i++) {
+    const candidate = keepIfFree ? `${stem}_${i + 1}` : `${stem}${i}`
+    if (!used.has(candidate)) return candidate
+  }
+}
+
+/** A new cell of `kind`, referring to cells above it where that makes a working start. */
+export function newCell(kind: CellKind, cells: readonly SheetCell[], above: readonly SheetCell[]): Cell {
+  const name = freeName(PREFIX[kind], cells)
+  const lastOf = (k: CellKind) => [...above].reverse().find((c) => c.kind === k && c.name)?.name
+  const arrays = [...above].reverse().filter((c) => c.kind === 'formula' && c.name)
+  switch (kind) {
+    case 'parameter':
+      return { kind, name, value: 1, min: 0, max: 10 }
+    case 'formula':
+      return { kind, name, source: '' }
+    case 'fit': {
+      const x = arrays[1]?.name ?? arrays[0]?.name ?? 'E'
+      const y = arrays[0]?.name ?? 'alpha'
+      return { kind, name, method: 'tauc', x, y, r: 0.5, unit: 'eV' }
+    }
+    case 'sweep': {
+      const parameter = lastOf('parameter') ?? 'd'
+      const output = arrays[0]?.name ?? 'A'
+      return { kind, name, parameter, from: 0, to: 1, steps: 11, outputs: [output] }
+    }
+    case 'figure': {
+      const y = arrays[0]?.name
+      const x = arrays[1]?.name
+      return { kind, name, traces: x && y ? [{ x, y }] : [] }
+    }
+    case 'note':
+      return { kind, text: '' }
+    case 'spectrum':
+      return { kind, name, columns: {} }
+    case 'stack':
+      return { kind, name, layers: [] }
+  }
+}

@@ -1,0 +1,18 @@
+/**
+ * Each cell of the live document checked against the sheet-file schema before its card renders, so a malformed
+ * cell (written by an older or faulty client) shows its problems on its own card instead of breaking the page.
+ * Plain cells are replaced only when they change, so the check is cached per object.
+ */
+import { cell as cellSchema, toSchemaIssues, type SchemaIssue, type SheetCell } from '../../../shared/schema/sheet'
+
+const cache = new WeakMap<SheetCell, SchemaIssue[]>()
+
+export function cellIssues(cell: SheetCell): SchemaIssue[] {
+  let issues = cache.get(cell)
+  if (!issues) {
+    const parsed = cellSchema.safeParse(cell)
+    issues = parsed.success ? [] : toSchemaIssues(parsed.error)
+    cache.set(cell, issues)
+  }
+  return issues
+}

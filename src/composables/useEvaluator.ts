@@ -1,0 +1,207 @@
+/**
+ * Runs the sheet engine in a Web Worker and keeps the results store current. The page watches the cell array deeply,
+ * notes which cells changed (by id), marks them and their dependents stale at once, and sends the worker one batch at
+ * a time: while the worker is busy (a long sweep or fit), further edits gather into the next batch, so typing never
+ * waits and the worker never falls behind by more than one batch.
+ */
+import { onScopeDispose, ref } from 'vue'
+import * as Y from 'yjs'
+import { mapToCell, type CellMap } from '../../shared/doc/sheetDoc'
+import type { SheetCell } from '../../shared/schema/sheet'
+import type { FromWorker, ToWorker } from '@/workers/protocol'
+import { dependentsOf } from '@/components/sheet/references'
+import type { useSheetStore } from '@/stores/sheet'
+
+type SheetStore = ReturnType<typeof useSheetStore>
+
+/** After this many unexpected worker failures in a row the page stops restarting it and says so. */
+const MAX_RESTARTS = 3
+
+export function useEvaluator(cells: Y.Array<CellMap>, store: SheetStore, title: () => string) {
+  const busy = ref(false)
+  const state = ref<'starting' | 'ready' | 'failed'>('starting')
+  const error = ref('')
+
+  let worker: Worker | null = null
+  let restarts = 0
+  let lastSent = 0
+  let inFlight: number | null = null
+  /** Whether the worker's engine holds any cells (an empty one gets a full load instead of insertions). */
+  let workerHasCells = false
+  let needsLoad = true
+  const dirty = new Set<string>()
+  let orderChanged = false
+  /** Latest batch number whose answer clears a cell's stale mark. */
+  const staleUntil = new Map<string, number>()
+  /** Plain cells by id and the document order: what the page renders and what is sent to the worker. */
+  const plain = new Map<string, SheetCell>()
+  let order: string[] = []
+  let flushTimer: ReturnType<typeof setTimeout> | null = null
+
+  function startWorker(): void {
+    worker = new Worker(new URL('../workers/evaluate.worker.ts', import.meta.url), { type: 'module', name: 'penumbra-evaluate' })
+    worker.onmessage = (event: MessageEvent<FromWorker>) => onMessage(event.data)
+    worker.onerror = (event: ErrorEvent) => {
+      event.preventDefault()
+      fail(event.message || 'the evaluator could not start')
+    }
+    inFlight = null
+    needsLoad = true
+    workerHasCells = false
+  }
+
+  function fail(message: string): void {
+    worker?.terminate()
+    worker = null
+    busy.value = false
+    store.clearProgress()
+    if (restarts < MAX_RESTARTS) {
+      restarts++
+      store.evaluatorError = `The evaluator stopped (${message}); it was restarted and the sheet recomputed.`
+      startWorker()
+      scheduleFlush()
+    } else {
+      state.value = 'failed'
+      error.value = message
+      store.evaluatorError = `The evaluator stopped (${message}). Results are not being updated; reload the page to try again. Your edits are still saved.`
+    }
+  }
+
+  function onMessage(message: FromWorker): void {
+    switch (message.type) {
+      case 'ready':
+        state.value = 'ready'
+        store.catalog = message.catalog
+        store.engineVersion = message.engine
+        break
+      case 'progress':
+        store.setProgress(message.id, message.fraction)
+        break
+      case 'results': {
+        restarts = 0
+        store.applyResults(message.results, message.complete)
+        for (const id of message.recomputed) store.setProgress(id, null)
+        const cleared: string[] = []
+        for (const [id, until] of staleUntil) {
+          if (until <= message.seq) {
+            cleared.push(id)
+            staleUntil.delete(id)
+          }
+        }
+        store.clearStale(cleared)
+        store.lastEvaluationMs = message.ms
+        if (store.evaluatorError && state.value !== 'failed') store.evaluatorError = ''
+        inFlight = null
+        busy.value = false
+        if (dirty.size > 0 || orderChanged || needsLoad) scheduleFlush()
+        break
+      }
+      case 'failed':
+        fail(message.message)
+        break
+    }
+  }
+
+  function send(message: ToWorker): void {
+    inFlight = message.seq
+    busy.value = true
+    worker?.postMessage(message)
+  }
+
+  function flush(): void {
+    flushTimer = null
+    if (!worker || inFlight !== null) return
+    if (!needsLoad && dirty.size === 0 && !orderChanged) return
+    const seq = ++lastSent
+    const all = order.map((id) => plain.get(id)).filter((c): c is SheetCell => !!c)
+    // A first batch, or one touching most of the sheet (the initial sync, an import), is a full load.
+    if (needsLoad || !workerHasCells || dirty.size * 2 > Math.max(order.length, 1)) {
+      send({ type: 'load', seq, title: title(), cells: all })
+      needsLoad = false
+    } else {
+      const changed = [...dirty].map((id) => plain.get(id)).filter((c): c is SheetCell => !!c)
+      send({ type: 'changes', seq, order: order.slice(), changed })
+    }
+    workerHasCells = order.length > 0
+    dirty.clear()
+    orderChanged = false
+  }
+
+  function scheduleFlush(): void {
+    if (flushTimer === null) flushTimer = setTimeout(flush, 0)
+  }
+
+  /** Re-reads the given cells (and the order when it changed) from the document into the plain snapshot. */
+  function refresh(changedIds: Set<string>, structural: boolean): void {
+    const before = order.map((id) => plain.get(id)).filter((c): c is SheetCell => !!c)
+    if (structural) {
+      const maps = cells.toArray()
+      const nextOrder: string[] = []
+      const seen = new Set<string>()
+      for (const map of maps) {
+        const id = String(map.get('id') ?? '')
+        if (!id || seen.has(id)) continue
+        seen.add(id)
+        nextOrder.push(id)
+        if (!plain.has(id) || changedIds.has(id)) {
+          plain.set(id, mapToCell(map))
+          changedIds.add(id)
+        }
+      }
+      for (const id of [...plain.keys()]) if (!seen.has(id)) plain.delete(id)
+      if (nextOrder.join('\n') !== order.join('\n')) orderChanged = true
+      order = nextOrder
+    } else {
+      for (const map of cells.toArray()) {
+        const id = String(map.get('id') ?? '')
+        if (changedIds.has(id)) plain.set(id, mapToCell(map))
+      }
+    }
+    for (const id of changedIds) dirty.add(id)
+    const after = order.map((id) => plain.get(id)).filter((c): c is SheetCell => !!c)
+    store.setCells(after)
+
+    const nextSeq = (inFlight ?? lastSent) + 1
+    const staleIds = new Set([...dependentsOf(before, changedIds), ...dependentsOf(after, changedIds)])
+    for (const id of staleIds) if (plain.has(id)) staleUntil.set(id, nextSeq)
+    store.markStale([...staleIds].filter((id) => plain.has(id) && store.results[id]))
+    scheduleFlush()
+  }
+
+  const observer = (events: Y.YEvent<Y.AbstractType<unknown>>[]) => {
+    const changed = new Set<string>()
+    let structural = false
+    for (const event of events) {
+      if (event.target === cells) {
+        structural = true
+        continue
+      }
+      let type: Y.AbstractType<unknown> | null = event.target
+      while (type && type.parent !== cells) type = type.parent as Y.AbstractType<unknown> | null
+      if (type instanceof Y.Map) {
+        const id = type.get('id')
+        if (typeof id === 'string') changed.add(id)
+      }
+    }
+    refresh(changed, structural)
+  }
+  cells.observeDeep(observer)
+
+  startWorker()
+  refresh(new Set(), true)
+
+  /** Recomputes the whole sheet from scratch (after a title change or on request). */
+  function reload(): void {
+    needsLoad = true
+    scheduleFlush()
+  }
+
+  onScopeDispose(() => {
+    cells.unobserveDeep(observer)
+    if (flushTimer !== null) clearTimeout(flushTimer)
+    worker?.terminate()
+    worker = null
+  })
+
+  return { busy, state, error, reload }
+}

@@ -1,0 +1,263 @@
+/**
+ * The live document of one sheet: a Y.Doc synchronised with `/collab/<sheetId>` through y-websocket, its awareness
+ * (presence), one Y.UndoManager for this person's own edits, and the editing operations the cell cards call.
+ *
+ * Readers (reviewer, viewer) get a provider that never sends document data: it does not answer the server's sync
+ * step 1 and does not forward local updates, and every editing operation here refuses to run. The server drops
+ * reader updates anyway; the client simply never tries.
+ *
+ * Edits made while offline stay in the document and reach the server in the sync exchange after reconnecting.
+ */
+import { onScopeDispose, ref, shallowRef } from 'vue'
+import * as Y from 'yjs'
+import { WebsocketProvider, messageQueryAwareness, messageSync, messageAwareness } from 'y-websocket'
+import * as awarenessProtocol from 'y-protocols/awareness'
+import * as syncProtocol from 'y-protocols/sync'
+import * as decoding from 'lib0/decoding'
+import * as encoding from 'lib0/encoding'
+import { cellToMap, cellsOf, mapToCell, metaOf, newCellId, type CellMap } from '../../shared/doc/sheetDoc'
+import type { Cell, SheetCell } from '../../shared/schema/sheet'
+
+export type ConnectionState = 'connecting' | 'online' | 'offline'
+
+export interface SheetDocOptions {
+  /** True for reviewers and viewers. */
+  readonly: boolean
+}
+
+/** The handler signature of y-websocket's message table. */
+type MessageHandler = (encoder: encoding.Encoder, decoder: decoding.Decoder, provider: WebsocketProvider, emitSynced: boolean, messageType: number) => void
+
+/** The websocket base for the current page: same origin, ws or wss. */
+function collabBase(): string {
+  const { protocol, host } = window.location
+  return `${protocol === 'https:' ? 'wss' : 'ws'}://${host}/collab`
+}
+
+/** Makes a provider receive-only: it reads the server's document and never sends document data. */
+function makeReceiveOnly(provider: WebsocketProvider, doc: Y.Doc): void {
+  const handlers = (provider as unknown as { messageHandlers: MessageHandler[] }).messageHandlers
+  handlers[messageSync] = (_encoder, decoder, p, emitSynced) => {
+    const type = decoding.readVarUint(decoder)
+    if (type === syncProtocol.messageYjsSyncStep1) {
+      // The server asks what we have that it lacks; a reader never has anything to add, so no answer is sent.
+      decoding.readVarUint8Array(decoder)
+      return
+    }
+    if (type === syncProtocol.messageYjsSyncStep2) {
+      syncProtocol.readSyncStep2(decoder, doc, p)
+      if (emitSynced && !p.synced) p.synced = true
+    } else if (type === syncProtocol.messageYjsUpdate) {
+      syncProtocol.readUpdate(decoder, doc, p)
+    }
+  }
+  handlers[messageQueryAwareness] = (encoder, _decoder, p) => {
+    // Answer with our own presence only.
+    encoding.writeVarUint(encoder, messageAwareness)
+    encoding.writeVarUint8Array(encoder, awarenessProtocol.encodeAwarenessUpdate(p.awareness, [doc.clientID]))
+  }
+  const updateHandler = (provider as unknown as { _updateHandler: (u: Uint8Array, o: unknown) => void })._updateHandler
+  doc.off('update', updateHandler)
+}
+
+/** A fresh copy of a cell map, for moving a cell (Y.Array has no move) or duplicating it. */
+function copyMap(map: CellMap, id: string): CellMap {
+  const copy = cellToMap(mapToCell(map), id)
+  return copy
+}
+
+export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
+  const doc = new Y.Doc()
+  const cells = cellsOf(doc)
+  const meta = metaOf(doc)
+  const awareness = new awarenessProtocol.Awareness(doc)
+  /** Origin of this person's edits; the undo manager tracks only these (and the formula editors' own origins). */
+  const origin = { who: 'this person' }
+  const undoManager = new Y.UndoManager(cells, { trackedOrigins: new Set<unknown>([origin]), captureTimeout: 500 })
+  const readonly = options.readonly
+
+  const connection = ref<ConnectionState>('connecting')
+  const synced = ref(false)
+  /** Set when the server closed the connection for good (access revoked, sheet deleted): a plain sentence. */
+  const closedReason = ref('')
+  const canUndo = ref(false)
+  const canRedo = ref(false)
+  const error = ref('')
+  const provider = shallowRef<WebsocketProvider | null>(null)
+
+  const p = new WebsocketProvider(collabBase(), encodeURIComponent(sheetId), doc, {
+    awareness,
+    connect: false,
+    disableBc: true,
+    maxBackoffTime: 5000,
+  })
+  if (readonly) makeReceiveOnly(p, doc)
+  p.on('status', ({ status }) => {
+    connection.value = status === 'connected' ? 'online' : status === 'connecting' ? 'connecting' : 'offline'
+    if (status !== 'connected') synced.value = false
+  })
+  p.on('sync', (state) => {
+    synced.value = state
+  })
+  p.on('closed', ({ code, reason }) => {
+    connection.value = 'offline'
+    closedReason.value =
+      reason ||
+      (code === 4401
+        ? 'Your session has ended; sign in again to keep working on this sheet.'
+        : code === 4403
+          ? 'You no longer have access to this sheet.'
+          : code === 4404
+            ? 'This sheet no longer exists.'
+            : `The server closed the live connection (code ${code}).`)
+  })
+  p.connect()
+  provider.value = p
+
+  const updateUndoState = () => {
+    canUndo.value = undoManager.undoStack.length > 0
+    canRedo.value = undoManager.redoStack.length > 0
+  }
+  undoManager.on('stack-item-added', updateUndoState)
+  undoManager.on('stack-item-popped', updateUndoState)
+  undoManager.on('stack-cleared', updateUndoState)
+
+  const onOnline = () => {
+    if (!closedReason.value) p.connect()
+  }
+  window.addEventListener('online', onOnline)
+
+  onScopeDispose(() => {
+    window.removeEventListener('online', onOnline)
+    awarenessProtocol.removeAwarenessStates(awareness, [doc.clientID], 'left the sheet')
+    undoManager.destroy()
+    p.destroy()
+    awareness.destroy()
+    doc.destroy()
+  })
+
+  // --- editing -------------------------------------------------------------------------------------------------
+
+  /** Runs a change as this person's edit; refuses (returns false) for readers. */
+  function transact(change: () => void): boolean {
+    if (readonly) return false
+    doc.transact(change, origin)
+    return true
+  }
+
+  function indexOf(id: string): number {
+    const arr = cells.toArray()
+    return arr.findIndex((m) => m.get('id') === id)
+  }
+
+  function mapOf(id: string): CellMap | undefined {
+    return cells.toArray().find((m) => m.get('id') === id)
+  }
+
+  /** Writes plain fields of a cell; `undefined` removes a field. Text fields go through setText. */
+  function setFields(id: string, fields: Record<string, unknown>): boolean {
+    const map = mapOf(id)
+    if (!map) return false
+    return transact(() => {
+      for (const [key, value] of Object.entries(fields)) {
+        if (key === 'id' || key === 'kind') continue
+        const current = map.get(key)
+        if (current instanceof Y.Text && typeof value === 'string') {
+          current.delete(0, current.length)
+          current.insert(0, value)
+        } else if (value === undefined) map.delete(key)
+        else map.set(key, value === null || typeof value !== 'object' ? value : JSON.parse(JSON.stringify(value)))
+      }
+    })
+  }
+
+  /** Inserts a new cell at `index` (end when omitted); returns its id. */
+  function insertCell(cell: Cell, index = cells.length): string | null {
+    const id = newCellId()
+    const ok = transact(() => cells.insert(Math.max(0, Math.min(index, cells.length)), [cellToMap({ ...cell, id }, id)]))
+    return ok ? id : null
+  }
+
+  function deleteCell(id: string): boolean {
+    const i = indexOf(id)
+    if (i < 0) return false
+    return transact(() => cells.delete(i, 1))
+  }
+
+  /** Moves a cell to position `to` (clamped). The card is rebuilt, so its editors re-bind. */
+  function moveCell(id: string, to: number): boolean {
+    const from = indexOf(id)
+    if (from < 0) return false
+    const target = Math.max(0, Math.min(to, cells.length - 1))
+    if (target === from) return false
+    const map = cells.get(from)
+    return transact(() => {
+      const copy = copyMap(map, id)
+      cells.delete(from, 1)
+      cells.insert(target, [copy])
+    })
+  }
+
+  /** Duplicates a cell just below itself, with a new id and the given name; returns the new id. */
+  function duplicateCell(id: string, name: string | undefined): string | null {
+    const i = indexOf(id)
+    if (i < 0) return null
+    const newId = newCellId()
+    const copy = copyMap(cells.get(i), newId)
+    if (name !== undefined) copy.set('name', name)
+    const ok = transact(() => cells.insert(i + 1, [copy]))
+    return ok ? newId : null
+  }
+
+  /** Replaces every cell (import "replace"). */
+  function replaceCells(next: SheetCell[]): boolean {
+    return transact(() => {
+      cells.delete(0, cells.length)
+      cells.push(next.map((c) => cellToMap(c, c.id)))
+    })
+  }
+
+  /** Appends cells at the end (import "append"); they must already have fresh ids. */
+  function appendCells(next: SheetCell[]): boolean {
+    return transact(() => cells.push(next.map((c) => cellToMap(c, c.id))))
+  }
+
+  function undo(): void {
+    if (!readonly) undoManager.undo()
+  }
+
+  function redo(): void {
+    if (!readonly) undoManager.redo()
+  }
+
+  return {
+    doc,
+    cells,
+    meta,
+    awareness,
+    undoManager,
+    provider,
+    readonly,
+    connection,
+    synced,
+    closedReason,
+    canUndo,
+    canRedo,
+    error,
+    origin,
+    mapOf,
+    indexOf,
+    setFields,
+    insertCell,
+    deleteCell,
+    moveCell,
+    duplicateCell,
+    replaceCells,
+    appendCells,
+    undo,
+    redo,
+    transact,
+  }
+}
+
+export type SheetDoc = ReturnType<typeof useSheetDoc>
