@@ -183,21 +183,28 @@ export class DocumentRegistry {
 
   /**
    * Applies presence entries from a peer. A peer controls the first client id it announces and no other; an id
-   * already controlled by another peer is refused. Returns how many entries were refused.
+   * already controlled by another peer is refused. Entries no newer than what the server holds are skipped silently:
+   * the stock client echoes every presence change it hears, others' included. Returns how many entries were refused.
    */
   applyAwareness(entry: DocEntry, peer: RegistryPeer, entries: readonly AwarenessEntry[]): number {
     const controlled = entry.peers.get(peer)
     if (!controlled) return entries.length
     const accepted: AwarenessEntry[] = []
+    let refused = 0
     for (const e of entries) {
-      if (controlled.has(e.clientId)) accepted.push(e)
-      else if (controlled.size === 0 && !this.controlledByOther(entry, peer, e.clientId) && e.state !== null) {
+      if (controlled.has(e.clientId)) {
+        accepted.push(e)
+        continue
+      }
+      const known = entry.awareness.meta.get(e.clientId)
+      if (known && known.clock >= e.clock) continue
+      if (controlled.size === 0 && e.state !== null && !this.controlledByOther(entry, peer, e.clientId)) {
         controlled.add(e.clientId)
         accepted.push(e)
-      }
+      } else refused++
     }
     if (accepted.length > 0) awarenessProtocol.applyAwarenessUpdate(entry.awareness, encodeAwarenessEntries(accepted), peer)
-    return entries.length - accepted.length
+    return refused
   }
 
   /** Sends a peer every presence state the server knows (the answer to an awareness query, and on join). */

@@ -239,3 +239,16 @@ export function upgradeStatus(server: { base: string }, sheetId: string, token: 
     ws.on('error', () => {})
   })
 }
+
+/** Sends a sync step 1 and waits for its answer: everything this client sent before has then been handled. */
+export async function roundTrip(raw: RawClient): Promise<void> {
+  const { syncStep1Frame, readServerFrame } = await import('./frames')
+  const from = raw.frames.length
+  raw.ws.send(syncStep1Frame())
+  await until(() => raw.frames.slice(from).some((f) => readServerFrame(f).type === 'sync-step2'), 'the answer to a sync step 1')
+}
+
+/** Rows in the update log of one sheet. */
+export function storedRows(lab: Lab, sheetId = lab.sheetId): number {
+  return (lab.handle.sqlite.prepare('SELECT count(*) AS n FROM sheet_updates WHERE sheet_id = ?').get(sheetId) as { n: number }).n
+}
