@@ -1,0 +1,240 @@
+/** Accounts over the API: sign-up and confirmation, sign-in, sessions and their edge cases, reset links, profile. */
+import { describe, expect, it } from 'vitest'
+import { eq } from 'drizzle-orm'
+import { call, cookieFrom, createTestUser, makeTestApp, sessionCookie, signIn, signUp } from '../utils/server'
+import { passwordResets, pendingSignups, users } from '../../server/db/schema'
+import { SESSION_COOKIE } from '../../server/services/sessions'
+
+/** Waits until the clock has moved to the next whole second (session tokens carry their issue time in seconds). */
+async function nextSecond(): Promise<void> {
+  await new Promise((r) => setTimeout(r, 1000 - (Date.now() % 1000) + 20))
+}
+
+describe('POST /api/auth/sign-up', () => {
+  it('mails a confirmation link and creates the account only when it is opened', async () => {
+    const t = makeTestApp()
+    const res = await call(t).post('/api/auth/sign-up', { email: ' Ada@Example.ORG ', name: 'Ada Quell', password: 'ten chars!!' })
+    expect(res.status).toBe(201)
+    expect(res.headers['set-cookie']).toBeUndefined()
+    expect(t.db.select().from(users).all()).toHaveLength(0)
+    const mail = t.mailer.to('ada@example.org')[0]
+    expect(mail.subject).toBe('Confirm your Penumbra account')
+    expect(mail.text).toContain('http://penumbra.test/confirm/')
+    expect(mail.html).toContain('Confirm and sign in')
+    const token = t.mailer.tokenFor('ada@example.org', '/confirm/')
+    const confirmed = await call(t).post('/api/auth/confirm', { token })
+    expect(confirmed.status).toBe(200)
+    expect(confirmed.body.user).toMatchObject({ email: 'ada@example.org', name: 'Ada Quell' })
+    const me = await call(t, cookieFrom(confirmed)).get('/api/auth/me')
+    expect(me.body.user.email).toBe('ada@example.org')
+    const again = await call(t).post('/api/auth/confirm', { token })
+    expect(again.status).toBe(410)
+  })
+
+  it('gives the same answer for an address that already has an account, and mails its owner instead', async () => {
+    const t = makeTestApp()
+    const fresh = await call(t).post('/api/auth/sign-up', { email: 'new@example.org', name: 'A', password: 'long enough one' })
+    await createTestUser(t, { email: 'taken@example.org', name: 'Taken' })
+    const taken = await call(t).post('/api/auth/sign-up', { email: 'taken@example.org', name: 'B', password: 'long enough one' })
+    expect(taken.status).toBe(fresh.status)
+    expect(Object.keys(taken.body)).toEqual(Object.keys(fresh.body))
+    expect(taken.body.message.replace('taken@example.org', 'X')).toBe(fresh.body.message.replace('new@example.org', 'X'))
+    expect(t.mailer.to('taken@example.org')[0].subject).toBe('You already have a Penumbra account')
+    expect(t.db.select().from(pendingSignups).all().map((p) => p.email)).toEqual(['new@example.org'])
+  })
+
+  it('answers 400 naming each field for a short password and a bad address', async () => {
+    const t = makeTestApp()
+    const res = await call(t).post('/api/auth/sign-up', { email: 'not-an-address', name: '', password: 'ninechars' })
+    expect(res.status).toBe(400)
+    expect(res.body.issues).toEqual([
+      { path: 'email', message: 'must be an e-mail address' },
+      { path: 'name', message: 'must not be empty' },
+      { path: 'password', message: 'must be at least 10 characters' },
+    ])
+    expect(res.body.error).toMatch(/^The request was not accepted: email must be an e-mail address \(and 2 more\)\.$/)
+  })
+
+  it('POST /api/auth/confirm answers 410 for an expired link and 404 for an unknown one', async () => {
+    const t = makeTestApp()
+    await call(t).post('/api/auth/sign-up', { email: 'late@example.org', name: 'Late', password: 'long enough one' })
+    const token = t.mailer.tokenFor('late@example.org', '/confirm/')
+    t.db.update(pendingSignups).set({ expiresAt: Date.now() - 1 }).run()
+    expect((await call(t).post('/api/auth/confirm', { token })).status).toBe(410)
+    expect((await call(t).post('/api/auth/confirm', { token: 'x'.repeat(43) })).status).toBe(404)
+  })
+
+  it('stores an argon2id hash, never the password', async () => {
+    const t = makeTestApp()
+    await signUp(t, { email: 'hash@example.org', name: 'H', password: 'my secret passphrase' })
+    const row = t.db.select().from(users).where(eq(users.email, 'hash@example.org')).get()!
+    expect(row.passwordHash.startsWith('$argon2id$')).toBe(true)
+    expect(row.passwordHash).not.toContain('my secret passphrase')
+  })
+})
+
+describe('POST /api/auth/sign-in', () => {
+  it('sets an httpOnly, SameSite=Lax session cookie with an expiry', async () => {
+    const t = makeTestApp()
+    const u = await createTestUser(t, { email: 'mira@lab.example' })
+    const res = await call(t).post('/api/auth/sign-in', { email: 'MIRA@lab.example', password: u.password })
+    expect(res.status).toBe(200)
+    expect(res.body.user).toEqual({ id: u.id, email: 'mira@lab.example', name: u.name })
+    const set = (res.headers['set-cookie'] as unknown as string[])[0]
+    expect(set).toMatch(new RegExp(`^${SESSION_COOKIE}=`))
+    expect(set).toMatch(/; HttpOnly/)
+    expect(set).toMatch(/; SameSite=Lax/)
+    expect(set).toMatch(/; Max-Age=604800/)
+    expect(set).toMatch(/; Expires=/)
+  })
+
+  it('answers the same 401 for a wrong password and an unknown address', async () => {
+    const t = makeTestApp()
+    const u = await createTestUser(t)
+    const wrong = await call(t).post('/api/auth/sign-in', { email: u.email, password: 'not the password' })
+    const unknown = await call(t).post('/api/auth/sign-in', { email: 'nobody@lab.example', password: 'not the password' })
+    expect(wrong.status).toBe(401)
+    expect(unknown.status).toBe(401)
+    expect(wrong.body).toEqual(unknown.body)
+    expect(wrong.body).toEqual({ error: 'E-mail or password is wrong.' })
+  })
+})
+
+describe('session tokens on GET /api/auth/me', () => {
+  it('answers 401 for an expired token', async () => {
+    const t = makeTestApp()
+    const u = await createTestUser(t)
+    const res = await call(t, await sessionCookie(t, u.id, { ttlSeconds: -5 })).get('/api/auth/me')
+    expect(res.status).toBe(401)
+    expect(res.body.error).toBe('Your session has expired. Sign in again.')
+  })
+
+  it('answers 401 for a tampered token (payload changed, signature kept)', async () => {
+    const t = makeTestApp()
+    const u = await createTestUser(t)
+    const other = await createTestUser(t)
+    const [name, token] = u.cookie.split('=')
+    const [header, , signature] = token.split('.')
+    const forged = Buffer.from(JSON.stringify({ sub: other.id, jti: 'x', iss: 'penumbra', exp: Math.floor(Date.now() / 1000) + 3600 })).toString('base64url')
+    const res = await call(t, `${name}=${header}.${forged}.${signature}`).get('/api/auth/me')
+    expect(res.status).toBe(401)
+    expect(res.body.error).toBe('Your session is not valid. Sign in again.')
+  })
+
+  it('answers 401 for a token signed with another secret', async () => {
+    const t = makeTestApp()
+    const u = await createTestUser(t)
+    const cookie = await sessionCookie(t, u.id, { secret: new TextEncoder().encode('some-other-secret-of-forty-characters!!') })
+    expect((await call(t, cookie).get('/api/auth/me')).status).toBe(401)
+  })
+
+  it('answers 401 for garbage in the cookie', async () => {
+    const t = makeTestApp()
+    const res = await call(t, `${SESSION_COOKIE}=not-a-token`).get('/api/auth/me')
+    expect(res.status).toBe(401)
+    expect(res.body.error).toBe('Your session is not valid. Sign in again.')
+  })
+
+  it('answers 401 for the token of a deleted user', async () => {
+    const t = makeTestApp()
+    const u = await createTestUser(t)
+    t.db.delete(users).where(eq(users.id, u.id)).run()
+    const res = await call(t, u.cookie).get('/api/auth/me')
+    expect(res.status).toBe(401)
+    expect(res.body.error).toBe('Your account no longer exists.')
+  })
+
+  it('answers 401 for a session after POST /api/auth/sign-out revoked it', async () => {
+    const t = makeTestApp()
+    const u = await createTestUser(t)
+    const cookie = await signIn(t, u.email, u.password)
+    expect((await call(t, cookie).get('/api/auth/me')).status).toBe(200)
+    const out = await call(t, cookie).post('/api/auth/sign-out')
+    expect(out.status).toBe(204)
+    expect((out.headers['set-cookie'] as unknown as string[])[0]).toMatch(new RegExp(`^${SESSION_COOKIE}=;`))
+    const res = await call(t, cookie).get('/api/auth/me')
+    expect(res.status).toBe(401)
+    expect(res.body.error).toBe('You were signed out. Sign in again.')
+    // other sessions of the same user continue
+    expect((await call(t, u.cookie).get('/api/auth/me')).status).toBe(200)
+  })
+})
+
+describe('password reset', () => {
+  it('POST /api/auth/reset-request answers 202 with the same message whether or not the address has an account', async () => {
+    const t = makeTestApp()
+    const u = await createTestUser(t, { email: 'known@lab.example' })
+    const known = await call(t).post('/api/auth/reset-request', { email: u.email })
+    const unknown = await call(t).post('/api/auth/reset-request', { email: 'unknown@lab.example' })
+    expect([known.status, unknown.status]).toEqual([202, 202])
+    expect(known.body.message.replace(u.email, 'X')).toBe(unknown.body.message.replace('unknown@lab.example', 'X'))
+    expect(t.mailer.to(u.email)).toHaveLength(1)
+    expect(t.mailer.to('unknown@lab.example')).toHaveLength(0)
+  })
+
+  it('POST /api/auth/reset sets the new password once, and ends older sessions', async () => {
+    const t = makeTestApp()
+    const u = await createTestUser(t)
+    const oldCookie = await signIn(t, u.email, u.password)
+    await call(t).post('/api/auth/reset-request', { email: u.email })
+    const mail = t.mailer.to(u.email)[0]
+    expect(mail.subject).toBe('Choose a new Penumbra password')
+    expect(mail.html).toContain('Choose a new password')
+    const token = t.mailer.tokenFor(u.email, '/reset/')
+    await nextSecond()
+    const res = await call(t).post('/api/auth/reset', { token, password: 'the new password' })
+    expect(res.status).toBe(204)
+    expect((await call(t).post('/api/auth/sign-in', { email: u.email, password: u.password })).status).toBe(401)
+    expect((await call(t).post('/api/auth/sign-in', { email: u.email, password: 'the new password' })).status).toBe(200)
+    expect((await call(t, oldCookie).get('/api/auth/me')).status).toBe(401)
+    const reuse = await call(t).post('/api/auth/reset', { token, password: 'yet another password' })
+    expect(reuse.status).toBe(410)
+    expect(reuse.body.error).toMatch(/already been used/)
+  })
+
+  it('POST /api/auth/reset answers 410 for an expired link, 404 for an unknown one, 400 for a short password', async () => {
+    const t = makeTestApp()
+    const u = await createTestUser(t)
+    await call(t).post('/api/auth/reset-request', { email: u.email })
+    const token = t.mailer.tokenFor(u.email, '/reset/')
+    expect((await call(t).post('/api/auth/reset', { token, password: 'short' })).body.issues).toEqual([{ path: 'password', message: 'must be at least 10 characters' }])
+    t.db.update(passwordResets).set({ expiresAt: Date.now() - 1 }).run()
+    const expired = await call(t).post('/api/auth/reset', { token, password: 'the new password' })
+    expect(expired.status).toBe(410)
+    expect(expired.body.error).toMatch(/expired/)
+    expect((await call(t).post('/api/auth/reset', { token: 'y'.repeat(43), password: 'the new password' })).status).toBe(404)
+  })
+
+  it('using one reset link spends the other open links of that user', async () => {
+    const t = makeTestApp()
+    const u = await createTestUser(t)
+    await call(t).post('/api/auth/reset-request', { email: u.email })
+    const first = t.mailer.tokenFor(u.email, '/reset/')
+    await call(t).post('/api/auth/reset-request', { email: u.email })
+    const second = t.mailer.tokenFor(u.email, '/reset/')
+    expect(second).not.toBe(first)
+    expect((await call(t).post('/api/auth/reset', { token: second, password: 'the new password' })).status).toBe(204)
+    expect((await call(t).post('/api/auth/reset', { token: first, password: 'another new password' })).status).toBe(410)
+  })
+})
+
+describe('profile', () => {
+  it('PATCH /api/auth/me renames the user', async () => {
+    const t = makeTestApp()
+    const u = await createTestUser(t)
+    const res = await call(t, u.cookie).patch('/api/auth/me', { name: '  Mira H.  ' })
+    expect(res.body.user.name).toBe('Mira H.')
+  })
+
+  it('POST /api/auth/password answers 403 for a wrong current password and keeps the caller signed in on success', async () => {
+    const t = makeTestApp()
+    const u = await createTestUser(t)
+    const wrong = await call(t, u.cookie).post('/api/auth/password', { currentPassword: 'nope', newPassword: 'a new long password' })
+    expect(wrong.status).toBe(403)
+    await nextSecond()
+    const ok = await call(t, u.cookie).post('/api/auth/password', { currentPassword: u.password, newPassword: 'a new long password' })
+    expect(ok.status).toBe(204)
+    expect((await call(t, u.cookie).get('/api/auth/me')).status).toBe(401)
+    expect((await call(t, cookieFrom(ok)).get('/api/auth/me')).status).toBe(200)
+  })
+})
