@@ -165,7 +165,7 @@ function edge1(E: number, Eg: number, B: number, r: number, Eu: number): number 
   const d = edgeJunctionOffset(Eg, r, Eu)
   const Ej = Eg + d
   if (E >= Ej) return taucPower(B * (E - Eg), r) / E
-  return (taucPower(B * d, r) / Ej) * Math.exp((E - Ej) / Eu)
+  return (taucPower(B * d, r) / Ej) * Math.exp((E - Ej) * (1 / Eu))
 }
 
 /**
