@@ -23,6 +23,9 @@ import path from 'node:path'
 import { fileURLToPath } from 'node:url'
 import { chromium, type BrowserContext, type Page } from 'playwright-core'
 import { afterAll, beforeAll, beforeEach } from 'vitest'
+import { devMailReply, type DevMail } from '../../shared/schema/api'
+
+export type { DevMail }
 
 export const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..')
 export const RESULTS_DIR = path.join(ROOT, 'test-results')
@@ -267,44 +270,31 @@ export function useBrowserSuite(options: { env?: Record<string, string> } = {}):
 export async function signIn(page: Page, baseUrl: string, who: { email: string; password: string }): Promise<void> {
   await page.goto(`${baseUrl}/sign-in`)
   await page.getByLabel('E-mail').fill(who.email)
-  await page.getByLabel('Password').fill(who.password)
+  await page.getByLabel('Password', { exact: true }).fill(who.password)
   await page.getByRole('button', { name: 'Sign in' }).click()
   await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'), { timeout: 15_000 })
 }
 
-export interface DevMail {
-  to: string
-  subject: string
-  text: string
-  links: string[]
-}
-
-/** The developer mailbox (`/dev/mail.json`), newest last, normalised to `{ to, subject, text, links }`. */
+/** The developer mailbox (`/dev/mail.json`), newest first, checked against the shared reply schema. */
 export async function readMailbox(baseUrl: string): Promise<DevMail[]> {
   const res = await fetch(`${baseUrl}/dev/mail.json`)
   if (!res.ok) throw new Error(`GET /dev/mail.json answered ${res.status}`)
-  const body = (await res.json()) as unknown
-  const list = Array.isArray(body) ? body : ((body as { messages?: unknown[]; mails?: unknown[] }).messages ?? (body as { mails?: unknown[] }).mails ?? [])
-  return list.map((raw) => {
-    const m = raw as Record<string, unknown>
-    const toField = m.to
-    const to = Array.isArray(toField) ? toField.join(', ') : String(toField ?? '')
-    const text = String(m.text ?? '')
-    const html = String(m.html ?? '')
-    const listed = Array.isArray(m.links) ? m.links.map(String) : []
-    const found = `${text}\n${html}`.match(/https?:\/\/[^\s"'<>]+/g) ?? []
-    return { to, subject: String(m.subject ?? ''), text, links: [...new Set([...listed, ...found])] }
-  })
+  return devMailReply.parse(await res.json()).messages
 }
 
-/** Polls the developer mailbox until a message to `to` whose subject or text matches arrives. */
+/** Polls the developer mailbox until a message to `to` whose subject or text matches arrives; returns the newest. */
 export async function waitForMail(baseUrl: string, to: string, match: RegExp = /./, timeoutMs = 15_000): Promise<DevMail> {
   const until = Date.now() + timeoutMs
   for (;;) {
     const mails = await readMailbox(baseUrl)
-    const found = mails.filter((m) => m.to.toLowerCase().includes(to.toLowerCase()) && (match.test(m.subject) || match.test(m.text)))
-    if (found.length) return found[found.length - 1]!
-    if (Date.now() > until) throw new Error(`no mail to ${to} matching ${match} arrived in ${timeoutMs} ms; the mailbox holds: ${mails.map((m) => `${m.to}: ${m.subject}`).join('; ') || 'nothing'}`)
+    const found = mails.find(
+      (m) => m.to.some((t) => t.toLowerCase().includes(to.toLowerCase())) && (match.test(m.subject) || match.test(m.text)),
+    )
+    if (found) return found
+    if (Date.now() > until)
+      throw new Error(
+        `no mail to ${to} matching ${match} arrived in ${timeoutMs} ms; the mailbox holds: ${mails.map((m) => `${m.to.join(', ')}: ${m.subject}`).join('; ') || 'nothing'}`,
+      )
     await new Promise((r) => setTimeout(r, 250))
   }
 }
