@@ -116,7 +116,7 @@ export interface TestUser {
 }
 
 /** Inserts a user directly (no mail round trip) and signs a session for it. */
-export async function createTestUser(t: TestApp, o: { email?: string; name?: string } = {}): Promise<TestUser> {
+export async function createTestUser(t: Pick<TestApp, 'db' | 'secret'>, o: { email?: string; name?: string } = {}): Promise<TestUser> {
   passwordHash ??= hashPassword({ argon2: TEST_ARGON2 }, TEST_PASSWORD)
   const id = newId()
   const email = (o.email ?? `user-${id.slice(0, 8)}@lab.example`).toLowerCase()
@@ -191,7 +191,7 @@ export interface SeededLab {
 }
 
 /** A lab with one member of each role (plus a second viewer), an outsider with an account, and two sheets. */
-export async function seedLab(t: TestApp, labName = 'Sample Lab'): Promise<SeededLab> {
+export async function seedLab(t: Pick<TestApp, 'db' | 'secret' | 'deps'>, labName = 'Sample Lab'): Promise<SeededLab> {
   const roles: Role[] = ['owner', 'editor', 'reviewer', 'viewer']
   const made = {} as Record<Role | 'outsider', TestUser>
   for (const r of [...roles, 'outsider' as const]) made[r] = await createTestUser(t, { email: `${r}@${labName.toLowerCase().replace(/\W+/g, '-')}.example`, name: `The ${r}` })

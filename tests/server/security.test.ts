@@ -1,0 +1,102 @@
+/** Cross-cutting guards: the CSRF rule, helmet headers, rate limits, the error shape and the JSON 404. */
+import { describe, expect, it } from 'vitest'
+import request from 'supertest'
+import { call, createTestUser, makeTestApp, seedLab } from '../utils/server'
+
+describe('state-changing requests without a JSON body or the X-Penumbra-Request header', () => {
+  it('POST /api/labs as a cross-site form (urlencoded) answers 403 and creates nothing', async () => {
+    const t = makeTestApp()
+    const u = await createTestUser(t)
+    const res = await request(t.app).post('/api/labs').set('Cookie', u.cookie).type('form').send('name=Evil')
+    expect(res.status).toBe(403)
+    expect(res.body.error).toBe('This request needs a JSON body or the X-Penumbra-Request header.')
+    expect((await call(t, u.cookie).get('/api/labs')).body.labs).toEqual([])
+  })
+
+  it('DELETE /api/sheets/:sheetId without the header answers 403; with it, 204', async () => {
+    const t = makeTestApp()
+    const lab = await seedLab(t)
+    expect((await request(t.app).delete(`/api/sheets/${lab.ownerSheetId}`).set('Cookie', lab.users.owner.cookie)).status).toBe(403)
+    expect((await call(t, lab.users.owner.cookie).del(`/api/sheets/${lab.ownerSheetId}`)).status).toBe(204)
+  })
+
+  it('POST /api/auth/sign-out as a text/plain form answers 403 and keeps the session', async () => {
+    const t = makeTestApp()
+    const u = await createTestUser(t)
+    expect((await request(t.app).post('/api/auth/sign-out').set('Cookie', u.cookie).set('Content-Type', 'text/plain').send('x')).status).toBe(403)
+    expect((await call(t, u.cookie).get('/api/auth/me')).status).toBe(200)
+  })
+
+  it('a JSON body alone is enough (no header needed)', async () => {
+    const t = makeTestApp()
+    const u = await createTestUser(t)
+    const res = await request(t.app).post('/api/labs').set('Cookie', u.cookie).set('Content-Type', 'application/json').send('{"name":"Lab"}')
+    expect(res.status).toBe(201)
+  })
+})
+
+describe('headers', () => {
+  it('GET /api/health carries helmet headers and no x-powered-by', async () => {
+    const t = makeTestApp()
+    const res = await request(t.app).get('/api/health')
+    expect(res.body).toEqual({ ok: true, version: expect.any(String) })
+    expect(res.headers['x-content-type-options']).toBe('nosniff')
+    expect(res.headers['x-frame-options']).toBe('SAMEORIGIN')
+    expect(res.headers['content-security-policy']).toContain("script-src 'self'")
+    expect(res.headers['x-powered-by']).toBeUndefined()
+    expect(res.headers['cache-control']).toBe('no-store')
+  })
+})
+
+describe('errors', () => {
+  it('an unknown API route answers a JSON 404', async () => {
+    const t = makeTestApp()
+    const res = await request(t.app).get('/api/nothing/here')
+    expect(res.status).toBe(404)
+    expect(res.body).toEqual({ error: 'There is nothing at GET /nothing/here.' })
+    expect((await request(t.app).get('/not-a-page')).body.error).toMatch(/nothing at GET \/not-a-page/)
+  })
+
+  it('a JSON array body where an object is expected answers 400 with the root path', async () => {
+    const t = makeTestApp()
+    const u = await createTestUser(t)
+    const res = await call(t, u.cookie).post('/api/labs', [1, 2])
+    expect(res.status).toBe(400)
+    expect(res.body.issues).toEqual([{ path: '', message: expect.any(String) }])
+  })
+})
+
+describe('rate limits', () => {
+  const tight = { windowMs: 60_000, limit: 3 }
+
+  it('POST /api/auth/sign-in answers 429 after too many failures, even for the right password', async () => {
+    const t = makeTestApp({ config: { limits: { signIn: tight, mail: tight, token: tight } } })
+    const u = await createTestUser(t)
+    for (let i = 0; i < 3; i++) expect((await call(t).post('/api/auth/sign-in', { email: u.email, password: 'wrong password' })).status).toBe(401)
+    const blocked = await call(t).post('/api/auth/sign-in', { email: u.email, password: u.password })
+    expect(blocked.status).toBe(429)
+    expect(blocked.body.error).toBe('Too many failed sign-ins from this address. Wait 1 minute and try again.')
+    expect(blocked.headers.ratelimit).toMatch(/r=0/)
+  })
+
+  it('POST /api/auth/sign-in does not count successful sign-ins', async () => {
+    const t = makeTestApp({ config: { limits: { signIn: tight, mail: tight, token: tight } } })
+    const u = await createTestUser(t)
+    for (let i = 0; i < 6; i++) expect((await call(t).post('/api/auth/sign-in', { email: u.email, password: u.password })).status).toBe(200)
+  })
+
+  it('POST /api/auth/reset-request answers 429 after the limit and sends no more mail', async () => {
+    const t = makeTestApp({ config: { limits: { signIn: tight, mail: tight, token: tight } } })
+    const u = await createTestUser(t)
+    for (let i = 0; i < 3; i++) expect((await call(t).post('/api/auth/reset-request', { email: u.email })).status).toBe(202)
+    expect((await call(t).post('/api/auth/reset-request', { email: u.email })).status).toBe(429)
+    expect((await call(t).post('/api/auth/sign-up', { email: 'x@lab.example', name: 'X', password: 'long enough one' })).status).toBe(429)
+    expect(t.mailer.to(u.email)).toHaveLength(3)
+  })
+
+  it('POST /api/auth/reset answers 429 after too many wrong tokens', async () => {
+    const t = makeTestApp({ config: { limits: { signIn: tight, mail: tight, token: tight } } })
+    for (let i = 0; i < 3; i++) expect((await call(t).post('/api/auth/reset', { token: `${'z'.repeat(42)}${i}`, password: 'the new password' })).status).toBe(404)
+    expect((await call(t).post('/api/auth/reset', { token: 'z'.repeat(43), password: 'the new password' })).status).toBe(429)
+  })
+})
