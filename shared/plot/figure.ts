@@ -44,6 +44,8 @@ export interface FigureModel {
   /** Marks on the x axis (or on y when only y is spectral). */
   marks: Mark[]
   markAxis: 'x' | 'y'
+  /** Shaded x intervals in the x axis unit (a fit window), each with a short label. */
+  regions: { from: number; to: number; label: string }[]
   /**
    * A sweep drawn as a family of curves (array outputs; curves already in the axes' units) or as a map (x in the x
    * axis unit, rows = parameter values on y, z in the output's unit). Scalar sweep outputs are ordinary `series`.
@@ -290,5 +292,5 @@ export function buildFigure(cell: FigureCell, results: Results): FigureModel {
     else messages.push(m.message)
   }
 
-  return { title: cell.title, series, x, y, band, marks, markAxis, sweep, messages }
+  return { title: cell.title, series, x, y, band, marks, markAxis, regions: [], sweep, messages }
 }

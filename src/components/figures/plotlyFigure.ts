@@ -1,0 +1,305 @@
+/**
+ * Maps a figure's drawing model (shared/plot) onto plotly traces and layout in Penumbra's look: paper plot area,
+ * a night-blue frame, the warm accent for band-gap marks and fitted lines, Fira Sans text and Fira Mono numbers.
+ */
+import type { Data, Layout, Shape } from 'plotly.js-dist-min'
+import type { PlotSpec } from '@/composables/usePlot'
+import type { FigureModel } from '../../../shared/plot/figure'
+import { rampColor, rampScale } from '../../../shared/plot/palette'
+import { formatNumber } from '../../../shared/plot/format'
+import { prettyUnit } from '../../../shared/plot/units'
+
+export interface Theme {
+  paper: string
+  surface: string
+  night: string
+  accent: string
+  accentInk: string
+  ink: string
+  muted: string
+  line: string
+  fontSans: string
+  fontMono: string
+}
+
+/** Fallbacks equal to the shell's theme.css, for exports and tests without the stylesheet. */
+export const DEFAULT_THEME: Theme = {
+  paper: '#f6f3ec',
+  surface: '#fffdf9',
+  night: '#15223f',
+  accent: '#d2702a',
+  accentInk: '#a9521a',
+  ink: '#1c2331',
+  muted: '#5b6474',
+  line: '#e2ddd2',
+  fontSans: "'Fira Sans', system-ui, sans-serif",
+  fontMono: "'Fira Mono', ui-monospace, monospace",
+}
+
+/** The `--pn-*` theme variables as seen from an element (plotly needs concrete colours, not CSS variables). */
+export function readTheme(el?: Element | null): Theme {
+  if (!el || typeof getComputedStyle === 'undefined') return DEFAULT_THEME
+  const css = getComputedStyle(el)
+  const get = (name: string, fallback: string) => css.getPropertyValue(name).trim() || fallback
+  return {
+    paper: get('--pn-paper', DEFAULT_THEME.paper),
+    surface: get('--pn-surface', DEFAULT_THEME.surface),
+    night: get('--pn-night', DEFAULT_THEME.night),
+    accent: get('--pn-accent', DEFAULT_THEME.accent),
+    accentInk: get('--pn-accent-ink', DEFAULT_THEME.accentInk),
+    ink: get('--pn-ink', DEFAULT_THEME.ink),
+    muted: get('--pn-muted', DEFAULT_THEME.muted),
+    line: get('--pn-line', DEFAULT_THEME.line),
+    fontSans: get('--pn-font-sans', DEFAULT_THEME.fontSans),
+    fontMono: get('--pn-font-mono', DEFAULT_THEME.fontMono),
+  }
+}
+
+/** NaN and ±Infinity as null: plotly's gap marker. */
+function gaps(values: readonly number[]): (number | null)[] {
+  return values.map((v) => (Number.isFinite(v) ? v : null))
+}
+
+function range(r: [number, number] | undefined, log: boolean): [number, number] | undefined {
+  if (!r) return undefined
+  if (!log) return r
+  if (!(r[0] > 0 && r[1] > 0)) return undefined
+  return [Math.log10(r[0]), Math.log10(r[1])]
+}
+
+function axis(theme: Theme, title: string, scale: 'linear' | 'log', r: [number, number] | undefined) {
+  return {
+    title: { text: title, font: { size: 12.5, color: theme.ink }, standoff: 8 },
+    type: scale,
+    range: range(r, scale === 'log'),
+    autorange: r ? false : true,
+    showline: true,
+    linecolor: theme.night,
+    linewidth: 1.2,
+    mirror: true,
+    ticks: 'outside' as const,
+    tickcolor: theme.night,
+    ticklen: 4,
+    tickfont: { family: theme.fontMono, size: 11, color: theme.ink },
+    showgrid: true,
+    gridcolor: theme.line,
+    gridwidth: 1,
+    zeroline: false,
+    exponentformat: 'power' as const,
+    automargin: true,
+  }
+}
+
+export interface RenderOptions {
+  height?: number
+  /** Show the title inside the figure (exports want it; a card that shows the title itself does not). */
+  showTitle?: boolean
+}
+
+/** The plotly traces and layout for a drawing model. */
+export function figureToPlotly(model: FigureModel, theme: Theme = DEFAULT_THEME, opts: RenderOptions = {}): PlotSpec {
+  const data: Data[] = []
+  const xu = prettyUnit(model.x.unit)
+  const yu = prettyUnit(model.y.unit)
+  const hover = (name: string) =>
+    `<b>${escapeHtml(name)}</b><br>%{x:.5~g}${xu ? ` ${xu}` : ''}<br>%{y:.5~g}${yu ? ` ${yu}` : ''}<extra></extra>`
+
+  for (const s of model.series) {
+    const color = s.color === 'accent' ? theme.accent : s.color
+    data.push({
+      type: 'scatter',
+      mode: s.style === 'points' ? 'markers' : s.style === 'line+points' ? 'lines+markers' : 'lines',
+      name: s.name,
+      x: gaps(s.x),
+      y: gaps(s.y),
+      line: { color, width: s.color === 'accent' ? 2 : 1.8 },
+      marker: { color, size: s.style === 'points' ? 5 : 4, line: { width: 0 } },
+      connectgaps: false,
+      hovertemplate: hover(s.name),
+    })
+  }
+
+  let colorbarTitle: string | undefined
+  if (model.sweep?.view === 'curves') {
+    const f = model.sweep.family
+    const pu = prettyUnit(f.parameterUnit)
+    const label = model.sweep.parameterLabel
+    const log = model.sweep.logParameter
+    const finite = f.parameter.filter(Number.isFinite)
+    const lo = Math.min(...finite)
+    const hi = Math.max(...finite)
+    const t = (p: number) => (hi > lo ? (log ? Math.log(p / lo) / Math.log(hi / lo) : (p - lo) / (hi - lo)) : 0)
+    const legend = f.curves.length <= 8
+    f.curves.forEach((c) => {
+      const name = `${label} = ${formatNumber(c.parameter)}${pu ? ` ${pu}` : ''}`
+      data.push({
+        type: 'scatter',
+        mode: 'lines',
+        name,
+        x: gaps(c.x),
+        y: gaps(c.y),
+        line: { color: rampColor(t(c.parameter)), width: 1.5 },
+        showlegend: legend,
+        hovertemplate: hover(name),
+      })
+    })
+    if (!legend && f.curves.length > 0) {
+      colorbarTitle = `${label}${pu ? ` (${pu})` : ''}`
+      // an invisible trace that only carries the colour bar of the parameter
+      data.push({
+        type: 'scatter',
+        mode: 'markers',
+        x: [null],
+        y: [null],
+        showlegend: false,
+        hoverinfo: 'skip',
+        marker: {
+          color: [log ? Math.log10(lo) : lo, log ? Math.log10(hi) : hi],
+          colorscale: rampScale(),
+          cmin: log ? Math.log10(lo) : lo,
+          cmax: log ? Math.log10(hi) : hi,
+          showscale: true,
+          colorbar: colorbarSpec(theme, colorbarTitle, log, lo, hi),
+        },
+      })
+    }
+  } else if (model.sweep?.view === 'map') {
+    const m = model.sweep.map
+    data.push({
+      type: 'heatmap',
+      x: gaps(m.x),
+      y: gaps(m.y),
+      z: m.z.map(gaps),
+      colorscale: rampScale(),
+      colorbar: colorbarSpec(theme, model.sweep.zTitle, false, 0, 0),
+      hovertemplate: `%{x:.5~g}${xu ? ` ${xu}` : ''}<br>%{y:.5~g}${yu ? ` ${yu}` : ''}<br><b>%{z:.4~g}</b>${model.sweep.zUnit ? ` ${escapeHtml(prettyUnit(model.sweep.zUnit))}` : ''}<extra></extra>`,
+    })
+  }
+
+  const shapes: Partial<Shape>[] = []
+  const vertical = model.markAxis === 'x'
+  for (const seg of model.band ?? [])
+    shapes.push(
+      {
+        type: 'rect',
+        xref: 'x',
+        yref: 'paper',
+        x0: seg.from,
+        x1: seg.to,
+        y0: 0,
+        y1: 1,
+        fillcolor: seg.color,
+        opacity: 0.13,
+        line: { width: 0 },
+        layer: 'below',
+      },
+      // a solid strip along the bottom edge, like the brand mark, so the band reads even where curves cover it
+      {
+        type: 'rect',
+        xref: 'x',
+        yref: 'paper',
+        x0: seg.from,
+        x1: seg.to,
+        y0: 0,
+        y1: 0.018,
+        fillcolor: seg.color,
+        opacity: 0.95,
+        line: { width: 0 },
+        layer: 'above',
+      },
+    )
+  for (const r of model.regions)
+    shapes.push({
+      type: 'rect',
+      xref: 'x',
+      yref: 'paper',
+      x0: r.from,
+      x1: r.to,
+      y0: 0,
+      y1: 1,
+      fillcolor: theme.night,
+      opacity: 0.07,
+      line: { width: 0 },
+      layer: 'below',
+      label: { text: r.label, textposition: 'top center', font: { size: 10.5, color: theme.muted, family: theme.fontSans } },
+    })
+  for (const mark of model.marks) {
+    if (mark.band)
+      shapes.push({
+        type: 'rect',
+        xref: vertical ? 'x' : 'paper',
+        yref: vertical ? 'paper' : 'y',
+        ...(vertical ? { x0: mark.band[0], x1: mark.band[1], y0: 0, y1: 1 } : { x0: 0, x1: 1, y0: mark.band[0], y1: mark.band[1] }),
+        fillcolor: theme.accent,
+        opacity: 0.16,
+        line: { width: 0 },
+        layer: 'below',
+      })
+    shapes.push({
+      type: 'line',
+      xref: vertical ? 'x' : 'paper',
+      yref: vertical ? 'paper' : 'y',
+      ...(vertical ? { x0: mark.at, x1: mark.at, y0: 0, y1: 1 } : { x0: 0, x1: 1, y0: mark.at, y1: mark.at }),
+      line: { color: theme.accent, width: 1.6, dash: 'dash' },
+      layer: 'above',
+      label: {
+        text: escapeHtml(mark.label),
+        textposition: 'end',
+        textangle: vertical ? -90 : 0,
+        xanchor: vertical ? 'right' : 'auto',
+        padding: 4,
+        font: { size: 11, color: theme.accentInk, family: theme.fontSans },
+      },
+    })
+  }
+
+  const title = opts.showTitle && model.title ? model.title : undefined
+  const legendShown = data.filter((d) => (d as { showlegend?: boolean }).showlegend !== false).length > 1
+  const layout: Partial<Layout> = {
+    height: opts.height ?? 340,
+    autosize: true,
+    paper_bgcolor: theme.surface,
+    plot_bgcolor: theme.paper,
+    font: { family: theme.fontSans, size: 12, color: theme.ink },
+    title: title ? { text: escapeHtml(title), x: 0.01, xanchor: 'left', font: { size: 14, color: theme.night } } : undefined,
+    margin: { l: 64, r: colorbarTitle || model.sweep?.view === 'map' ? 24 : 18, t: title ? 44 : legendShown ? 34 : 14, b: 50, pad: 0 },
+    xaxis: axis(theme, model.x.title, model.x.scale, model.x.range),
+    yaxis: axis(theme, model.y.title, model.y.scale, model.y.range),
+    showlegend: legendShown,
+    legend: {
+      orientation: 'h',
+      x: 0,
+      xanchor: 'left',
+      y: 1.02,
+      yanchor: 'bottom',
+      bgcolor: 'rgba(0,0,0,0)',
+      font: { size: 11.5, color: theme.ink },
+    },
+    hovermode: 'closest',
+    hoverlabel: { bgcolor: theme.surface, bordercolor: theme.night, font: { family: theme.fontMono, size: 11.5, color: theme.ink } },
+    shapes,
+  }
+  return { data, layout, config: { displayModeBar: 'hover' } }
+}
+
+function colorbarSpec(theme: Theme, title: string, log: boolean, lo: number, hi: number) {
+  const bar: Record<string, unknown> = {
+    title: { text: escapeHtml(title), side: 'right', font: { size: 12, color: theme.ink } },
+    thickness: 12,
+    outlinecolor: theme.night,
+    outlinewidth: 1,
+    tickfont: { family: theme.fontMono, size: 10.5, color: theme.ink },
+  }
+  if (log && lo > 0 && hi > 0) {
+    const ticks: number[] = []
+    for (let e = Math.ceil(Math.log10(lo)); e <= Math.floor(Math.log10(hi)); e++) ticks.push(e)
+    bar.tickvals = ticks
+    bar.ticktext = ticks.map((e) => formatNumber(10 ** e))
+  }
+  return bar
+}
+
+/** Plotly renders labels as HTML-ish text: user names and labels must not inject markup. */
+export function escapeHtml(s: string): string {
+  return s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;')
+}

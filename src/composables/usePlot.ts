@@ -1,0 +1,159 @@
+/**
+ * Draws a figure with plotly.js into an element. The library (a 4.6 MB chunk) is loaded on first use with a dynamic
+ * import, shared by every figure on the page; later changes of the figure go through `Plotly.react`, which only
+ * redraws what changed. Follows the element's size, and purges the plot when the owning scope ends.
+ *
+ * Returns `state` ('loading' | 'ready' | 'error'), `error` (a plain sentence), and image export.
+ */
+import { onScopeDispose, ref, shallowRef, watch, type Ref } from 'vue'
+import type { Config, Data, Layout } from 'plotly.js-dist-min'
+
+type PlotlyModule = typeof import('plotly.js-dist-min').default
+
+export interface PlotSpec {
+  data: Data[]
+  layout: Partial<Layout>
+  config?: Partial<Config>
+}
+
+export type PlotState = 'loading' | 'ready' | 'error'
+
+export interface ExportOptions {
+  width?: number
+  height?: number
+  layout?: Partial<Layout>
+}
+
+let loading: Promise<PlotlyModule> | null = null
+
+/** The plotly module, loaded once per page. */
+export function loadPlotly(): Promise<PlotlyModule> {
+  if (!loading) {
+    loading = import('plotly.js-dist-min').then((m) => ((m as { default?: PlotlyModule }).default ?? (m as unknown as PlotlyModule)))
+    loading.catch(() => {
+      loading = null // a failed chunk load can be retried on the next figure
+    })
+  }
+  return loading
+}
+
+const BASE_CONFIG: Partial<Config> = {
+  displaylogo: false,
+  responsive: false, // we follow the element with our own ResizeObserver
+  modeBarButtonsToRemove: ['toImage', 'select2d', 'lasso2d'],
+}
+
+function message(err: unknown): string {
+  const text = err instanceof Error ? err.message : String(err)
+  return text.replace(/[.\s]+$/, '')
+}
+
+export function usePlot(target: Ref<HTMLElement | null | undefined>, spec: Ref<PlotSpec | null>) {
+  const state = ref<PlotState>('loading')
+  const error = ref<string | null>(null)
+  const plotly = shallowRef<PlotlyModule | null>(null)
+  let disposed = false
+  let drawn: HTMLElement | null = null
+  let observer: ResizeObserver | null = null
+  let frame = 0
+  let rendering: Promise<void> = Promise.resolve()
+
+  loadPlotly().then(
+    (m) => {
+      if (disposed) return
+      plotly.value = m
+    },
+    (err) => {
+      if (disposed) return
+      state.value = 'error'
+      error.value = `The charting library could not be loaded (${message(err)}). Reload the page to try again.`
+    },
+  )
+
+  function observe(el: HTMLElement) {
+    observer?.disconnect()
+    if (typeof ResizeObserver === 'undefined') return
+    observer = new ResizeObserver(() => {
+      cancelAnimationFrame(frame)
+      frame = requestAnimationFrame(() => {
+        const P = plotly.value
+        if (P && drawn && drawn.isConnected && drawn.clientWidth > 0) P.Plots.resize(drawn)
+      })
+    })
+    observer.observe(el)
+  }
+
+  function render() {
+    const P = plotly.value
+    const el = target.value
+    const s = spec.value
+    if (!P || !el || !s || disposed) return
+    rendering = rendering.then(async () => {
+      if (disposed) return
+      try {
+        if (drawn && drawn !== el) {
+          P.purge(drawn)
+          drawn = null
+        }
+        await P.react(el, s.data, s.layout, { ...BASE_CONFIG, ...s.config })
+        if (drawn !== el) observe(el)
+        drawn = el
+        state.value = 'ready'
+        error.value = null
+      } catch (err) {
+        state.value = 'error'
+        error.value = `This figure could not be drawn: ${message(err)}.`
+      }
+    })
+  }
+
+  watch([plotly, target, spec], render, { flush: 'post' })
+
+  async function ready(): Promise<{ P: PlotlyModule; el: HTMLElement }> {
+    await rendering
+    const P = plotly.value
+    if (!P || !drawn) throw new Error('the figure is not drawn yet')
+    return { P, el: drawn }
+  }
+
+  function exportFigure(size?: ExportOptions): { data: Data[]; layout: Partial<Layout>; config: Partial<Config> } | null {
+    const s = spec.value
+    const el = drawn
+    if (!s || !el) return null
+    const width = size?.width ?? Math.max(480, el.clientWidth)
+    const height = size?.height ?? Math.max(320, el.clientHeight)
+    return { data: s.data, layout: { ...s.layout, ...size?.layout, width, height }, config: { ...BASE_CONFIG, ...s.config, staticPlot: true } }
+  }
+
+  /**
+   * Saves the figure as a PNG (2× pixel density) or SVG file named `filename` (without extension). `layout` overrides
+   * parts of the on-screen layout for the file (e.g. a title the card shows outside the plot).
+   */
+  async function downloadImage(format: 'png' | 'svg', filename: string, size?: ExportOptions): Promise<void> {
+    await ready()
+    const P = plotly.value!
+    const figure = exportFigure(size)
+    if (!figure) throw new Error('the figure is not drawn yet')
+    await P.downloadImage(figure, { format, filename, width: figure.layout.width, height: figure.layout.height, scale: format === 'png' ? 2 : 1 })
+  }
+
+  /** The figure as a data URL (PNG or SVG), e.g. for a report. */
+  async function toImage(format: 'png' | 'svg', size?: ExportOptions): Promise<string> {
+    await ready()
+    const P = plotly.value!
+    const figure = exportFigure(size)
+    if (!figure) throw new Error('the figure is not drawn yet')
+    return P.toImage(figure, { format, width: figure.layout.width, height: figure.layout.height, scale: format === 'png' ? 2 : 1 })
+  }
+
+  onScopeDispose(() => {
+    disposed = true
+    cancelAnimationFrame(frame)
+    observer?.disconnect()
+    observer = null
+    if (drawn && plotly.value) plotly.value.purge(drawn)
+    drawn = null
+  })
+
+  return { state, error, downloadImage, toImage, plotly }
+}
