@@ -16,7 +16,7 @@ import { tmmNormal } from './tmm'
  * Source: characteristic-matrix method, H. A. Macleod, Thin-Film Optical Filters, 4th ed. (2010), ch. 2; for k = 0
  * equal to the Airy formula of Born & Wolf, Principles of Optics, §7.6.
  *
- * @example filmReflectance(600e-9, 2, 0, 75e-9, 1.5) (quarter wave, n² > ns) → ((1.5 − 4)/(1.5 + 4))² = 0.206612
+ * @example filmReflectance(600e-9, 2, 0, 75e-9, 1.5) (quarter wave, n² > ns) → ((1.5 − 4)/(1.5 + 4))² = 0.2066116
  */
 export function filmReflectance(lambda: Num, n: Num, k: Num, d: Num, nSub: Num): Num {
   return tmmNormal(lambda, [{ n, k, d }], 1, nSub).R

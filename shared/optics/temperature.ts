@@ -13,7 +13,7 @@ import { map4, check, nonNegative } from './broadcast'
  * L. R. Ram-Mohan, J. Appl. Phys. 89, 5815 (2001).
  *
  * @example varshni(300, 1.519 eV, 0.5405 meV/K, 204) (GaAs, Vurgaftman 2001) → 1.519 − 0.5405e-3·300²/504 eV
- *   = 1.42248 eV (2.27903e-19 J)
+ *   = 1.42248 eV (2.279068e-19 J)
  */
 export function varshni(T: Num, Eg0: Num, a: Num, b: Num): Num {
   check('varshni', 'the temperature T', T, nonNegative, 'zero or positive (kelvin)')
