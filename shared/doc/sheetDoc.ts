@@ -7,10 +7,18 @@
  * one path.
  */
 import * as Y from 'yjs'
-import { SHEET_FORMAT, SHEET_VERSION, type Cell, type SheetCell, type SheetFile } from '../schema/sheet'
+import { SHEET_FORMAT, SHEET_VERSION, type Cell, type CellKind, type DatasetColumn, type SheetCell, type SheetFile } from '../schema/sheet'
 
 /** Fields held as Y.Text for concurrent typing. */
 export const TEXT_FIELDS = ['source', 'text'] as const
+
+/** Which field of which kind is a Y.Text: a formula's source and a note's text (a spectrum's `source` is a plain label). */
+const TEXT_FIELD_OF_KIND: Partial<Record<CellKind, (typeof TEXT_FIELDS)[number]>> = { formula: 'source', note: 'text' }
+
+/** True when `key` of a cell of `kind` is held as a Y.Text. */
+export function isTextField(kind: unknown, key: string): boolean {
+  return typeof kind === 'string' && TEXT_FIELD_OF_KIND[kind as CellKind] === key
+}
 
 export type CellMap = Y.Map<unknown>
 
@@ -37,7 +45,7 @@ export function cellToMap(cell: Cell, id: string = cell.id ?? newCellId()): Cell
   map.set('id', id)
   for (const [key, value] of Object.entries(cell)) {
     if (key === 'id' || value === undefined) continue
-    if ((TEXT_FIELDS as readonly string[]).includes(key) && typeof value === 'string') map.set(key, new Y.Text(value))
+    if (isTextField(cell.kind, key) && typeof value === 'string') map.set(key, new Y.Text(value))
     else map.set(key, structuredCloneJson(value))
   }
   return map
@@ -63,14 +71,38 @@ export function sheetFileToDoc(file: SheetFile, doc: Y.Doc = new Y.Doc()): Y.Doc
   return doc
 }
 
-/** The sheet file a document holds (every cell with its id). */
-export function docToSheetFile(doc: Y.Doc): SheetFile & { cells: SheetCell[] } {
+export interface ExportOptions {
+  /**
+   * The columns of a stored dataset, for spectrum cells that point at one (`datasetId`): export inlines them so the
+   * file stands alone. Returning undefined keeps the cell's own `columns`.
+   */
+  datasetColumns?: (datasetId: string) => Record<string, DatasetColumn> | undefined
+}
+
+/**
+ * The sheet file a document holds (every cell with its id). Entries of `cells` that are not cell maps (a buggy or
+ * hostile client can push anything into a Y.Array) are skipped; a cell map without a string id gets `cell-<index>`.
+ */
+export function docToSheetFile(doc: Y.Doc, options: ExportOptions = {}): SheetFile & { cells: SheetCell[] } {
   const title = metaOf(doc).get('title')
+  const cells: SheetCell[] = []
+  cellsOf(doc)
+    .toArray()
+    .forEach((item, index) => {
+      if (!(item instanceof Y.Map)) return
+      const cell = mapToCell(item) as SheetCell & Record<string, unknown>
+      if (typeof cell.id !== 'string' || cell.id.length === 0) cell.id = `cell-${index}`
+      if (cell.kind === 'spectrum' && typeof cell.datasetId === 'string' && options.datasetColumns) {
+        const columns = options.datasetColumns(cell.datasetId)
+        if (columns) cell.columns = columns
+      }
+      cells.push(cell)
+    })
   return {
     format: SHEET_FORMAT,
     version: SHEET_VERSION,
     title: typeof title === 'string' && title.length > 0 ? title : 'Untitled sheet',
-    cells: cellsOf(doc).toArray().map(mapToCell),
+    cells,
   }
 }
 

@@ -123,7 +123,9 @@ export async function startCollabServer(lab: Lab, options: Partial<CollabOptions
 }
 
 /** A `ws` WebSocket class that sends the session cookie (y-websocket constructs it with url and protocols only). */
-export function cookieSocket(token: string | null, extraHeaders: Record<string, string> = {}): typeof WebSocket {
+export type CookieSocketClass = new (address: string | URL, protocols?: string | string[]) => WebSocket
+
+export function cookieSocket(token: string | null, extraHeaders: Record<string, string> = {}): CookieSocketClass {
   return class CookieWebSocket extends WebSocket {
     constructor(address: string | URL, protocols?: string | string[]) {
       super(address, protocols, { headers: { ...(token ? { Cookie: `${SESSION_COOKIE}=${token}` } : {}), ...extraHeaders } })
