@@ -102,7 +102,9 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
     log(`Seeded the demo lab with ${seeded.sheets.length} sheet(s).`)
   }
 
-  const collab = createCollab({ db: handle.db, secret, log: (m) => log(`collab: ${m}`) })
+  // behind a reverse proxy the browser's Origin is the public address, not the Host the proxy forwards
+  const allowedOrigins = env.PUBLIC_URL ? [new URL(env.PUBLIC_URL).origin] : undefined
+  const collab = createCollab({ db: handle.db, secret, allowedOrigins, log: (m) => log(`collab: ${m}`) })
   const hooks: AppHooks = {
     membershipChanged: (labId, userId) => collab.membershipChanged(labId, userId),
     sheetDeleted: (sheetId) => collab.sheetDeleted(sheetId),

@@ -2,10 +2,10 @@
  * Sheets: list, create (blank or from a sheet file), rename, delete, export. A sheet's cells live in its Yjs
  * document (services/documents.ts); the row here holds its title, lab, author and timestamps.
  */
-import { desc, eq } from 'drizzle-orm'
+import { desc, eq, sql } from 'drizzle-orm'
 import type { AppDeps } from '../deps'
 import { callHook } from '../deps'
-import { sheets, users, type Role } from '../db/schema'
+import { sheetStates, sheetUpdates, sheets, users, type Role } from '../db/schema'
 import { SHEET_FORMAT, SHEET_VERSION, withCellIds, type SheetFile } from '../../shared/schema/sheet'
 import { newCellId } from '../../shared/doc/sheetDoc'
 import type { Sheet, SheetSummary } from '../../shared/schema/api'
@@ -22,23 +22,36 @@ function authorName(deps: Pick<AppDeps, 'db'>, userId: string): string {
   return deps.db.select({ name: users.name }).from(users).where(eq(users.id, userId)).get()?.name ?? 'a former member'
 }
 
+/**
+ * When a sheet last changed: its row (create, rename) or its live document (the newest stored update, or the
+ * compaction that folded it in), so editing cells moves a sheet up the list without the live layer touching the row.
+ */
+const lastChange = sql<number>`max(${sheets.updatedAt},
+  coalesce((select max(su.created_at) from ${sheetUpdates} su where su.sheet_id = ${sheets.id}), 0),
+  coalesce((select ss.updated_at from ${sheetStates} ss where ss.sheet_id = ${sheets.id}), 0))`
+
+function withLastChange(deps: Pick<AppDeps, 'db'>, row: SheetRow): SheetRow {
+  const found = deps.db.select({ at: lastChange }).from(sheets).where(eq(sheets.id, row.id)).get()
+  return found ? { ...row, updatedAt: Number(found.at) } : row
+}
+
 function summary(row: SheetRow, author: string): SheetSummary {
   return { id: row.id, labId: row.labId, title: row.title, createdBy: row.createdBy, authorName: author, createdAt: row.createdAt, updatedAt: row.updatedAt }
 }
 
 export function sheetReply(deps: Pick<AppDeps, 'db'>, row: SheetRow, lab: Pick<LabRow, 'name'>, role: Role, userId: string): Sheet {
-  return { ...summary(row, authorName(deps, row.createdBy)), labName: lab.name, role, canDelete: canDeleteSheet(role, row, userId) }
+  return { ...summary(withLastChange(deps, row), authorName(deps, row.createdBy)), labName: lab.name, role, canDelete: canDeleteSheet(role, row, userId) }
 }
 
 export function listSheets(deps: Pick<AppDeps, 'db'>, labId: string): SheetSummary[] {
   return deps.db
-    .select({ sheet: sheets, author: users.name })
+    .select({ sheet: sheets, author: users.name, lastChange })
     .from(sheets)
     .leftJoin(users, eq(users.id, sheets.createdBy))
     .where(eq(sheets.labId, labId))
-    .orderBy(desc(sheets.updatedAt), desc(sheets.createdAt))
+    .orderBy(desc(lastChange), desc(sheets.createdAt))
     .all()
-    .map((r) => summary(r.sheet, r.author ?? 'a former member'))
+    .map((r) => summary({ ...r.sheet, updatedAt: Number(r.lastChange) }, r.author ?? 'a former member'))
 }
 
 export function blankSheetFile(title: string): SheetFile {

@@ -213,3 +213,16 @@ describe('POST /api/evaluate', () => {
     expect(res.body.issues).toEqual([{ path: 'cells[0].value', message: 'required' }])
   })
 })
+
+describe('GET /api/labs/:labId/sheets', () => {
+  it('orders by the last change, including live document updates stored by the collaboration layer', async () => {
+    const t = makeTestApp()
+    const lab = await seedLab(t)
+    const later = Date.now() + 60_000
+    t.handle.sqlite.prepare('insert into sheet_updates (sheet_id, "update", user_id, created_at) values (?, ?, ?, ?)').run(lab.editorSheetId, Buffer.from([0, 0]), lab.users.editor.id, later)
+    const list = (await call(t, lab.users.viewer.cookie).get(`/api/labs/${lab.labId}/sheets`)).body.sheets
+    expect(list.map((s: { id: string }) => s.id)).toEqual([lab.editorSheetId, lab.ownerSheetId])
+    expect(list[0].updatedAt).toBe(later)
+    expect((await call(t, lab.users.viewer.cookie).get(`/api/sheets/${lab.editorSheetId}`)).body.updatedAt).toBe(later)
+  })
+})
