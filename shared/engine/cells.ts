@@ -1,0 +1,208 @@
+/**
+ * Cells with their inputs and outputs: what each kind of cell reads (the names its formula or fields mention), how
+ * it is prepared once (parsed, compiled, units resolved) and how it computes its value from its inputs' values.
+ * Values are SI; showing them in display units is display.ts's job, turning states into result objects results.ts's.
+ */
+import type { SheetCell, ParameterCell, SpectrumCell } from '../schema/sheet'
+import type { Num } from '../optics/num'
+import { compileFormula, inferDims, type CompiledFormula, type InputDim } from './compile'
+import type { Dim } from './dimensions'
+import { dimName } from './dimensions'
+import { CellError, messageOf } from './errors'
+import type { Budget } from './limits'
+import { CONSTANTS, builtinName } from './names'
+import { parseUnit, formulaUnitTable } from './units'
+import { RecordValue, type Field, type Value } from './values'
+
+export interface PreparedCell {
+  cell: SheetCell
+  id: string
+  name?: string
+  kind: SheetCell['kind']
+  /** Names this cell reads, in order. */
+  reads: string[]
+  /** Names among `reads` that must be cells (fit and sweep references); formulas may also read constants and units. */
+  cellsOnly: boolean
+  compiled?: CompiledFormula
+  /** A problem found while preparing (syntax, unit): the cell is an error whatever its inputs. */
+  problem?: string
+  /** Warnings known before evaluation (a name shadowing a unit or constant). */
+  staticWarnings: string[]
+}
+
+export interface SweepTable {
+  parameter: number[]
+  outputs: Record<string, (number | number[])[]>
+}
+
+export interface CellState {
+  status: 'ok' | 'error' | 'blocked'
+  /** SI value a formula can read: a Num, or a record for spectra and fits. */
+  value?: Value
+  /** Dimension of a Num value, null when unknown. */
+  dim: Dim | null
+  warnings: string[]
+  error?: string
+  /** Fit cells: the result object in display units; sweep cells: the table. */
+  shown?: Record<string, unknown> | SweepTable
+  /** Fit and sweep cells: the unit their shown numbers are in. */
+  unit?: string
+}
+
+/** What evaluating one cell may ask of the sheet around it. */
+export interface Env {
+  budget: Budget
+  /** The cell a name refers to in this sheet, if any. */
+  cellNamed(name: string): PreparedCell | undefined
+  /** Current value of a cell (an override during sweeps and model fits). */
+  valueOf(id: string): Value | undefined
+  stateOf(id: string): CellState | undefined
+  /** Cells between `from` (exclusive) and `to` (inclusive), in evaluation order. */
+  chain(from: readonly string[], to: readonly string[]): string[]
+  /** Evaluates the chain's cells from the overrides, writing every computed value into `overrides`. */
+  runChain(chain: readonly string[], overrides: Map<string, Value>): void
+  progress(fraction: number): void
+}
+
+const SHADOW_UNITS = new Set(formulaUnitTable().keys())
+
+/** Parses, compiles and inspects a cell once; nothing here depends on other cells. */
+export function prepareCell(cell: SheetCell): PreparedCell {
+  const p: PreparedCell = { cell, id: cell.id, name: cell.name, kind: cell.kind, reads: [], cellsOnly: true, staticWarnings: [] }
+  if (cell.name) {
+    const c = CONSTANTS.get(cell.name)
+    if (c) p.staticWarnings.push(`the name ${cell.name} shadows the built-in constant ${cell.name} (${c.doc}) in this sheet's formulas`)
+    else if (SHADOW_UNITS.has(cell.name))
+      p.staticWarnings.push(`the name ${cell.name} shadows the unit ${cell.name} in this sheet's formulas`)
+  }
+  try {
+    switch (cell.kind) {
+      case 'formula':
+        p.compiled = compileFormula(cell.source)
+        p.reads = p.compiled.names
+        p.cellsOnly = false
+        break
+      case 'parameter':
+        checkUnit(cell.unit)
+        break
+      case 'spectrum':
+        for (const [col, c] of Object.entries(cell.columns)) checkUnit(c.unit, `column ${col}`)
+        break
+      case 'fit': {
+        const names = [cell.x, cell.y]
+        if (cell.method === 'model') {
+          if (!cell.model) throw new CellError('a model fit needs "model": the formula cell to fit', 'input')
+          if (!cell.parameters?.length) throw new CellError('a model fit needs at least one free parameter in "parameters"', 'input')
+          names.push(cell.model, ...cell.parameters.map((q) => q.name))
+        }
+        if (cell.unit) checkUnit(cell.unit, 'fit unit')
+        p.reads = [...new Set(names)]
+        break
+      }
+      case 'sweep':
+        if (cell.unit) checkUnit(cell.unit, 'sweep unit')
+        if (cell.scale === 'log' && (cell.from <= 0 || cell.to <= 0 || Math.sign(cell.from) !== Math.sign(cell.to)))
+          throw new CellError('a log sweep needs from and to of the same sign, non-zero', 'input')
+        p.reads = [...new Set([cell.parameter, ...cell.outputs])]
+        break
+      default:
+        break
+    }
+  } catch (err) {
+    p.problem = messageOf(err)
+  }
+  return p
+}
+
+function checkUnit(unit: string | undefined, what = 'unit'): void {
+  if (unit === undefined) return
+  const u = parseUnit(unit)
+  if (!u.ok) throw new CellError(`${what}: ${u.error}`, 'input')
+}
+
+/** Dimension (or record) of each bound name of a formula, for the dimension pass. */
+export function inputDims(p: PreparedCell, env: Env): InputDim[] {
+  return p.reads.map((name) => {
+    const target = env.cellNamed(name)
+    if (target) {
+      const v = env.valueOf(target.id)
+      if (v instanceof RecordValue) return { record: v }
+      return { dim: env.stateOf(target.id)?.dim ?? null }
+    }
+    return { dim: builtinName(name)?.dim ?? null }
+  })
+}
+
+/** Values bound to a formula's free names: cells' values, else constants and units. */
+export function inputValues(p: PreparedCell, env: Env): Value[] {
+  return p.reads.map((name) => {
+    const target = env.cellNamed(name)
+    if (target) {
+      const v = env.valueOf(target.id)
+      if (v === undefined) throw new CellError(`input ${name} has no value`, 'input')
+      return v
+    }
+    const b = builtinName(name)
+    if (!b) throw new CellError(`unknown name: ${name}`, 'name')
+    return b.value
+  })
+}
+
+/** SI value of a parameter cell. */
+export function parameterValue(cell: ParameterCell): { value: number; dim: Dim } {
+  const u = parseUnit(cell.unit ?? '')
+  if (!u.ok) throw new CellError(`unit: ${u.error}`, 'input')
+  return { value: cell.value * u.factor, dim: u.dim }
+}
+
+export function evaluateParameter(cell: ParameterCell): CellState {
+  const { value, dim } = parameterValue(cell)
+  const warnings: string[] = []
+  const unit = cell.unit ? ` ${cell.unit}` : ''
+  if (cell.min !== undefined && cell.max !== undefined && cell.min > cell.max)
+    warnings.push(`the range is empty: min ${cell.min} is above max ${cell.max}`)
+  if (cell.min !== undefined && cell.value < cell.min) warnings.push(`the value ${cell.value}${unit} is below the minimum ${cell.min}${unit}`)
+  if (cell.max !== undefined && cell.value > cell.max) warnings.push(`the value ${cell.value}${unit} is above the maximum ${cell.max}${unit}`)
+  return { status: 'ok', value, dim, warnings }
+}
+
+/** Runs a formula's compiled closures on its inputs' current values. */
+export function formulaValue(p: PreparedCell, env: Env): Num {
+  if (!p.compiled) throw new CellError(p.problem ?? 'the formula did not compile', 'syntax')
+  return p.compiled.run(inputValues(p, env), env.budget)
+}
+
+export function evaluateFormula(p: PreparedCell, env: Env): CellState {
+  const value = formulaValue(p, env)
+  const dims = inferDims(p.compiled as CompiledFormula, inputDims(p, env))
+  const warnings = [...dims.warnings]
+  return { status: 'ok', value, dim: dims.dim, warnings }
+}
+
+/** A spectrum cell's columns in SI as a record (`filmB.T`); empty entries (null) become NaN. */
+export function evaluateSpectrum(cell: SpectrumCell): CellState {
+  const fields = new Map<string, Field>()
+  const warnings: string[] = []
+  let length = -1
+  for (const [name, col] of Object.entries(cell.columns)) {
+    const u = parseUnit(col.unit)
+    if (!u.ok) throw new CellError(`column ${name}: ${u.error}`, 'input')
+    const values = new Float64Array(col.values.length)
+    let gaps = 0
+    col.values.forEach((x, i) => {
+      if (x === null) gaps++
+      values[i] = x === null ? NaN : x * u.factor
+    })
+    if (gaps) warnings.push(`column ${name} has ${gaps} empty entr${gaps === 1 ? 'y' : 'ies'} (read as NaN)`)
+    if (length >= 0 && col.values.length !== length) warnings.push(`the columns have different lengths (${length} and ${col.values.length} in ${name})`)
+    length = Math.max(length, col.values.length)
+    fields.set(name, { value: values, dim: u.dim })
+  }
+  if (fields.size === 0) warnings.push('the spectrum has no columns')
+  return { status: 'ok', value: new RecordValue('spectrum', cell.name, fields), dim: null, warnings }
+}
+
+/** Describes a Num's dimension for messages: "an energy array". */
+export function describeDim(dim: Dim | null): string {
+  return dim ? dimName(dim) : 'unknown dimension'
+}

@@ -1,0 +1,71 @@
+/**
+ * From SI values to what a cell shows: the display unit's factor when it fits the value's dimension, SI otherwise
+ * (with a warning naming both dimensions), and JSON-ready numbers (arrays as number[]).
+ */
+import type { Num } from '../optics/num'
+import { dimEquals, dimName, dimPhrase, dimSymbols, isDimensionless, type Dim } from './dimensions'
+import { parseUnit } from './units'
+
+/** Conventional SI unit symbols of named dimensions, for cells without a display unit. */
+const SI_UNITS: Record<string, string> = {
+  length: 'm', '1/length': '1/m', area: 'm^2', volume: 'm^3', mass: 'kg', time: 's', frequency: 'Hz', current: 'A',
+  temperature: 'K', energy: 'J', '1/energy': '1/J', power: 'W', charge: 'C', voltage: 'V', velocity: 'm/s', action: 'J*s',
+  permittivity: 'F/m', 'current density': 'A/m^2', irradiance: 'W/m^2', 'spectral irradiance': 'W/m^3',
+  'photon flux': '1/(m^2*s)', 'spectral photon flux': '1/(m^3*s)', 'energy/area': 'J/m^2', 'energy/temperature': 'J/K',
+  '1/temperature': '1/K', '1/area': '1/m^2', amount: 'mol',
+}
+
+/** The SI unit string of a dimension ("J" for energy), or undefined for dimensionless values. */
+export function siUnit(dim: Dim): string | undefined {
+  if (isDimensionless(dim)) return undefined
+  return SI_UNITS[dimName(dim)] ?? dimSymbols(dim).replace(/·/g, '*')
+}
+
+export interface Display {
+  /** Divide SI values by this to show them. */
+  factor: number
+  /** The unit the shown values are in (undefined: dimensionless SI). */
+  unit: string | undefined
+  warnings: string[]
+}
+
+/**
+ * How to show a value of dimension `dim` in a cell whose display unit is `unitText`. A unit that does not parse, or
+ * whose dimension differs from the value's, is reported and the value is shown in SI.
+ */
+export function displayFor(unitText: string | undefined, dim: Dim | null): Display {
+  if (unitText === undefined || unitText.trim() === '') return { factor: 1, unit: dim ? siUnit(dim) : undefined, warnings: [] }
+  const u = parseUnit(unitText)
+  if (!u.ok) {
+    return { factor: 1, unit: dim ? siUnit(dim) : undefined, warnings: [`display unit: ${u.error}; shown in SI`] }
+  }
+  if (dim && !dimEquals(dim, u.dim)) {
+    const si = siUnit(dim)
+    return {
+      factor: 1,
+      unit: si,
+      warnings: [
+        `the display unit ${unitText} is ${dimPhrase(u.dim)} but the value is ${dimPhrase(dim)} (${dimName(u.dim)} vs ${dimName(dim)}); shown in SI${si ? ` (${si})` : ''}`,
+      ],
+    }
+  }
+  return { factor: u.factor, unit: unitText, warnings: [] }
+}
+
+/** A Num as JSON-ready numbers divided by `factor`. */
+export function toJson(v: Num, factor: number): number | number[] {
+  if (typeof v === 'number') return factor === 1 ? v : v / factor
+  const out = new Array<number>(v.length)
+  if (factor === 1) for (let i = 0; i < v.length; i++) out[i] = v[i]
+  else for (let i = 0; i < v.length; i++) out[i] = v[i] / factor
+  return out
+}
+
+/** A warning when some values are not finite numbers (they show as null in JSON). */
+export function nonFiniteWarning(v: Num): string | undefined {
+  if (typeof v === 'number') return Number.isFinite(v) ? undefined : `the value is ${v} (not a finite number)`
+  let bad = 0
+  for (let i = 0; i < v.length; i++) if (!Number.isFinite(v[i])) bad++
+  if (bad === 0) return undefined
+  return `${bad} of ${v.length} values are not finite numbers (NaN or infinite; shown as null)`
+}

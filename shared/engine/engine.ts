@@ -1,0 +1,246 @@
+/**
+ * The sheet engine: holds a sheet's prepared cells, their dependency graph and their states; evaluates everything
+ * on load and, on an edit, only the cells the edit touches, in dependency order. Every failure becomes the state of
+ * the cell it happened in ("errors are values"); nothing thrown inside a cell leaves the engine.
+ */
+import type { CellResult, EvaluationResult } from '../schema/result'
+import type { FitCell, SheetCell, SweepCell } from '../schema/sheet'
+import {
+  evaluateFormula, evaluateParameter, evaluateSpectrum, formulaValue, prepareCell,
+  type CellState, type Env, type PreparedCell,
+} from './cells'
+import { blockedMessage, CellError, cycleMessage, messageOf, unknownNamesMessage } from './errors'
+import { evaluateFit } from './fits'
+import { Budget, DEFAULT_MAX_ELEMENTS, DEFAULT_TIME_BUDGET_MS } from './limits'
+import { Graph } from './order'
+import { toCellJson, type CellJson } from './results'
+import { evaluateSweep } from './sweeps'
+import type { Value } from './values'
+
+export const ENGINE_VERSION = '1.0.0'
+
+export interface EngineOptions {
+  /** Wall-clock budget for evaluating one cell, ms, checked between operations. Default 3000. */
+  timeBudgetMs?: number
+  /** Largest array one operation may produce. Default 1,000,000. */
+  maxElements?: number
+  /** Progress of long cells (sweeps, model fits), fraction 0–1. */
+  onProgress?: (cellId: string, fraction: number) => void
+}
+
+const NOT_A_VALUE: ReadonlySet<string> = new Set(['sweep', 'figure', 'note', 'stack'])
+
+export class SheetEngine {
+  private cells: PreparedCell[] = []
+  private readonly byId = new Map<string, PreparedCell>()
+  private readonly states = new Map<string, CellState>()
+  private readonly json = new Map<string, CellJson>()
+  private graph = new Graph([])
+  private title = ''
+  private readonly budget: Budget
+
+  constructor(private readonly options: EngineOptions = {}) {
+    this.budget = new Budget(options.timeBudgetMs ?? DEFAULT_TIME_BUDGET_MS, options.maxElements ?? DEFAULT_MAX_ELEMENTS)
+  }
+
+  /** Replaces the whole sheet and evaluates every cell. */
+  load(cells: readonly SheetCell[], title?: string): EvaluationResult {
+    this.title = title ?? ''
+    this.cells = cells.map((c) => prepareCell(c))
+    this.byId.clear()
+    for (const p of this.cells) this.byId.set(p.id, p)
+    this.states.clear()
+    this.json.clear()
+    this.graph = new Graph(this.cells)
+    this.evaluate(this.graph.order)
+    return this.results()
+  }
+
+  /** Replaces one cell (null removes it; an unknown id appends it); returns the ids recomputed, in order. */
+  update(cellId: string, cell: SheetCell | null): string[] {
+    const old = this.byId.get(cellId)
+    if (!cell) {
+      if (!old) return []
+      this.cells = this.cells.filter((p) => p.id !== cellId)
+      this.byId.delete(cellId)
+      this.states.delete(cellId)
+      this.json.delete(cellId)
+      return this.rewire([])
+    }
+    const next = prepareCell({ ...cell, id: cellId } as SheetCell)
+    if (!old) {
+      this.cells.push(next)
+      this.byId.set(cellId, next)
+      return this.rewire([cellId])
+    }
+    this.cells[this.cells.indexOf(old)] = next
+    this.byId.set(cellId, next)
+    if (!sameWiring(old, next)) return this.rewire([cellId])
+    const stop = valueOnlyParameterEdit(old, next) ? this.unaffectedBy(next) : undefined
+    const ids = this.graph.sorted(this.graph.descendants([cellId], stop))
+    this.evaluate(ids)
+    return ids
+  }
+
+  /** Inserts a cell at a position of the sheet; returns the ids recomputed. */
+  insert(cell: SheetCell, index: number): string[] {
+    if (this.byId.has(cell.id)) return this.update(cell.id, cell)
+    const p = prepareCell(cell)
+    this.cells.splice(Math.max(0, Math.min(index, this.cells.length)), 0, p)
+    this.byId.set(p.id, p)
+    return this.rewire([p.id])
+  }
+
+  /** Moves a cell to a position (order decides which of two same-named cells holds the name). */
+  move(cellId: string, index: number): void {
+    const p = this.byId.get(cellId)
+    if (!p) return
+    this.cells = this.cells.filter((c) => c !== p)
+    this.cells.splice(Math.max(0, Math.min(index, this.cells.length)), 0, p)
+    this.rewire([])
+  }
+
+  /** The whole result object, JSON-ready. */
+  results(): EvaluationResult {
+    return { title: this.title, cells: this.cells.map((p, i) => this.resultAt(p, i)), engine: ENGINE_VERSION }
+  }
+
+  resultOf(cellId: string): CellResult | undefined {
+    const p = this.byId.get(cellId)
+    return p ? this.resultAt(p, this.cells.indexOf(p)) : undefined
+  }
+
+  private resultAt(p: PreparedCell, index: number): CellResult {
+    let j = this.json.get(p.id)
+    if (!j) {
+      j = toCellJson(p, this.states.get(p.id) ?? { status: 'error', error: 'not evaluated', dim: null, warnings: [] })
+      this.json.set(p.id, j)
+    }
+    return { index, ...j }
+  }
+
+  /** Rebuilds the graph after a structural change; re-evaluates cells whose wiring changed, and what follows. */
+  private rewire(touched: string[]): string[] {
+    const before = this.graph
+    this.graph = new Graph(this.cells)
+    const changed = new Set(touched)
+    for (const p of this.cells) if (before.wiring(p.id) !== this.graph.wiring(p.id)) changed.add(p.id)
+    const ids = this.graph.sorted(this.graph.descendants(changed))
+    this.evaluate(ids)
+    return ids
+  }
+
+  /**
+   * After a value-only edit of parameter P: sweeps over P, and model fits that free P from an explicit start, do not
+   * depend on P's current value, so they (and what only they feed) are left alone — provided they are fine now.
+   */
+  private unaffectedBy(p: PreparedCell): (id: string) => boolean {
+    return (id) => {
+      const q = this.byId.get(id)
+      if (!q || this.states.get(id)?.status !== 'ok') return false
+      if (q.kind === 'sweep') return (q.cell as SweepCell).parameter === p.name
+      if (q.kind === 'fit') {
+        const c = q.cell as FitCell
+        return c.method === 'model' && !!c.parameters?.some((f) => f.name === p.name && f.start !== undefined)
+      }
+      return false
+    }
+  }
+
+  private evaluate(ids: readonly string[]): void {
+    for (const id of ids) {
+      const p = this.byId.get(id)
+      if (!p) continue
+      this.states.set(id, this.evaluateOne(p))
+      this.json.delete(id)
+    }
+  }
+
+  private evaluateOne(p: PreparedCell): CellState {
+    const fail = (error: string, status: 'error' | 'blocked' = 'error'): CellState => ({
+      status, error, dim: null, warnings: [...p.staticWarnings],
+    })
+    if (p.kind === 'note' || p.kind === 'figure') return { status: 'ok', value: undefined, dim: null, warnings: [] }
+    if (p.kind === 'stack')
+      return { status: 'ok', dim: null, warnings: ['stack cells are kept but not evaluated by this version of the engine'] }
+    const first = this.graph.duplicateOf.get(p.id)
+    if (first !== undefined)
+      return fail(`the name ${p.name} is already used by cells[${this.cells.indexOf(this.byId.get(first)!)}]`)
+    if (p.problem) return fail(p.problem)
+    const cycle = this.graph.cycle.get(p.id)
+    if (cycle) return fail(cycleMessage(cycle))
+    const unknown = this.graph.unknown.get(p.id)
+    if (unknown) return fail(unknownNamesMessage(unknown))
+    for (const d of this.graph.deps.get(p.id) ?? []) {
+      const dep = this.byId.get(d)!
+      if (this.states.get(d)?.status !== 'ok') return fail(blockedMessage(dep.name ?? d), 'blocked')
+      if (NOT_A_VALUE.has(dep.kind) && (p.kind === 'formula' || p.kind === 'fit'))
+        return fail(`${dep.name} is a ${dep.kind} cell; formulas and fits can use parameters, formulas, spectra and fits`)
+    }
+    this.budget.start()
+    try {
+      const s = this.compute(p, this.env(p.id))
+      return { ...s, warnings: [...p.staticWarnings, ...s.warnings] }
+    } catch (err) {
+      return fail(messageOf(err))
+    }
+  }
+
+  private compute(p: PreparedCell, env: Env): CellState {
+    switch (p.cell.kind) {
+      case 'parameter':
+        return evaluateParameter(p.cell)
+      case 'formula':
+        return evaluateFormula(p, env)
+      case 'spectrum':
+        return evaluateSpectrum(p.cell)
+      case 'fit':
+        return evaluateFit(p, env)
+      case 'sweep':
+        return evaluateSweep(p, env)
+      default:
+        return { status: 'ok', dim: null, warnings: [] }
+    }
+  }
+
+  /** The view of the sheet one cell's evaluation gets; `overrides` replace values during sweeps and model fits. */
+  private env(cellId: string, overrides?: Map<string, Value>): Env {
+    return {
+      budget: this.budget,
+      cellNamed: (name) => {
+        const id = this.graph.byName.get(name)
+        return id === undefined ? undefined : this.byId.get(id)
+      },
+      valueOf: (id) => (overrides?.has(id) ? overrides.get(id) : this.states.get(id)?.value),
+      stateOf: (id) => this.states.get(id),
+      chain: (from, to) => this.graph.chain(from, to),
+      runChain: (chain, values) => this.runChain(cellId, chain, values),
+      progress: (fraction) => this.options.onProgress?.(cellId, fraction),
+    }
+  }
+
+  private runChain(cellId: string, chain: readonly string[], overrides: Map<string, Value>): void {
+    const env = this.env(cellId, overrides)
+    for (const id of chain) {
+      const p = this.byId.get(id)!
+      try {
+        if (p.kind === 'formula') overrides.set(id, formulaValue(p, env))
+        else if (p.kind === 'fit') {
+          const s = evaluateFit(p, env)
+          if (s.value !== undefined) overrides.set(id, s.value)
+        }
+      } catch (err) {
+        throw new CellError(`${p.name ?? id}: ${messageOf(err)}`, err instanceof CellError ? err.kind : 'value')
+      }
+    }
+  }
+}
+
+function sameWiring(a: PreparedCell, b: PreparedCell): boolean {
+  return a.kind === b.kind && a.name === b.name && a.cellsOnly === b.cellsOnly && a.reads.length === b.reads.length &&
+    a.reads.every((r, i) => r === b.reads[i])
+}
+
+function valueOnlyParameterEdit(a: PreparedCell, b: PreparedCell): boolean {
+  return a.cell.kind === 'parameter' && b.cell.kind === 'parameter' && a.cell.unit === b.cell.unit && !a.problem && !b.problem
+}

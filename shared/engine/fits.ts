@@ -1,0 +1,195 @@
+/**
+ * Fit cells: `tauc` and `urbach` band-edge fits over a window, and `model` fits (Levenberg–Marquardt) of a formula
+ * cell over chosen free parameter cells, re-evaluating the formula's subgraph with the trial values (compiled once,
+ * never re-parsed). The fitting itself is shared/fitting's.
+ *
+ * Units: the window `from`/`to` is in the display unit of the `x` cell. Fitted energies (Eg, Eg_err, Eu, Eu_err) are
+ * shown in the fit's `unit` (default: the x cell's unit when it is an energy unit, else J); other outputs in SI.
+ * Model-fit parameters, their start values and bounds are in each parameter cell's display unit. Formulas read a
+ * fit's results in SI: `edge.Eg` is in joules.
+ */
+import type { FitCell, ParameterCell } from '../schema/sheet'
+import { taucFit, urbachFit, fitModel } from '../fitting/index'
+import type { Num } from '../optics/num'
+import type { CellState, Env, PreparedCell } from './cells'
+import { parameterValue } from './cells'
+import { DIMENSIONLESS, ENERGY, INV_LENGTH, dimDiv, dimEquals, dimMul, dimPhrase, dimPow, type Dim } from './dimensions'
+import { displayFor } from './display'
+import { CellError } from './errors'
+import { parseUnit } from './units'
+import { RecordValue, asNum, type Field, type Value } from './values'
+
+interface Series {
+  prepared: PreparedCell
+  values: Float64Array
+  dim: Dim | null
+  /** Display factor of the cell (what its numbers are shown in). */
+  factor: number
+  unit: string | undefined
+}
+
+function series(env: Env, name: string, role: string): Series {
+  const p = env.cellNamed(name)
+  if (!p) throw new CellError(`${role} ${name} is not a cell of this sheet`, 'name')
+  const v = env.valueOf(p.id)
+  if (v === undefined) throw new CellError(`${role} ${name} has no value`, 'input')
+  const num = asNum(v, role)
+  const values = typeof num === 'number' ? Float64Array.of(num) : num
+  const dim = env.stateOf(p.id)?.dim ?? null
+  const unitText = 'unit' in p.cell ? (p.cell.unit as string | undefined) : undefined
+  const shown = displayFor(unitText, dim)
+  return { prepared: p, values, dim, factor: shown.factor, unit: shown.unit }
+}
+
+/** The unit fitted energies are shown in, and its SI factor. */
+function energyUnit(cell: FitCell, x: Series): { unit: string; factor: number } {
+  const wanted = cell.unit ?? (x.dim && dimEquals(x.dim, ENERGY) && x.unit ? x.unit : 'J')
+  const u = parseUnit(wanted)
+  if (!u.ok) throw new CellError(`fit unit: ${u.error}`, 'input')
+  if (!dimEquals(u.dim, ENERGY)) throw new CellError(`the fit unit ${wanted} is ${dimPhrase(u.dim)}, not an energy`, 'input')
+  return { unit: wanted, factor: u.factor }
+}
+
+function windowOf(cell: FitCell, x: Series): [number, number] {
+  let lo = Infinity
+  let hi = -Infinity
+  for (const v of x.values) if (Number.isFinite(v)) {
+    lo = Math.min(lo, v)
+    hi = Math.max(hi, v)
+  }
+  return [cell.from !== undefined ? cell.from * x.factor : lo, cell.to !== undefined ? cell.to * x.factor : hi]
+}
+
+function field(value: Num, dim: Dim | null): Field {
+  return { value, dim }
+}
+
+export function evaluateFit(p: PreparedCell, env: Env): CellState {
+  const cell = p.cell as FitCell
+  if (cell.method === 'model') return modelFit(cell, env)
+  const x = series(env, cell.x, 'x')
+  const y = series(env, cell.y, 'y')
+  const warnings: string[] = []
+  if (x.dim && !dimEquals(x.dim, ENERGY)) warnings.push(`x (${cell.x}) should be a photon energy, not ${dimPhrase(x.dim)}`)
+  if (y.dim && !dimEquals(y.dim, INV_LENGTH)) warnings.push(`y (${cell.y}) should be an absorption coefficient (1/length), not ${dimPhrase(y.dim)}`)
+  if (x.values.length !== y.values.length)
+    throw new CellError(`x (${cell.x}) has ${x.values.length} values but y (${cell.y}) has ${y.values.length}`, 'input')
+  const e = energyUnit(cell, x)
+  const [lo, hi] = windowOf(cell, x)
+  if (cell.method === 'tauc') {
+    const r = cell.r ?? 0.5
+    if (cell.r === undefined) warnings.push('r is not given: using r = 1/2 (direct allowed transition)')
+    const f = taucFit(x.values, y.values, r, lo, hi)
+    if (f.r2 < 0.99)
+      warnings.push(`the Tauc plot is not straight in this window (r² = ${f.r2.toFixed(4)}): move the window onto the linear part of the edge`)
+    if (f.Eg > Math.min(lo, hi))
+      warnings.push('the fitted gap lies inside the window: the window probably reaches into the tail below the gap')
+    const bDim = dimDiv(dimPow(dimMul(INV_LENGTH, ENERGY), 1 / r), ENERGY)
+    const fields = new Map<string, Field>([
+      ['Eg', field(f.Eg, ENERGY)], ['Eg_err', field(f.Eg_err, ENERGY)], ['B', field(f.B, bDim)],
+      ['B_err', field(f.B_err, bDim)], ['r2', field(f.r2, DIMENSIONLESS)], ['n', field(f.n, DIMENSIONLESS)],
+    ])
+    return {
+      status: 'ok', value: new RecordValue('fit', cell.name, fields), dim: null, warnings,
+      shown: { Eg: f.Eg / e.factor, Eg_err: f.Eg_err / e.factor, B: f.B, B_err: f.B_err, r2: f.r2, n: f.n },
+      unit: e.unit,
+    }
+  }
+  const f = urbachFit(x.values, y.values, lo, hi)
+  if (f.r2 < 0.98)
+    warnings.push(`ln α is not straight in this window (r² = ${f.r2.toFixed(4)}): an Urbach tail is exponential only below the gap`)
+  const fields = new Map<string, Field>([
+    ['Eu', field(f.Eu, ENERGY)], ['Eu_err', field(f.Eu_err, ENERGY)], ['alpha0', field(f.alpha0, INV_LENGTH)],
+    ['r2', field(f.r2, DIMENSIONLESS)], ['n', field(f.n, DIMENSIONLESS)],
+  ])
+  return {
+    status: 'ok', value: new RecordValue('fit', cell.name, fields), dim: null, warnings,
+    shown: { Eu: f.Eu / e.factor, Eu_err: f.Eu_err / e.factor, alpha0: f.alpha0, r2: f.r2, n: f.n },
+    unit: e.unit,
+  }
+}
+
+interface FreeParameter {
+  name: string
+  id: string
+  factor: number
+  dim: Dim
+  unit: string | undefined
+  start: number
+  min?: number
+  max?: number
+}
+
+function modelFit(cell: FitCell, env: Env): CellState {
+  const model = env.cellNamed(cell.model as string)
+  if (!model || model.kind !== 'formula') throw new CellError(`the model ${cell.model} must be a formula cell`, 'input')
+  const x = series(env, cell.x, 'x')
+  const y = series(env, cell.y, 'y')
+  if (x.values.length !== y.values.length)
+    throw new CellError(`x (${cell.x}) has ${x.values.length} values but y (${cell.y}) has ${y.values.length}`, 'input')
+  const free: FreeParameter[] = (cell.parameters ?? []).map((q) => {
+    const pc = env.cellNamed(q.name)
+    if (!pc || pc.kind !== 'parameter') throw new CellError(`the free parameter ${q.name} must be a parameter cell`, 'input')
+    const param = pc.cell as ParameterCell
+    const { dim } = parameterValue(param)
+    const u = parseUnit(param.unit ?? '')
+    const factor = u.ok ? u.factor : 1
+    return {
+      name: q.name, id: pc.id, factor, dim, unit: param.unit, start: (q.start ?? param.value) * factor,
+      min: q.min === undefined ? undefined : q.min * factor, max: q.max === undefined ? undefined : q.max * factor,
+    }
+  })
+  const chain = env.chain(free.map((f) => f.id), [model.id])
+  if (!chain.includes(model.id)) throw new CellError(`the model ${cell.model} does not depend on any of the free parameters`, 'input')
+  const [lo, hi] = windowOf(cell, x)
+  const [a, b] = [Math.min(lo, hi), Math.max(lo, hi)]
+  const picked: number[] = []
+  x.values.forEach((v, i) => {
+    if (v >= a && v <= b) picked.push(i)
+  })
+  const yWindow = Float64Array.from(picked, (i) => y.values[i])
+  const e = cell.unit ? energyUnit(cell, x) : undefined
+  const warnings: string[] = []
+  const modelState = env.stateOf(model.id)
+  if (y.dim && modelState?.dim && !dimEquals(y.dim, modelState.dim))
+    warnings.push(`the model ${cell.model} is ${dimPhrase(modelState.dim)} but y (${cell.y}) is ${dimPhrase(y.dim)}`)
+
+  let evaluations = 0
+  const evaluate = (params: number[]): Float64Array => {
+    const overrides = new Map<string, Value>(free.map((f, k) => [f.id, params[k]]))
+    env.runChain(chain, overrides)
+    const v = overrides.get(model.id)
+    const m = asNum(v as Value, 'model')
+    if (typeof m === 'number') return new Float64Array(picked.length).fill(m)
+    if (m.length !== x.values.length)
+      throw new CellError(`the model ${cell.model} has ${m.length} values but x (${cell.x}) has ${x.values.length}`, 'input')
+    if (++evaluations % 20 === 0) env.progress(Math.min(0.99, evaluations / 400))
+    return Float64Array.from(picked, (i) => m[i])
+  }
+  const fit = fitModel({
+    evaluate, y: yWindow, start: free.map((f) => f.start), min: free.map((f) => f.min ?? -Infinity),
+    max: free.map((f) => f.max ?? Infinity), names: free.map((f) => f.name),
+  })
+  if (!fit.converged) warnings.push(`the fit stopped after ${fit.iterations} iterations without converging`)
+  const shown: Record<string, unknown> = {}
+  const fields = new Map<string, Field>()
+  free.forEach((f, k) => {
+    const showFactor = e && dimEquals(f.dim, ENERGY) ? e.factor : f.factor
+    shown[f.name] = fit.params[k] / showFactor
+    shown[`${f.name}_err`] = fit.errors[k] / showFactor
+    fields.set(f.name, field(fit.params[k], f.dim))
+    fields.set(`${f.name}_err`, field(fit.errors[k], f.dim))
+  })
+  const yDim = y.dim
+  const chi2Dim = yDim ? dimPow(yDim, 2) : null
+  Object.assign(shown, {
+    chi2: fit.chi2, reducedChi2: fit.reducedChi2, residuals: Array.from(fit.residuals), iterations: fit.iterations,
+    converged: fit.converged, n: picked.length,
+  })
+  fields.set('chi2', field(fit.chi2, chi2Dim))
+  fields.set('reducedChi2', field(fit.reducedChi2, chi2Dim))
+  fields.set('residuals', field(fit.residuals, yDim))
+  fields.set('iterations', field(fit.iterations, DIMENSIONLESS))
+  fields.set('n', field(picked.length, DIMENSIONLESS))
+  return { status: 'ok', value: new RecordValue('fit', cell.name, fields), dim: null, warnings, shown, unit: e?.unit }
+}

@@ -1,0 +1,47 @@
+/**
+ * Evaluation limits: largest array, formula length, syntax-tree size and a wall-clock budget per cell that is
+ * checked between operations (one operation is bounded by the array limit, so a formula cannot freeze a tab).
+ */
+import { CellError } from './errors'
+
+export const DEFAULT_MAX_ELEMENTS = 1_000_000
+export const DEFAULT_TIME_BUDGET_MS = 3000
+/** Longest formula source accepted, characters. */
+export const MAX_FORMULA_LENGTH = 5000
+/** Largest syntax tree accepted, nodes (bounds compile and evaluation recursion). */
+export const MAX_NODES = 2000
+
+const now: () => number =
+  typeof performance !== 'undefined' && typeof performance.now === 'function' ? () => performance.now() : () => Date.now()
+
+export class Budget {
+  private deadline = Infinity
+  private budgetMs: number
+  constructor(
+    timeBudgetMs: number = DEFAULT_TIME_BUDGET_MS,
+    readonly maxElements: number = DEFAULT_MAX_ELEMENTS,
+  ) {
+    this.budgetMs = timeBudgetMs
+  }
+
+  /** Starts the clock for one cell. */
+  start(): void {
+    this.deadline = now() + this.budgetMs
+  }
+
+  /** Throws when the cell has used up its time. Called between operations. */
+  tick(): void {
+    if (now() > this.deadline)
+      throw new CellError(`evaluation took longer than the ${formatMs(this.budgetMs)} budget for one cell and was stopped`, 'time')
+  }
+
+  /** Throws before an operation would produce more elements than allowed. */
+  elements(n: number, what: string): void {
+    if (n > this.maxElements)
+      throw new CellError(`${what} would have ${n.toLocaleString('en-US')} elements; the limit is ${this.maxElements.toLocaleString('en-US')}`, 'limit')
+  }
+}
+
+function formatMs(ms: number): string {
+  return ms >= 1000 ? `${ms / 1000} s` : `${ms} ms`
+}
