@@ -247,3 +247,20 @@ export function prettyUnit(unit: string | undefined): string {
     .replace(/\^2\b/g, '²')
     .replace(/\^3\b/g, '³')
 }
+
+const SPECTRAL_CHOICES = ['eV', 'meV', 'nm', 'um', '1/cm', 'THz']
+
+/**
+ * Display units an axis now in `unit` can switch to: every spectral unit for a spectral axis (eV ↔ nm ↔ 1/cm), the
+ * units of the same dimension otherwise; empty for units the table does not know.
+ */
+export function unitChoices(unit: string | undefined): string[] {
+  const info = unitInfo(unit)
+  if (!info) return []
+  if (spectralQuantity(info.unit) && info.dimension !== '1/length') return SPECTRAL_CHOICES
+  if (info.dimension === '1/length') return ['1/cm', '1/m', '1/um', ...SPECTRAL_CHOICES.filter((u) => u !== '1/cm')]
+  const same = Object.entries(TABLE)
+    .filter(([u, [d]]) => d === info.dimension && !u.includes('^-1') && u !== 'cm-1' && u !== 'angstrom' && u !== 'W/m^3')
+    .map(([u]) => u)
+  return same
+}

@@ -132,3 +132,18 @@ describe('prettyUnit', () => {
     expect(prettyUnit(undefined)).toBe('')
   })
 })
+
+import { unitChoices } from '../../../shared/plot/units'
+
+describe('unitChoices', () => {
+  it('unitChoices offers every spectral unit on an energy or wavelength axis', () => {
+    expect(unitChoices('eV')).toEqual(['eV', 'meV', 'nm', 'um', '1/cm', 'THz'])
+    expect(unitChoices('nm')).toContain('eV')
+  })
+  it('unitChoices offers the same dimension elsewhere and nothing for unknown units', () => {
+    expect([...unitChoices('%')].sort()).toEqual(['%', '1'])
+    expect(unitChoices('mA/cm^2')).toEqual(['A/m^2', 'mA/cm^2', 'A/cm^2'])
+    expect(unitChoices('1/cm')[0]).toBe('1/cm')
+    expect(unitChoices('counts')).toEqual([])
+  })
+})
