@@ -1,0 +1,53 @@
+/**
+ * Command-line evaluator: `npm run --silent evaluate -- <file.penumbra.json>` (or `-` for standard input) prints the
+ * evaluation result object (DESIGN §5) as JSON on standard output.
+ *
+ * Exit status: 0 for a valid sheet, even when cells have errors (they are in the result); 2 when the file cannot be
+ * read or is not a valid sheet file, with one problem per line on standard error (`cells[3].source: required`).
+ * Option `--pretty` indents the JSON.
+ */
+import { readFileSync } from 'node:fs'
+import { evaluateSheet } from '../../shared/engine/index'
+import { parseSheetFileText } from '../../shared/schema/sheet'
+
+const USAGE = 'usage: npm run --silent evaluate -- [--pretty] <file.penumbra.json | ->'
+
+function readInput(arg: string): string {
+  return arg === '-' ? readFileSync(0, 'utf8') : readFileSync(arg, 'utf8')
+}
+
+export function main(argv: readonly string[]): number {
+  const args = argv.filter((a) => a !== '--pretty')
+  const pretty = args.length !== argv.length
+  if (args.length !== 1 || (args[0].startsWith('--') && args[0] !== '-')) {
+    process.stderr.write(`${USAGE}\n`)
+    return 2
+  }
+  const source = args[0]
+  let text: string
+  try {
+    text = readInput(source)
+  } catch (err) {
+    const e = err as NodeJS.ErrnoException
+    const why = e.code === 'ENOENT' ? 'no such file' : e.code === 'EISDIR' ? 'it is a directory' : e.message
+    process.stderr.write(`${source === '-' ? 'standard input' : source}: cannot read: ${why}\n`)
+    return 2
+  }
+  const parsed = parseSheetFileText(text)
+  if (!parsed.ok) {
+    const where = source === '-' ? 'standard input' : source
+    process.stderr.write(`${where}: not a valid Penumbra sheet file:\n`)
+    for (const issue of parsed.issues) process.stderr.write(`${issue.path || '(root)'}: ${issue.message}\n`)
+    return 2
+  }
+  const result = evaluateSheet(parsed.value)
+  process.stdout.write(`${JSON.stringify(result, null, pretty ? 2 : undefined)}\n`)
+  return 0
+}
+
+// a reader that stops early (`| head`) is not an error of the evaluator
+process.stdout.on('error', (err: NodeJS.ErrnoException) => {
+  if (err.code === 'EPIPE') process.exit(process.exitCode ?? 0)
+  throw err
+})
+process.exitCode = main(process.argv.slice(2))
