@@ -140,7 +140,9 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
       await collab.close().catch((err: unknown) => warn(`closing collab: ${String(err)}`))
       await new Promise<void>((resolve) => {
         server.close(() => resolve())
-        server.closeAllConnections()
+        // idle keep-alive connections go now; requests still running get a moment to finish
+        server.closeIdleConnections()
+        setTimeout(() => server.closeAllConnections(), 2000).unref()
       })
       await mailer.close().catch((err: unknown) => warn(`closing mail: ${String(err)}`))
       try {

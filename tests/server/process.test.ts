@@ -9,12 +9,13 @@ import { mkdtempSync, rmSync, existsSync, statSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import path from 'node:path'
 import WebSocket from 'ws'
-import { DEMO_ACCOUNTS } from '../../server/db/seed'
+import { DEMO_ACCOUNTS, EXAMPLES_DIR, readExamples } from '../../server/db/seed'
 import { CSRF_HEADER } from '../../shared/schema/api'
 
 const ROOT = path.resolve(__dirname, '../..')
 const dataDir = mkdtempSync(path.join(tmpdir(), 'penumbra-process-'))
 const children: ChildProcess[] = []
+const exampleCount = readExamples(EXAMPLES_DIR, () => {}).length
 
 afterAll(() => {
   for (const c of children) if (c.exitCode === null && c.signalCode === null) c.kill('SIGKILL')
@@ -64,7 +65,7 @@ async function signInDemoOwner(url: string): Promise<string> {
 describe('server/index.ts as a process', () => {
   it('starts on a fresh DATA_DIR with the demo lab, then exits 0 on SIGTERM with a live websocket open', async () => {
     const s = await start()
-    expect(s.output()).toContain('Seeded the demo lab with 2 sheet(s).')
+    expect(s.output()).toContain(`Seeded the demo lab with ${exampleCount} sheet(s).`)
     for (const a of DEMO_ACCOUNTS) expect(s.output()).toMatch(new RegExp(`${a.role}\\s+${a.name}\\s+${a.email.replace(/\./g, '\\.')}\\s+${a.password}`))
     expect(existsSync(path.join(dataDir, 'penumbra.sqlite'))).toBe(true)
     expect(statSync(path.join(dataDir, 'session-secret')).mode & 0o077).toBe(0)
@@ -73,7 +74,7 @@ describe('server/index.ts as a process', () => {
     expect(await health.json()).toMatchObject({ ok: true })
     const cookie = await signInDemoOwner(s.url)
     const labs = (await (await fetch(`${s.url}/api/labs`, { headers: { Cookie: cookie } })).json()) as { labs: { id: string; name: string; role: string; sheetCount: number }[] }
-    expect(labs.labs).toEqual([expect.objectContaining({ name: 'Halvorsen Thin-Film Lab', role: 'owner', sheetCount: 2 })])
+    expect(labs.labs).toEqual([expect.objectContaining({ name: 'Halvorsen Thin-Film Lab', role: 'owner', sheetCount: exampleCount })])
     const sheets = (await (await fetch(`${s.url}/api/labs/${labs.labs[0].id}/sheets`, { headers: { Cookie: cookie } })).json()) as { sheets: { id: string }[] }
 
     // a stray upgrade is refused; a collab upgrade with the session opens
