@@ -76,9 +76,10 @@ export async function seedDemo(
   })
   const examples = readExamples(options.examplesDir ?? EXAMPLES_DIR, warn)
   if (examples.length === 0) warn('demo seed: no valid examples/*.penumbra.json found; the demo lab has no sheets')
-  // the editor measured and modelled the film; the owner wrote the rest
-  const sheets = examples.map(({ sheet }, i) => {
-    const row = createSheet(deps, labId, i === 0 ? ids.editor : ids.owner, sheet)
+  // the editor measured and modelled the film (the edge model); the owner wrote the rest
+  const editorsExample = examples.find((e) => e.file === 'edge-model.penumbra.json') ?? examples[0]
+  const sheets = examples.map((example) => {
+    const row = createSheet(deps, labId, example === editorsExample ? ids.editor : ids.owner, example.sheet)
     return { id: row.id, title: row.title }
   })
   return { labId, users: ids, sheets }
