@@ -52,12 +52,34 @@ export function displayFor(unitText: string | undefined, dim: Dim | null): Displ
   return { factor: u.factor, unit: unitText, warnings: [] }
 }
 
-/** A Num as JSON-ready numbers divided by `factor`. */
-export function toJson(v: Num, factor: number): number | number[] {
-  if (typeof v === 'number') return factor === 1 ? v : v / factor
+const POW10 = Array.from({ length: 23 }, (_, k) => 10 ** k)
+
+/**
+ * Rounds to 15 significant digits, removing the last-bit noise of a unit conversion (500·1e-9 m shown in nm is
+ * 500.00000000000006 before, 500 after). The change is at most 2 units in the last place of a double.
+ */
+export function clean(y: number): number {
+  if (y === 0 || !Number.isFinite(y)) return y
+  const e = Math.floor(Math.log10(Math.abs(y)))
+  const k = 14 - e
+  // 10^k is exact for 0 ≤ k ≤ 22, which makes round(y·10^k)/10^k the double nearest the rounded decimal
+  if (k >= 0 && k <= 22) {
+    const s = POW10[k]
+    return Math.round(y * s) / s
+  }
+  return Number(y.toPrecision(15))
+}
+
+/**
+ * A Num as JSON-ready numbers divided by `factor`; converted values are cleaned of conversion noise unless `raw`
+ * (sweep tables, where hundreds of thousands of numbers go out at once).
+ */
+export function toJson(v: Num, factor: number, raw = false): number | number[] {
+  if (typeof v === 'number') return factor === 1 ? v : raw ? v / factor : clean(v / factor)
   const out = new Array<number>(v.length)
   if (factor === 1) for (let i = 0; i < v.length; i++) out[i] = v[i]
-  else for (let i = 0; i < v.length; i++) out[i] = v[i] / factor
+  else if (raw) for (let i = 0; i < v.length; i++) out[i] = v[i] / factor
+  else for (let i = 0; i < v.length; i++) out[i] = clean(v[i] / factor)
   return out
 }
 

@@ -14,7 +14,7 @@ import type { Num } from '../optics/num'
 import type { CellState, Env, PreparedCell } from './cells'
 import { parameterValue } from './cells'
 import { DIMENSIONLESS, ENERGY, INV_LENGTH, dimDiv, dimEquals, dimMul, dimPhrase, dimPow, type Dim } from './dimensions'
-import { displayFor } from './display'
+import { clean, displayFor } from './display'
 import { CellError } from './errors'
 import { parseUnit } from './units'
 import { RecordValue, asNum, type Field, type Value } from './values'
@@ -91,7 +91,7 @@ export function evaluateFit(p: PreparedCell, env: Env): CellState {
     ])
     return {
       status: 'ok', value: new RecordValue('fit', cell.name, fields), dim: null, warnings,
-      shown: { Eg: f.Eg / e.factor, Eg_err: f.Eg_err / e.factor, B: f.B, B_err: f.B_err, r2: f.r2, n: f.n },
+      shown: { Eg: clean(f.Eg / e.factor), Eg_err: clean(f.Eg_err / e.factor), B: f.B, B_err: f.B_err, r2: f.r2, n: f.n },
       unit: e.unit,
     }
   }
@@ -104,7 +104,7 @@ export function evaluateFit(p: PreparedCell, env: Env): CellState {
   ])
   return {
     status: 'ok', value: new RecordValue('fit', cell.name, fields), dim: null, warnings,
-    shown: { Eu: f.Eu / e.factor, Eu_err: f.Eu_err / e.factor, alpha0: f.alpha0, r2: f.r2, n: f.n },
+    shown: { Eu: clean(f.Eu / e.factor), Eu_err: clean(f.Eu_err / e.factor), alpha0: f.alpha0, r2: f.r2, n: f.n },
     unit: e.unit,
   }
 }
@@ -175,8 +175,8 @@ function modelFit(cell: FitCell, env: Env): CellState {
   const fields = new Map<string, Field>()
   free.forEach((f, k) => {
     const showFactor = e && dimEquals(f.dim, ENERGY) ? e.factor : f.factor
-    shown[f.name] = fit.params[k] / showFactor
-    shown[`${f.name}_err`] = fit.errors[k] / showFactor
+    shown[f.name] = clean(fit.params[k] / showFactor)
+    shown[`${f.name}_err`] = clean(fit.errors[k] / showFactor)
     fields.set(f.name, field(fit.params[k], f.dim))
     fields.set(`${f.name}_err`, field(fit.errors[k], f.dim))
   })

@@ -72,7 +72,7 @@ export function evaluateSweep(p: PreparedCell, env: Env): CellState {
     }
     outputs.forEach((o, k) => {
       const v = overrides.get(o.id) ?? env.valueOf(o.id)
-      rows[k][i] = toJson(asNum(v as Value, o.name), o.factor)
+      rows[k][i] = toJson(asNum(v as Value, o.name), o.factor, true)
     })
     const fraction = (i + 1) / values.length
     if (fraction - reported >= 0.05) {
