@@ -5,7 +5,7 @@
  */
 import type { FitCell, SheetCell } from '../../../shared/schema/sheet'
 import type { CellResult } from '../../../shared/schema/result'
-import { converter } from '../../../shared/plot/units'
+import { converter, isEnergyUnit } from '../../../shared/plot/units'
 import { formatNumber, formatWithError } from '../../../shared/plot/format'
 
 export interface FitRow {
@@ -18,6 +18,23 @@ export interface FitRow {
 
 const ENERGY_KEYS = new Set(['Eg', 'Eu'])
 
+/**
+ * A value with its standard error, the error to two significant figures; very large or small values share one
+ * power of ten: `(6.724 ± 0.0095)e-6` reads better than a row of zeros.
+ */
+export function valueWithError(x: number, err: number | undefined): string {
+  if (err === undefined || !Number.isFinite(err) || err <= 0 || !Number.isFinite(x)) return formatNumber(x, 5)
+  const a = Math.abs(x)
+  if (a !== 0 && (a >= 1e5 || a < 1e-3)) {
+    const exp = Math.floor(Math.log10(a))
+    const m = x / 10 ** exp
+    const me = err / 10 ** exp
+    const d = Math.min(8, Math.max(0, 1 - Math.floor(Math.log10(me))))
+    return `(${m.toFixed(d)} ± ${me.toFixed(d)})e${exp}`
+  }
+  return formatWithError(x, err)
+}
+
 const MEANING: Record<string, string> = {
   Eg: 'band gap (intercept of the Tauc line)',
   B: 'slope of the Tauc line (SI)',
@@ -26,6 +43,7 @@ const MEANING: Record<string, string> = {
   r2: 'coefficient of determination',
   n: 'points in the window',
   chi2: 'sum of squared residuals',
+  reducedChi2: 'χ² per degree of freedom',
   iterations: 'iterations',
 }
 
@@ -46,7 +64,7 @@ export function fitRows(cell: FitCell, result: CellResult | undefined, unitOf: (
   const numberAt = (rec: Record<string, unknown>, key: string) => (typeof rec[key] === 'number' ? (rec[key] as number) : undefined)
 
   const push = (key: string, v: number, err: number | undefined, unit: string, meaning?: string) => {
-    rows.push({ quantity: key, meaning: meaning ?? MEANING[key] ?? '', value: formatWithError(v, err), unit })
+    rows.push({ quantity: key, meaning: meaning ?? MEANING[key] ?? '', value: valueWithError(v, err), unit })
   }
 
   // nested parameter records from a model fit
@@ -68,7 +86,11 @@ export function fitRows(cell: FitCell, result: CellResult | undefined, unitOf: (
     const v = numberAt(value, key)
     if (v === undefined) continue
     const err = numberAt(value, `${key}_err`)
-    if (key === 'r2') {
+    if (cell.method === 'model' && err !== undefined) {
+      // a free parameter: shown in its own cell's unit, energies in the fit's unit when the fit sets one
+      const own = unitOf(key) ?? ''
+      push(key, v, err, cell.unit && isEnergyUnit(own) ? cell.unit : own, 'fitted parameter')
+    } else if (key === 'r2') {
       rows.push({ quantity: 'R²', meaning: MEANING.r2, value: v.toFixed(5), unit: '' })
     } else if (key === 'n' || key === 'iterations') {
       rows.push({ quantity: key === 'n' ? 'points' : key, meaning: MEANING[key], value: String(v), unit: '' })
@@ -76,11 +98,10 @@ export function fitRows(cell: FitCell, result: CellResult | undefined, unitOf: (
       push('α₀', v / 100, err !== undefined ? err / 100 : undefined, '1/cm', MEANING.alpha0)
     } else if (ENERGY_KEYS.has(key)) {
       push(key, v, err, fitUnit)
-    } else if (key === 'chi2') {
-      rows.push({ quantity: 'χ²', meaning: MEANING.chi2, value: formatNumber(v), unit: '' })
+    } else if (key === 'chi2' || key === 'reducedChi2') {
+      rows.push({ quantity: key === 'chi2' ? 'χ²' : 'reduced χ²', meaning: MEANING[key], value: formatNumber(v), unit: '' })
     } else {
-      const unit = cell.method === 'model' ? (unitOf(key) ?? '') : key === 'B' ? 'SI' : ''
-      push(key, v, err, unit, cell.method === 'model' && err !== undefined ? 'fitted parameter' : undefined)
+      push(key, v, err, key === 'B' ? 'SI' : '')
     }
   }
   if (typeof value.converged === 'boolean' && !value.converged) {

@@ -44,7 +44,8 @@ export function buildVocabulary(catalog: LibraryCatalog | null, cells: readonly 
   for (const u of catalog?.units ?? []) vocab.units.add(u)
   for (const c of catalog?.constants ?? []) vocab.constants.set(c.name, c.doc)
   for (const cell of cells) {
-    if (!cell.name) continue
+    // figures and notes are not values a formula can read
+    if (!cell.name || cell.kind === 'figure' || cell.kind === 'note') continue
     let members: string[] = []
     if (cell.kind === 'spectrum') members = Object.keys(cell.columns ?? {})
     else if (cell.kind === 'fit') {
