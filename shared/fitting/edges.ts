@@ -15,7 +15,7 @@ export interface TaucFit {
   B: number
   B_err: number
   r2: number
-  /** Points inside the window. */
+  /** Number of points inside the fit window */
   n: number
 }
 
@@ -43,7 +43,7 @@ function windowIndices(E: ArrayLike<number>, alpha: ArrayLike<number>, from: num
     const e = E[i]
     if (e >= lo && e <= hi) {
       if (!Number.isFinite(alpha[i])) {
-        throw new FitError(`The absorption coefficient is not a finite number at ${eV(e)}, inside the ${method} fit window.`)
+        throw new FitError(`The absorption coefficient is not a finite number at ${eV(e)}, inside the ${method} fit window (from and to).`)
       }
       idx.push(i)
     }
@@ -80,7 +80,7 @@ export function taucFit(E: ArrayLike<number>, alpha: ArrayLike<number>, r: numbe
   const y = new Float64Array(idx.length)
   for (let j = 0; j < idx.length; j++) {
     const i = idx[j]
-    if (alpha[i] < 0) throw new FitError(`The absorption coefficient is negative at ${eV(E[i])}, inside the Tauc fit window.`)
+    if (alpha[i] < 0) throw new FitError(`The absorption coefficient is negative at ${eV(E[i])}, inside the Tauc fit window (from and to).`)
     x[j] = E[i]
     y[j] = p === 2 ? (alpha[i] * E[i]) ** 2 : Math.pow(alpha[i] * E[i], p)
   }

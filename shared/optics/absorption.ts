@@ -29,15 +29,20 @@ function tauc1(E: number, Eg: number, B: number, r: number): number {
  * - `r`: exponent (> 0): 1/2 direct allowed, 3/2 direct forbidden, 2 indirect allowed, 3 indirect forbidden
  * - result: absorption coefficient α, 1/m
  *
- * Source: J. Tauc, R. Grigorovici, A. Vancu, phys. stat. sol. 15, 627 (1966), eq. (4); exponents as in
- * J. I. Pankove, Optical Processes in Semiconductors (Dover 1971), §3-A.
+ * Source: J. Tauc, R. Grigorovici, A. Vancu, phys. stat. sol. 15, 627 (1966); exponents as in
+ * J. I. Pankove, Optical Processes in Semiconductors (Dover 1971), ch. 3 (absorption edges).
  *
  * @example alphaTauc(1.6 eV, 1.5 eV, 4e9 eV/cm², 0.5) = alphaTauc(2.5634826e-19, 2.4032649e-19, 6.4087065e-6, 0.5)
  *   → 1.25e6 1/m (1.25e4 cm⁻¹): √(4e9·0.1) eV/cm / 1.6 eV = 2e4/1.6 cm⁻¹
  */
 export function alphaTauc(E: Num, Eg: Num, B: Num, r: Num): Num {
-  check('alpha_tauc', 'the exponent r', r, positive, 'positive')
-  check('alpha_tauc', 'the coefficient B', B, nonNegative, 'zero or positive')
+  return tauc('alpha_tauc', E, Eg, B, r)
+}
+
+function tauc(fn: string, E: Num, Eg: Num, B: Num, r: Num): Num {
+  check(fn, 'the exponent r', r, positive, 'positive')
+  check(fn, 'the coefficient B', B, nonNegative, 'zero or positive')
+  check(fn, 'the gap Eg', Eg, nonNegative, 'zero or positive')
   if (typeof E !== 'number' && typeof Eg === 'number' && typeof B === 'number' && typeof r === 'number') {
     const out = new Float64Array(E.length)
     for (let i = 0; i < out.length; i++) {
@@ -55,12 +60,12 @@ export function alphaTauc(E: Num, Eg: Num, B: Num, r: Num): Num {
  * - `E`: photon energy, J; `Eg`: direct gap, J; `B`: J/m² (so (αE)² = B·(E − Eg))
  * - result: α, 1/m
  *
- * Source: Pankove, Optical Processes in Semiconductors (1971), eq. (3-5) (α ∝ (hν − Eg)^(1/2)), written in Tauc form.
+ * Source: Pankove, Optical Processes in Semiconductors (1971), ch. 3 (α ∝ (hν − Eg)^(1/2)), written in Tauc form.
  *
  * @example alphaDirect(1.6 eV, 1.5 eV, 4e9 eV/cm²) → 1.25e6 1/m (1.25e4 cm⁻¹)
  */
 export function alphaDirect(E: Num, Eg: Num, B: Num): Num {
-  return alphaTauc(E, Eg, B, 0.5)
+  return tauc('alpha_direct', E, Eg, B, 0.5)
 }
 
 /**
@@ -69,12 +74,12 @@ export function alphaDirect(E: Num, Eg: Num, B: Num): Num {
  * - `E`: photon energy, J; `Eg`: indirect gap, J; `B`: 1/(J·m^(1/2)) (so (αE)^(1/2) = B·(E − Eg))
  * - result: α, 1/m
  *
- * Source: Tauc et al., phys. stat. sol. 15, 627 (1966); Pankove (1971) §3-A-2.
+ * Source: Tauc et al., phys. stat. sol. 15, 627 (1966); Pankove (1971), ch. 3 (indirect transitions).
  *
  * @example alphaIndirect(1.2 eV, 1.1 eV, B) with B = 1e3 /√(eV·cm) → 1e4/1.2 cm⁻¹ = 8.333e5 1/m
  */
 export function alphaIndirect(E: Num, Eg: Num, B: Num): Num {
-  return alphaTauc(E, Eg, B, 2)
+  return tauc('alpha_indirect', E, Eg, B, 2)
 }
 
 function indirectPhonon1(E: number, Eg: number, Ep: number, T: number, C: number): number {
@@ -103,7 +108,7 @@ function indirectPhonon1(E: number, Eg: number, Ep: number, T: number, C: number
  * - `C`: strength, 1/(m·J²) (≥ 0)
  * - result: α, 1/m
  *
- * Source: G. G. Macfarlane, V. Roberts, Phys. Rev. 97, 1714 (1955); Pankove (1971) eqs. (3-24)–(3-26).
+ * Source: G. G. Macfarlane, V. Roberts, Phys. Rev. 97, 1714 (1955); Pankove (1971), ch. 3 (indirect transitions).
  *
  * @example alphaIndirectPhonon(1.2 eV, 1.1 eV, 0.05 eV, 300, C) with C = 1e4 cm⁻¹/eV²: N = 0.1690, N + 1 = 1.1690,
  *   so α = 1e4·(0.1690·0.15² + 1.1690·0.05²) cm⁻¹ = 67.246 cm⁻¹ = 6724.60 1/m
@@ -132,6 +137,7 @@ function urbach1(E: number, alpha0: number, E0: number, Eu: number): number {
  */
 export function alphaUrbach(E: Num, alpha0: Num, E0: Num, Eu: Num): Num {
   check('alpha_urbach', 'the Urbach energy Eu', Eu, positive, 'positive')
+  check('alpha_urbach', 'alpha0', alpha0, nonNegative, 'zero or positive')
   if (typeof E !== 'number' && typeof alpha0 === 'number' && typeof E0 === 'number' && typeof Eu === 'number') {
     const out = new Float64Array(E.length)
     const inv = 1 / Eu

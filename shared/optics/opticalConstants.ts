@@ -99,7 +99,7 @@ export function kFromEps(eps1: Num, eps2: Num): Num {
  *   `C`: m⁴ (µm⁴ times 1e-24)
  * - result: n
  *
- * Source: A.-L. Cauchy (1836); e.g. F. A. Jenkins, H. E. White, Fundamentals of Optics, 4th ed., §23.
+ * Source: A.-L. Cauchy (1836); e.g. F. A. Jenkins, H. E. White, Fundamentals of Optics (chapter on dispersion).
  *
  * @example cauchyN(500e-9, 1.5, 4e-15, 0) (B = 0.004 µm²) → 1.5 + 0.004/0.25 = 1.516
  */
@@ -139,7 +139,7 @@ export function sellmeierN(lambda: Num, B1: Num, C1: Num, B2: Num, C2: Num, B3: 
  *   (≥ 0); `epsInf`: background (high-frequency) permittivity, dimensionless
  * - result: ε1, dimensionless (zero near the screened plasma energy √(Ep²/ε∞ − γ²))
  *
- * Source: P. Drude (1900); N. W. Ashcroft, N. D. Mermin, Solid State Physics (1976), ch. 1, eq. (1.35), with a
+ * Source: P. Drude (1900); N. W. Ashcroft, N. D. Mermin, Solid State Physics (1976), ch. 1, with a
  * background ε∞ as in M. Fox, Optical Properties of Solids, 2nd ed. (2010), ch. 7.
  *
  * @example drudeEps1(1 eV, 2 eV, 0.1 eV, 4) → 4 − 4/1.01 = 0.039604
@@ -188,7 +188,7 @@ function checkTL(fn: string, A: Num, E0: Num, C: Num, Eg: Num): void {
  *   `Eg`: gap, J (≥ 0)
  * - result: ε2, dimensionless
  *
- * Source: G. E. Jellison Jr., F. A. Modine, Appl. Phys. Lett. 69, 371 (1996), eq. (4); erratum 69, 2137 (1996).
+ * Source: G. E. Jellison Jr., F. A. Modine, Appl. Phys. Lett. 69, 371 (1996); erratum 69, 2137 (1996).
  *
  * @example taucLorentzEps2(3 eV, 100 eV, 3.5 eV, 2 eV, 1.5 eV) → 100·3.5·2·1.5²/((9 − 12.25)² + 4·9)/3 = 11.27517
  */
@@ -251,7 +251,7 @@ function tlEps1(Ein: number, Ain: number, E0in: number, Cin: number, Egin: numbe
  *   infinite energy, dimensionless
  * - result: ε1, dimensionless (NaN when C ≥ 2E0, outside the model)
  *
- * Source: G. E. Jellison Jr., F. A. Modine, Appl. Phys. Lett. 69, 371 (1996), eq. (5), with the correction of the
+ * Source: G. E. Jellison Jr., F. A. Modine, Appl. Phys. Lett. 69, 371 (1996), the closed form of ε1, with the correction of the
  * erratum, Appl. Phys. Lett. 69, 2137 (1996). Checked against a numerical Kramers–Kronig integral of ε2 in the tests.
  *
  * @example taucLorentzEps1(3 eV, 100 eV, 3.5 eV, 2 eV, 1.5 eV, 1) → 13.50861 (the test checks it against

@@ -44,7 +44,7 @@ export function photonWavelength(E: Num): Num {
  * - `lambda`: vacuum wavelength, m (> 0)
  * - result: wavenumber, 1/m (shown as cm⁻¹ by convention: divide by 100)
  *
- * Source: definition (IUPAC Green Book, 3rd ed., §2.7).
+ * Source: definition (IUPAC Green Book, quantities of spectroscopy).
  *
  * @example wavenumber(500e-9) → 2e6 1/m (20000 cm⁻¹)
  */

@@ -81,7 +81,17 @@ export function photocurrent(lambda: Num, absorptance: Num, flux: Num): number {
 
 const ZETA3 = 1.2020569031595942
 
-/** ∫ₓ^∞ t²/(eᵗ − 1) dt: the series Σ e^(−kx)(x²/k + 2x/k² + 2/k³) for x ≥ 2, else 2ζ(3) − ∫₀ˣ by Gauss–Legendre. */
+/**
+ * The Bose–Einstein integral ∫ₓ^∞ t²/(eᵗ − 1) dt that sets the black-body photon flux above a gap (x = Eg/kT):
+ * the series Σ e^(−kx)(x²/k + 2x/k² + 2/k³) for x ≥ 2, else 2ζ(3) − ∫₀ˣ by 80-point Gauss–Legendre.
+ *
+ * - `x`: reduced energy, dimensionless (≥ 0); result: dimensionless
+ *
+ * Source: termwise integration of t²·Σ e^(−kt) (e.g. W. Shockley, H. J. Queisser, J. Appl. Phys. 32, 510 (1961),
+ * the function Q_g); ζ(3) = 1.2020569031595942.
+ *
+ * @example boseIntegral2(0) → 2ζ(3) = 2.4041138; boseIntegral2(40) → e^(−40)·1682 = 7.1457e-15
+ */
 export function boseIntegral2(x: number): number {
   if (x >= 2) {
     let s = 0

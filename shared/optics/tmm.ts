@@ -41,7 +41,7 @@ const el = (x: Num, i: number): number => (typeof x === 'number' ? x : x[i])
  * - `n0`: ambient index (> 0, transparent); `nSub`: substrate index (> 0, transparent, semi-infinite: no back face)
  * - result: { R, T, A } as fractions; each is a number when every input is a scalar, else a Float64Array
  *
- * Source: Macleod, Thin-Film Optical Filters, 4th ed. (2010), ch. 2 (characteristic matrix, eqs. for Y, R, T);
+ * Source: Macleod, Thin-Film Optical Filters, 4th ed. (2010), ch. 2 (characteristic matrix; admittance Y, R, T);
  * M. Born, E. Wolf, Principles of Optics, 7th ed., §1.6.
  *
  * @example tmmNormal(550e-9, [{ n: 1.38, k: 0, d: 550e-9 / (4·1.38) }], 1, 1.52) (MgF₂ quarter wave on glass)

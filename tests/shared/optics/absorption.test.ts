@@ -35,6 +35,8 @@ describe('alphaTauc(E, Eg, B, r)', () => {
   it('alphaTauc refuses a non-positive exponent and a negative coefficient, naming the function', () => {
     expect(() => alphaTauc(1.6 * eV, 1.5 * eV, B5, 0)).toThrow(/alpha_tauc: the exponent r must be positive/)
     expect(() => alphaTauc(1.6 * eV, 1.5 * eV, -1, 0.5)).toThrow(/alpha_tauc: the coefficient B/)
+    expect(() => alphaTauc(1.6 * eV, -1, B5, 0.5)).toThrow(/alpha_tauc: the gap Eg/)
+    expect(() => alphaDirect(1.6 * eV, 1.5 * eV, -1)).toThrow(/alpha_direct: the coefficient B/)
   })
   it('alphaDirect and alphaIndirect are alphaTauc with r = 1/2 and r = 2 (exact)', () => {
     const E = arr(1.45 * eV, 1.55 * eV, 2 * eV)
@@ -109,6 +111,7 @@ describe('alphaUrbach(E, alpha0, E0, Eu)', () => {
   })
   it('alphaUrbach refuses a non-positive Urbach energy', () => {
     expect(() => alphaUrbach(1.4 * eV, 1e6, 1.5 * eV, 0)).toThrow(/alpha_urbach: the Urbach energy Eu must be positive/)
+    expect(() => alphaUrbach(1.4 * eV, -1, 1.5 * eV, 0.02 * eV)).toThrow(/alpha_urbach: alpha0 must be zero or positive/)
   })
   it('worked example of the doc comment', () => {
     expectRel(alphaUrbach(1.45 * eV, 1e6, 1.5 * eV, 0.025 * eV), 1.3533528e5, 1e-7)

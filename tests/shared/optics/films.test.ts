@@ -5,7 +5,7 @@ import { reflectance } from '../../../shared/optics/slabs'
 import { arr, el, expectRel } from './close'
 
 // Closed forms at the design wavelength (H. A. Macleod, Thin-Film Optical Filters, 4th ed. (2010), ch. 2–3;
-// E. Hecht, Optics, 4th ed. (2002), §9.9). Floating-point cos(π/2) is 6e-17, so "exact" means to rounding.
+// E. Hecht, Optics, 4th ed. (2002), ch. 9 on interference). Floating-point cos(π/2) is 6e-17, so "exact" means to rounding.
 const ROUNDING = 1e-12
 
 /** Airy formula of one absorbing film with complex Fresnel coefficients, an independent check of the matrix code. */
@@ -41,7 +41,7 @@ describe('filmReflectance / filmTransmittance (one coherent film on a substrate,
     const lambda = 550e-9
     const d = lambda / (4 * 1.38)
     expectRel(filmReflectance(lambda, 1.38, 0, d, 1.52), ((1.52 - 1.38 ** 2) / (1.52 + 1.38 ** 2)) ** 2, ROUNDING)
-    // "about 1.3 %" for single-layer MgF₂ on crown glass: Hecht, Optics §9.9 (from memory)
+    // "about 1.3 %" for single-layer MgF₂ on crown glass: Hecht, Optics ch. 9 (from memory)
     expect(filmReflectance(lambda, 1.38, 0, d, 1.52) as number).toBeCloseTo(0.0126, 4)
   })
   it('a quarter-wave film of index √ns is a perfect antireflection coating (R = 0)', () => {
@@ -62,7 +62,7 @@ describe('filmReflectance / filmTransmittance (one coherent film on a substrate,
     const T = filmTransmittance(lam, 2.3, 0, 333e-9, 1.46)
     for (let i = 0; i < lam.length; i++) expect(Math.abs(el(R, i) + el(T, i) - 1)).toBeLessThan(1e-14)
   })
-  it('an absorbing film matches the Airy formula with complex Fresnel coefficients (Born & Wolf §13.4)', () => {
+  it('an absorbing film matches the Airy formula with complex Fresnel coefficients (Born & Wolf, Principles of Optics, optics of metals: absorbing films)', () => {
     for (const [lambda, n, k, d, ns] of [
       [500e-9, 3, 0.1, 200e-9, 1.5],
       [633e-9, 4.2, 0.03, 1e-6, 1.52],
@@ -93,7 +93,7 @@ describe('filmReflectance / filmTransmittance (one coherent film on a substrate,
 })
 
 describe('tmmNormal(lambda, layers, n0, nSub)', () => {
-  it('tmmNormal of a (HL)³H quarter-wave stack gives R = ((1 − Y)/(1 + Y))², Y = (nH/nL)⁶·nH²/ns (Macleod ch. 6)', () => {
+  it('tmmNormal of a (HL)³H quarter-wave stack gives R = ((1 − Y)/(1 + Y))², Y = (nH/nL)⁶·nH²/ns (Macleod, quarter-wave high reflector)', () => {
     const lambda = 550e-9
     const nH = 2.35
     const nL = 1.38
