@@ -1,0 +1,179 @@
+import { describe, expect, it } from 'vitest'
+import { SheetEngine } from '../../../shared/engine/index'
+import type { SheetCell } from '../../../shared/schema/sheet'
+import { pick, run, withIds } from './helpers'
+
+function engineWith(cells: unknown[]): { engine: SheetEngine; cells: SheetCell[]; id: (name: string) => string } {
+  const all = withIds(cells)
+  const engine = new SheetEngine()
+  engine.load(all, 'graph')
+  const id = (name: string): string => all.find((c) => c.name === name)!.id
+  return { engine, cells: all, id }
+}
+
+const named = (engine: SheetEngine, ids: string[]): (string | undefined)[] => ids.map((i) => engine.resultOf(i)?.name)
+
+describe('dependency graph: order, cycles, unknown names, blocked cells', () => {
+  it('cells evaluate in dependency order whatever their order in the sheet', () => {
+    const res = run([
+      { kind: 'formula', name: 'c', source: 'b * 2' },
+      { kind: 'formula', name: 'b', source: 'a + 1' },
+      { kind: 'parameter', name: 'a', value: 1 },
+    ])
+    expect(pick(res, 'c').value).toBe(4)
+    expect(res.cells.map((c) => c.index)).toEqual([0, 1, 2])
+  })
+
+  it('a cycle is an error on each of its cells naming the cycle; cells reading it are blocked; the rest works', () => {
+    const res = run([
+      { kind: 'formula', name: 'a', source: 'b + 1' },
+      { kind: 'formula', name: 'b', source: 'a * 2' },
+      { kind: 'formula', name: 'c', source: 'a + 1' },
+      { kind: 'parameter', name: 'd', value: 5 },
+      { kind: 'formula', name: 'e', source: 'd * 2' },
+    ])
+    expect(pick(res, 'a')).toMatchObject({ status: 'error', error: 'circular reference: a → b → a' })
+    expect(pick(res, 'b')).toMatchObject({ status: 'error', error: 'circular reference: b → a → b' })
+    expect(pick(res, 'c')).toMatchObject({ status: 'blocked', error: 'blocked: input a failed' })
+    expect(pick(res, 'e')).toMatchObject({ status: 'ok', value: 10 })
+  })
+
+  it('a cell reading itself is a cycle of one', () => {
+    expect(pick(run([{ kind: 'formula', name: 'x', source: 'x + 1' }]), 'x').error).toBe('circular reference: x → x')
+  })
+
+  it('a longer cycle names every cell along it', () => {
+    const res = run([
+      { kind: 'formula', name: 'p', source: 'q' },
+      { kind: 'formula', name: 'q', source: 'r' },
+      { kind: 'formula', name: 'r', source: 'p' },
+    ])
+    expect(pick(res, 'q').error).toBe('circular reference: q → r → p → q')
+  })
+
+  it('dependents of a failed cell are blocked, each naming its own failed input', () => {
+    const res = run([
+      { kind: 'formula', name: 'u', source: '1 +' },
+      { kind: 'formula', name: 'v', source: 'u + 1' },
+      { kind: 'formula', name: 'w', source: 'v + 1' },
+      { kind: 'formula', name: 'z', source: '3' },
+    ])
+    expect(pick(res, 'u').status).toBe('error')
+    expect(pick(res, 'v')).toMatchObject({ status: 'blocked', error: 'blocked: input u failed' })
+    expect(pick(res, 'w')).toMatchObject({ status: 'blocked', error: 'blocked: input v failed' })
+    expect(pick(res, 'z').value).toBe(3)
+  })
+
+  it('a formula reading a sweep or a note cell is an error saying what it can read', () => {
+    const res = run([
+      { kind: 'parameter', name: 'd', value: 1 },
+      { kind: 'formula', name: 'y', source: 'd * 2' },
+      { kind: 'sweep', name: 'sw', parameter: 'd', from: 1, to: 2, steps: 2, outputs: ['y'] },
+      { kind: 'formula', name: 'bad', source: 'sw + 1' },
+    ])
+    expect(pick(res, 'bad').error).toMatch(/sw is a sweep cell/)
+  })
+})
+
+describe('SheetEngine.update', () => {
+  const base = [
+    { kind: 'parameter', name: 'a', value: 1, unit: 'nm' },
+    { kind: 'parameter', name: 'k', value: 3 },
+    { kind: 'formula', name: 'b', source: 'a * 2', unit: 'nm' },
+    { kind: 'formula', name: 'c', source: 'b + 1*nm', unit: 'nm' },
+    { kind: 'formula', name: 'other', source: 'k * 2' },
+  ]
+
+  it('update(cellId, cell) recomputes only the edited cell and its dependents, in order, and returns their ids', () => {
+    const { engine, cells, id } = engineWith(base)
+    const ids = engine.update(id('a'), { ...cells[0], value: 5 } as SheetCell)
+    expect(named(engine, ids)).toEqual(['a', 'b', 'c'])
+    expect(engine.resultOf(id('c'))?.value).toBe(11)
+    expect(engine.resultOf(id('other'))?.value).toBe(6)
+  })
+
+  it('update of a formula that starts reading another cell rewires the graph', () => {
+    const { engine, cells, id } = engineWith(base)
+    engine.update(id('other'), { ...cells[4], source: 'k * c / nm' } as SheetCell)
+    expect(engine.resultOf(id('other'))?.value).toBeCloseTo(9, 12)
+    const ids = engine.update(id('a'), { ...cells[0], value: 2 } as SheetCell)
+    expect(named(engine, ids)).toEqual(['a', 'b', 'c', 'other'])
+    expect(engine.resultOf(id('other'))?.value).toBeCloseTo(15, 12)
+  })
+
+  it('renaming a cell turns its readers into unknown-name errors, and naming it back heals them', () => {
+    const { engine, cells, id } = engineWith(base)
+    engine.update(id('a'), { ...cells[0], name: 'a2' } as SheetCell)
+    expect(engine.resultOf(id('b'))).toMatchObject({ status: 'error', error: 'unknown name: a' })
+    expect(engine.resultOf(id('c'))?.status).toBe('blocked')
+    engine.update(id('a'), { ...cells[0] } as SheetCell)
+    expect(engine.resultOf(id('c'))).toMatchObject({ status: 'ok', value: 3 })
+  })
+
+  it('update(cellId, null) removes a cell; its readers report the missing name', () => {
+    const { engine, id } = engineWith(base)
+    const ids = engine.update(id('b'), null)
+    expect(named(engine, ids)).toEqual(['c'])
+    expect(engine.resultOf(id('c'))?.error).toBe('unknown name: b')
+    expect(engine.results().cells).toHaveLength(4)
+  })
+
+  it('a broken edit is an error value on the cell, never an exception, and fixing it recovers the sheet', () => {
+    const { engine, cells, id } = engineWith(base)
+    expect(() => engine.update(id('b'), { ...cells[2], source: 'a * (' } as SheetCell)).not.toThrow()
+    expect(engine.resultOf(id('b'))?.status).toBe('error')
+    expect(engine.resultOf(id('c'))?.error).toBe('blocked: input b failed')
+    engine.update(id('b'), cells[2])
+    expect(engine.resultOf(id('c'))?.value).toBe(3)
+  })
+
+  it('a second cell taking a name already used is an error on the later cell', () => {
+    const { engine, id } = engineWith(base)
+    engine.update('new', { id: 'new', kind: 'parameter', name: 'k', value: 9 } as SheetCell)
+    expect(engine.resultOf('new')?.error).toBe('the name k is already used by cells[1]')
+    expect(engine.resultOf(id('other'))?.value).toBe(6)
+  })
+
+  it('insert(cell, index) places the cell and resolves names that were unknown', () => {
+    const { engine, id } = engineWith([{ kind: 'formula', name: 'y', source: 'x * 2' }])
+    expect(engine.resultOf(id('y'))?.error).toBe('unknown name: x')
+    const ids = engine.insert({ id: 'x1', kind: 'parameter', name: 'x', value: 4 } as SheetCell, 0)
+    expect(ids).toEqual(['x1', id('y')])
+    expect(engine.results().cells.map((c) => c.name)).toEqual(['x', 'y'])
+    expect(engine.resultOf(id('y'))?.value).toBe(8)
+  })
+
+  it('move(cellId, index) reorders the results and decides which of two same-named cells holds the name', () => {
+    const { engine, id } = engineWith([
+      { id: 'one', kind: 'parameter', name: 'p', value: 1 },
+      { kind: 'formula', name: 'y', source: 'p * 10' },
+    ])
+    engine.insert({ id: 'two', kind: 'parameter', name: 'p', value: 2 } as SheetCell, 2)
+    expect(engine.resultOf(id('y'))?.value).toBe(10)
+    engine.move('two', 0)
+    expect(engine.results().cells.map((c) => c.id)).toEqual(['two', 'one', id('y')])
+    expect(engine.resultOf(id('y'))?.value).toBe(20)
+    expect(engine.resultOf('one')?.error).toMatch(/already used by cells\[0\]/)
+  })
+
+  it('editing the value of a swept parameter leaves the sweep alone; editing another input re-runs it', () => {
+    const { engine, cells, id } = engineWith([
+      { kind: 'parameter', name: 'd', value: 100, unit: 'nm' },
+      { kind: 'parameter', name: 'alpha', value: 1e4, unit: '1/cm' },
+      { kind: 'formula', name: 'A', source: 'absorbed_fraction(alpha, d)', unit: '%' },
+      { kind: 'sweep', name: 'thick', parameter: 'd', from: 100, to: 1000, steps: 10, unit: 'nm', outputs: ['A'] },
+    ])
+    const before = JSON.stringify(engine.resultOf(id('thick'))?.value)
+    expect(named(engine, engine.update(id('d'), { ...cells[0], value: 500 } as SheetCell))).toEqual(['d', 'A'])
+    expect(JSON.stringify(engine.resultOf(id('thick'))?.value)).toBe(before)
+    expect(named(engine, engine.update(id('alpha'), { ...cells[1], value: 2e4 } as SheetCell))).toEqual(['alpha', 'A', 'thick'])
+    expect(JSON.stringify(engine.resultOf(id('thick'))?.value)).not.toBe(before)
+  })
+
+  it('results() is JSON-ready: arrays are plain number arrays', () => {
+    const { engine } = engineWith([{ kind: 'formula', name: 'g', source: 'grid(0, 1, 3)' }])
+    const v = engine.results().cells[0].value
+    expect(Array.isArray(v)).toBe(true)
+    expect(JSON.parse(JSON.stringify(engine.results()))).toEqual(engine.results())
+  })
+})

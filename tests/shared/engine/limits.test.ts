@@ -1,0 +1,53 @@
+import { describe, expect, it } from 'vitest'
+import { formula, pick, run } from './helpers'
+import { MAX_FORMULA_LENGTH } from '../../../shared/engine/limits'
+
+describe('evaluation limits', () => {
+  it('an array of more than 1,000,000 elements is an error on that cell only', () => {
+    const res = run([
+      { kind: 'formula', name: 'big', source: 'grid(0, 1, 1000001)' },
+      { kind: 'formula', name: 'fine', source: 'len(grid(0, 1, 1000000))' },
+    ])
+    expect(pick(res, 'big').status).toBe('error')
+    expect(pick(res, 'big').error).toBe('grid: 1,000,001 points exceed the limit of 1,000,000 elements')
+    expect(pick(res, 'fine').value).toBe(1000000)
+  })
+
+  it('the element limit can be lowered per engine', () => {
+    const res = run([{ kind: 'formula', name: 'a', source: 'grid(0, 1, 2000)' }], { maxElements: 1000 })
+    expect(pick(res, 'a').error).toMatch(/limit of 1,000 elements/)
+  })
+
+  it('a formula longer than the cap is an error saying the cap', () => {
+    const source = Array.from({ length: 1300 }, () => '1').join(' + ')
+    expect(source.length).toBeGreaterThan(MAX_FORMULA_LENGTH)
+    expect(formula(source).error).toBe(`the formula is ${source.length} characters long; the limit is ${MAX_FORMULA_LENGTH}`)
+  })
+
+  it('a formula with too many terms is an error', () => {
+    const source = Array.from({ length: 1500 }, () => 'x').join('+')
+    expect(formula(source, undefined, [{ kind: 'parameter', name: 'x', value: 1 }]).error).toMatch(/more than 2000 terms/)
+  })
+
+  it('deeply nested parentheses are an error, not a crash', () => {
+    const source = '('.repeat(2400) + '1' + ')'.repeat(2400)
+    const r = formula(source)
+    expect(r.status).toBe('error')
+  })
+
+  it('a cell that runs past its time budget is stopped with an error; the rest of the sheet still evaluates', () => {
+    // without the budget this sweep would run 10,000 steps over a 20,000-element grid: seconds of work
+    const res = run(
+      [
+        { kind: 'parameter', name: 'p', value: 1 },
+        { kind: 'formula', name: 'y', source: 'sum(grid(0, 1, 20000) * p)' },
+        { kind: 'sweep', name: 's', parameter: 'p', from: 1, to: 2, steps: 10000, outputs: ['y'] },
+        { kind: 'formula', name: 'other', source: '2 * p' },
+      ],
+      { timeBudgetMs: 200 },
+    )
+    expect(pick(res, 's').status).toBe('error')
+    expect(pick(res, 's').error).toMatch(/took longer than the 200 ms budget/)
+    expect(pick(res, 'other').value).toBe(2)
+  })
+})
