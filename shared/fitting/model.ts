@@ -106,11 +106,19 @@ export function fitModel(options: ModelFitOptions): ModelFit {
 
   // a two-entry cache: the optimiser evaluates the current point and the trial point in turn
   const cache: { key: number[]; val: Float64Array }[] = []
+  // an error thrown by the caller's model passes through unchanged (the engine's own limits, for instance)
+  let modelError: unknown = null
   const model = (u: ArrayLike<number>): Float64Array => {
     for (const c of cache) if (c.key.every((v, k) => v === u[k])) return c.val
     if (Date.now() > deadline) throw new FitError(`The model fit ran past its time budget of ${options.timeBudgetMs} ms.`)
     const params = Array.from({ length: p }, (_, k) => u[k] * scale[k])
-    const m = evaluate(params)
+    let m: Float64Array
+    try {
+      m = evaluate(params)
+    } catch (e) {
+      modelError = e
+      throw e
+    }
     if (!m || m.length !== n) throw new FitError(`The model gave ${m ? m.length : 0} values for ${n} data points.`)
     cache.unshift({ key: Array.from(u), val: m })
     if (cache.length > 2) cache.pop()
@@ -208,7 +216,7 @@ export function fitModel(options: ModelFitOptions): ModelFit {
         jacobianFunction: jacFn,
       }).parameterValues
     } catch (e) {
-      if (e instanceof FitError) throw e
+      if (e instanceof FitError || e === modelError) throw e
       throw new FitError(`The optimiser failed: ${(e as Error).message}.`)
     }
     const next = chi2Of(trial)

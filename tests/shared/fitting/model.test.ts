@@ -112,6 +112,15 @@ describe('fitModel({ evaluate, y, start, min?, max?, weights?, maxIterations? })
     ).toThrow(/The fit is singular/)
     expect(() => fitModel({ evaluate: line, y: [1, NaN, 3], start: [1, 1] })).toThrow(/Data point 2 is not a finite number/)
   })
+  it('fitModel lets an error thrown by the model itself through unchanged', () => {
+    class Budget extends Error {}
+    let calls = 0
+    const evaluate = ([a]: number[]): Float64Array => {
+      if (++calls > 3) throw new Budget('over the time budget')
+      return Float64Array.of(a, 2 * a, 3 * a)
+    }
+    expect(() => fitModel({ evaluate, y: [1, 2, 3.5], start: [0.5] })).toThrow(Budget)
+  })
   it('fitModel stops at maxIterations and says it did not converge', () => {
     const f = fitModel({ evaluate: saturating(MISRA1A.x), y: MISRA1A.y, start: [500, 1e-4], maxIterations: 2 })
     expect(f.iterations).toBe(2)
