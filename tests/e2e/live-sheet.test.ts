@@ -48,6 +48,20 @@ async function formulaText(page: Page, name: string): Promise<string> {
   return (await card(page, name).locator('.cm-content').textContent()) ?? ''
 }
 
+/** Drags a parameter's slider handle by `dx` pixels in ten small moves, as a hand does. */
+async function dragSlider(page: Page, name: string, dx: number): Promise<void> {
+  const handle = card(page, name).locator('.el-slider__button-wrapper')
+  await handle.scrollIntoViewIfNeeded()
+  const box = await handle.boundingBox()
+  if (!box) throw new Error(`the slider handle of ${name} is not visible`)
+  const x = box.x + box.width / 2
+  const y = box.y + box.height / 2
+  await page.mouse.move(x, y)
+  await page.mouse.down()
+  for (let i = 1; i <= 10; i++) await page.mouse.move(x + (i * dx) / 10, y, { steps: 2 })
+  await page.mouse.up()
+}
+
 async function openLive(page: Page, base: string, sheetId: string): Promise<void> {
   await page.goto(`${base}/sheets/${sheetId}`)
   await expect.poll(() => page.getByTestId('connection').textContent(), { timeout: 20_000 }).toContain('Live')
@@ -78,16 +92,7 @@ describe('the live sheet in two browsers', () => {
     expect(reviewerFigureBefore).toBe(editorFigureBefore)
 
     // the editor drags the Eg slider to the right in small steps, as a hand does
-    const handle = card(editor.page, PARAMETER).locator('.el-slider__button-wrapper')
-    await handle.scrollIntoViewIfNeeded()
-    const box = await handle.boundingBox()
-    if (!box) throw new Error('the slider handle of Eg is not visible')
-    const x = box.x + box.width / 2
-    const y = box.y + box.height / 2
-    await editor.page.mouse.move(x, y)
-    await editor.page.mouse.down()
-    for (let i = 1; i <= 10; i++) await editor.page.mouse.move(x + i * 12, y, { steps: 2 })
-    await editor.page.mouse.up()
+    await dragSlider(editor.page, PARAMETER, 120)
 
     await expect.poll(() => parameterValue(editor.page, PARAMETER), { timeout: 10_000 }).not.toBe(valueBefore)
     const valueAfter = await parameterValue(editor.page, PARAMETER)
@@ -100,7 +105,9 @@ describe('the live sheet in two browsers', () => {
     await expect.poll(async () => (await figureSignature(reviewer.page, FIGURE)) === (await figureSignature(editor.page, FIGURE)), { timeout: 20_000 }).toBe(true)
 
     // the reviewer cannot drag the slider nor type into a formula
-    expect(await card(reviewer.page, PARAMETER).locator('.el-slider').getAttribute('class')).toContain('is-disabled')
+    expect(await card(reviewer.page, PARAMETER).getByRole('slider').getAttribute('aria-disabled')).toBe('true')
+    await dragSlider(reviewer.page, PARAMETER, -80)
+    expect(await parameterValue(reviewer.page, PARAMETER)).toBe(valueAfter)
     const formula = card(reviewer.page, FORMULA).locator('.cm-content')
     expect(await formula.getAttribute('contenteditable')).toBe('false')
     const sourceBefore = await formulaText(editor.page, FORMULA)
