@@ -69,7 +69,7 @@ export function createApp(deps: AppDeps): Express {
   api.use('/labs', labRoutes(deps))
   api.use('/invitations', invitationRoutes(deps))
   api.use('/sheets', sheets)
-  api.use('/evaluate', evaluateRoutes(deps))
+  api.use('/evaluate', evaluateRoutes())
   api.use(notFoundHandler)
   app.use('/api', api)
 

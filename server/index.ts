@@ -17,6 +17,7 @@ import { defaultConfig, type AppConfig } from './config'
 import { openDb, type DbHandle } from './db/client'
 import { demoAccountsPresent, formatDemoTable, isEmpty, seedDemo } from './db/seed'
 import { createDevMailer, smtpMailer, type Mailer } from './mail/mailer'
+import { pruneExpired } from './services/housekeeping'
 import { createCollab, type Collab } from './collab/index'
 import type { AppHooks } from './deps'
 
@@ -102,6 +103,10 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
     log(`Seeded the demo lab with ${seeded.sheets.length} sheet(s).`)
   }
 
+  pruneExpired(handle.db)
+  const housekeeping = setInterval(() => pruneExpired(handle.db), 3600_000)
+  housekeeping.unref()
+
   // behind a reverse proxy the browser's Origin is the public address, not the Host the proxy forwards
   const allowedOrigins = env.PUBLIC_URL ? [new URL(env.PUBLIC_URL).origin] : undefined
   const collab = createCollab({ db: handle.db, secret, allowedOrigins, log: (m) => log(`collab: ${m}`) })
@@ -137,6 +142,7 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
   let closing: Promise<void> | null = null
   const close = () =>
     (closing ??= (async () => {
+      clearInterval(housekeeping)
       await collab.close().catch((err: unknown) => warn(`closing collab: ${String(err)}`))
       await new Promise<void>((resolve) => {
         server.close(() => resolve())

@@ -238,3 +238,21 @@ describe('profile', () => {
     expect((await call(t, cookieFrom(ok)).get('/api/auth/me')).status).toBe(200)
   })
 })
+
+describe('pruneExpired', () => {
+  it('pruneExpired(db) drops revoked sessions past expiry and links a day past theirs, and keeps the rest', async () => {
+    const { pruneExpired } = await import('../../server/services/housekeeping')
+    const { sessionsRevoked } = await import('../../server/db/schema')
+    const t = makeTestApp()
+    const u = await createTestUser(t)
+    const now = Date.now()
+    t.db.insert(sessionsRevoked).values([{ jti: 'old', expiresAt: Math.floor(now / 1000) - 10 }, { jti: 'live', expiresAt: Math.floor(now / 1000) + 3600 }]).run()
+    t.db.insert(passwordResets).values([
+      { id: 'a', userId: u.id, tokenHash: 'ha', createdAt: now, expiresAt: now - 2 * 24 * 3600 * 1000 },
+      { id: 'b', userId: u.id, tokenHash: 'hb', createdAt: now, expiresAt: now - 1000 },
+    ]).run()
+    expect(pruneExpired(t.db, now)).toEqual({ sessions: 1, signups: 0, resets: 1 })
+    expect(t.db.select().from(sessionsRevoked).all().map((r) => r.jti)).toEqual(['live'])
+    expect(t.db.select().from(passwordResets).all().map((r) => r.id)).toEqual(['b'])
+  })
+})
