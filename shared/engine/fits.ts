@@ -57,7 +57,11 @@ function windowOf(cell: FitCell, x: Series): [number, number] {
     lo = Math.min(lo, v)
     hi = Math.max(hi, v)
   }
-  return [cell.from !== undefined ? cell.from * x.factor : lo, cell.to !== undefined ? cell.to * x.factor : hi]
+  const a = cell.from !== undefined ? cell.from * x.factor : lo
+  const b = cell.to !== undefined ? cell.to * x.factor : hi
+  // the ends are inclusive as the user reads them: a grid point shown as 1.6 eV may differ from 1.6·e in the last bit
+  const slack = 1e-9 * Math.abs(b - a)
+  return a <= b ? [a - slack, b + slack] : [a + slack, b - slack]
 }
 
 function field(value: Num, dim: Dim | null): Field {

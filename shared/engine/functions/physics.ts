@@ -11,7 +11,6 @@ import {
   AREA, CURRENT_DENSITY, DIMENSIONLESS as D, ENERGY, ENERGY_PER_TEMPERATURE, FREQUENCY, INV_LENGTH, LENGTH,
   SPECTRAL_IRRADIANCE, SPECTRAL_PHOTON_FLUX, TEMPERATURE, dimPow,
 } from '../dimensions'
-import { CellError } from '../errors'
 import type { ArgDim, Builtin, ResultDim } from './spec'
 
 type Fn = (...args: Num[]) => Num
@@ -22,7 +21,7 @@ type Fn = (...args: Num[]) => Num
  */
 function phys(
   name: string,
-  camel: string,
+  camel: keyof typeof optics,
   group: string,
   params: string[],
   args: ArgDim[],
@@ -30,7 +29,7 @@ function phys(
   doc: string,
 ): Builtin {
   const required = params.filter((p) => !p.endsWith('?')).length
-  const impl = (optics as unknown as Record<string, Fn | undefined>)[camel]
+  const impl = optics[camel] as unknown as Fn
   return {
     name,
     group,
@@ -41,11 +40,7 @@ function phys(
     maxArgs: params.length,
     args,
     result,
-    impl: impl
-      ? (xs) => impl(...xs)
-      : () => {
-          throw new CellError(`${name} is not available in this build of the optics library`, 'name')
-        },
+    impl: (xs) => impl(...xs),
   }
 }
 

@@ -1,0 +1,190 @@
+import { describe, expect, it } from 'vitest'
+import seedrandom from 'seedrandom'
+import { alphaEdge } from '../../../shared/optics/index'
+import { pick, rel, run } from './helpers'
+
+const eV = 1.602176634e-19
+
+/** A direct edge computed by the formula language itself: E in eV on a grid, α = alpha_direct(E, 1.5 eV, B). */
+const directEdge = [
+  { kind: 'formula', name: 'E', source: 'grid(1.2*eV, 2.2*eV, 501)', unit: 'eV' },
+  { kind: 'formula', name: 'alpha', source: 'alpha_direct(E, 1.5*eV, 4e9*eV/cm^2)', unit: '1/cm' },
+]
+
+/** Standard normal deviates from a seeded generator (Box–Muller). */
+function gaussian(seed: string): () => number {
+  const rng = seedrandom(seed)
+  return () => Math.sqrt(-2 * Math.log(rng() || 1e-12)) * Math.cos(2 * Math.PI * rng())
+}
+
+describe('fit cells: tauc', () => {
+  it('a tauc fit of a noise-free direct edge recovers Eg = 1.5 eV and B, r² = 1', () => {
+    const res = run([...directEdge, { kind: 'fit', name: 'edge', method: 'tauc', x: 'E', y: 'alpha', r: 0.5, from: 1.6, to: 2.0, unit: 'eV' }])
+    const fit = pick(res, 'edge')
+    expect(fit.status).toBe('ok')
+    expect(fit.unit).toBe('eV')
+    const v = fit.value as Record<string, number>
+    expect(rel(v.Eg, 1.5)).toBeLessThan(1e-9)
+    expect(v.Eg_err).toBeLessThan(1e-9)
+    // B of the Tauc law in SI: 4e9 eV/cm² = 4e9·e/1e-4 J/m²
+    expect(rel(v.B, (4e9 * eV) / 1e-4)).toBeLessThan(1e-9)
+    expect(v.r2).toBeCloseTo(1, 12)
+    expect(v.n).toBe(201)
+  })
+
+  it('the window is read in the x cell\'s display unit, and the gap is shown in the fit\'s unit', () => {
+    const res = run([
+      { kind: 'formula', name: 'E', source: 'grid(1.2*eV, 2.2*eV, 501)', unit: 'meV' },
+      directEdge[1],
+      { kind: 'fit', name: 'edge', method: 'tauc', x: 'E', y: 'alpha', r: 0.5, from: 1600, to: 2000, unit: 'meV' },
+    ])
+    const v = pick(res, 'edge').value as Record<string, number>
+    expect(rel(v.Eg, 1500)).toBeLessThan(1e-9)
+    expect(v.n).toBe(201)
+  })
+
+  it('without a fit unit the gap is shown in the x cell\'s energy unit', () => {
+    const res = run([...directEdge, { kind: 'fit', name: 'edge', method: 'tauc', x: 'E', y: 'alpha', r: 0.5, from: 1.6, to: 2.0 }])
+    expect(pick(res, 'edge').unit).toBe('eV')
+  })
+
+  it('a tauc fit with r = 2 recovers the gap of an indirect edge', () => {
+    const res = run([
+      directEdge[0],
+      { kind: 'formula', name: 'alpha', source: 'alpha_indirect(E, 1.12*eV, 1e9*eV/cm^0.5)', unit: '1/cm' },
+      { kind: 'fit', name: 'edge', method: 'tauc', x: 'E', y: 'alpha', r: 2, from: 1.3, to: 1.8, unit: 'eV' },
+    ])
+    expect(rel((pick(res, 'edge').value as Record<string, number>).Eg, 1.12)).toBeLessThan(1e-9)
+  })
+
+  it('formulas read a fit\'s results in SI as edge.Eg; an unknown result is an error listing them', () => {
+    const res = run([
+      ...directEdge,
+      { kind: 'fit', name: 'edge', method: 'tauc', x: 'E', y: 'alpha', r: 0.5, from: 1.6, to: 2.0, unit: 'eV' },
+      { kind: 'formula', name: 'gap_nm', source: 'photon_wavelength(edge.Eg)', unit: 'nm' },
+      { kind: 'formula', name: 'bad', source: 'edge.Eu' },
+    ])
+    // hc/e / 1.5 eV = 1239.841984 / 1.5 nm (CODATA 2018 exact constants)
+    expect(rel(pick(res, 'gap_nm').value as number, 1239.841984332 / 1.5)).toBeLessThan(1e-9)
+    expect(pick(res, 'gap_nm').warnings).toEqual([])
+    expect(pick(res, 'bad').error).toBe('edge has no result "Eu" (it has Eg, Eg_err, B, B_err, r2, n)')
+  })
+
+  it('a window with too few points is a clear error', () => {
+    const res = run([...directEdge, { kind: 'fit', name: 'edge', method: 'tauc', x: 'E', y: 'alpha', r: 0.5, from: 1.6, to: 1.602 }])
+    expect(pick(res, 'edge').error).toMatch(/holds 2 points; a fit needs at least 3/)
+  })
+
+  it('a window reaching below the gap is flagged: the fitted gap lies inside it', () => {
+    const res = run([...directEdge, { kind: 'fit', name: 'edge', method: 'tauc', x: 'E', y: 'alpha', r: 0.5, from: 1.3, to: 2.0 }])
+    expect(pick(res, 'edge').warnings?.join(' ')).toMatch(/not straight|inside the window/)
+  })
+
+  it('seeded noisy edges give Eg within three reported standard errors of the truth', () => {
+    const noise = gaussian('tauc-noise-1')
+    const E = Array.from({ length: 301 }, (_, i) => 1.2 + i * 0.003)
+    const alpha = E.map((e) => (e > 1.5 ? Math.sqrt(4e9 * (e - 1.5)) / e : 0) * (1 + 0.02 * noise()))
+    const res = run([
+      { kind: 'spectrum', name: 'data', columns: { E: { unit: 'eV', values: E }, alpha: { unit: '1/cm', values: alpha } } },
+      { kind: 'formula', name: 'Ex', source: 'data.E', unit: 'eV' },
+      { kind: 'formula', name: 'ax', source: 'data.alpha', unit: '1/cm' },
+      { kind: 'fit', name: 'edge', method: 'tauc', x: 'Ex', y: 'ax', r: 0.5, from: 1.6, to: 2.0, unit: 'eV' },
+    ])
+    const v = pick(res, 'edge').value as Record<string, number>
+    expect(v.Eg_err).toBeGreaterThan(0)
+    expect(Math.abs(v.Eg - 1.5)).toBeLessThan(3 * v.Eg_err)
+  })
+})
+
+describe('fit cells: urbach', () => {
+  it('an urbach fit of a noise-free tail recovers Eu = 20 meV, shown in meV', () => {
+    const res = run([
+      directEdge[0],
+      { kind: 'formula', name: 'alpha', source: 'alpha_urbach(E, 1e5/cm, 1.5*eV, 20*meV)', unit: '1/cm' },
+      { kind: 'fit', name: 'tail', method: 'urbach', x: 'E', y: 'alpha', from: 1.25, to: 1.45, unit: 'meV' },
+    ])
+    const v = pick(res, 'tail').value as Record<string, number>
+    expect(rel(v.Eu, 20)).toBeLessThan(1e-9)
+    expect(v.r2).toBeCloseTo(1, 12)
+    // alpha0 is α extrapolated to E = 0, in SI: 1e7 /m · exp(−1.5 eV / 20 meV)
+    expect(rel(v.alpha0, 1e7 * Math.exp(-75))).toBeLessThan(1e-6)
+  })
+
+  it('an urbach fit over a window with zero absorption is a clear error', () => {
+    const res = run([...directEdge, { kind: 'fit', name: 'tail', method: 'urbach', x: 'E', y: 'alpha', from: 1.3, to: 1.45 }])
+    expect(pick(res, 'tail').error).toMatch(/an Urbach fit takes its logarithm/)
+  })
+
+  it('a fit whose x is not an energy gets a warning naming the dimension', () => {
+    const res = run([
+      { kind: 'formula', name: 'lam', source: 'grid(500*nm, 1000*nm, 101)', unit: 'nm' },
+      { kind: 'formula', name: 'alpha', source: 'exp(lam/(100*nm)) / cm', unit: '1/cm' },
+      { kind: 'fit', name: 'tail', method: 'urbach', x: 'lam', y: 'alpha', from: 600, to: 900 },
+    ])
+    expect(pick(res, 'tail').warnings).toContain('x (lam) should be a photon energy, not a length')
+  })
+})
+
+describe('fit cells: model (Levenberg–Marquardt)', () => {
+  const truth = { Eg: 1.52, B: 4.2e9, Eu: 24 } // eV, eV/cm², meV
+  const E = Array.from({ length: 161 }, (_, i) => 1.4 + i * 0.0025)
+  const exact = Array.from(alphaEdge(Float64Array.from(E, (e) => e * eV), truth.Eg * eV, truth.B * eV * 1e4, 0.5, truth.Eu * 1e-3 * eV) as Float64Array, (a) => a / 100)
+  const sheet = (alpha: number[]): unknown[] => [
+    { kind: 'spectrum', name: 'data', columns: { E: { unit: 'eV', values: E }, alpha: { unit: '1/cm', values: alpha } } },
+    { kind: 'formula', name: 'Ex', source: 'data.E', unit: 'eV' },
+    { kind: 'formula', name: 'am', source: 'data.alpha', unit: '1/cm' },
+    { kind: 'parameter', name: 'Eg', value: 1.48, unit: 'eV' },
+    { kind: 'parameter', name: 'B', value: 3e9, unit: 'eV/cm^2' },
+    { kind: 'parameter', name: 'Eu', value: 30, unit: 'meV' },
+    { kind: 'formula', name: 'model', source: 'alpha_edge(Ex, Eg, B, 0.5, Eu)', unit: '1/cm' },
+    {
+      kind: 'fit', name: 'edge', method: 'model', x: 'Ex', y: 'am', model: 'model',
+      parameters: [{ name: 'Eg', min: 1.3, max: 1.7 }, { name: 'B', min: 1e8, max: 1e11 }, { name: 'Eu', min: 5, max: 80 }],
+    },
+  ]
+
+  it('a model fit recovers the parameters of a noise-free edge, each shown in its parameter cell\'s unit', () => {
+    const fit = pick(run(sheet(exact)), 'edge')
+    expect(fit.status).toBe('ok')
+    const v = fit.value as Record<string, number | number[] | boolean>
+    expect(rel(v.Eg as number, truth.Eg)).toBeLessThan(1e-6)
+    expect(rel(v.B as number, truth.B)).toBeLessThan(1e-5)
+    expect(rel(v.Eu as number, truth.Eu)).toBeLessThan(1e-5)
+    expect(v.converged).toBe(true)
+    expect((v.residuals as number[]).length).toBe(161)
+    expect(v.n).toBe(161)
+  })
+
+  it('seeded noisy data recovers every parameter within three reported standard errors', () => {
+    const noise = gaussian('model-noise-7')
+    const fit = pick(run(sheet(exact.map((a) => a * (1 + 0.01 * noise()) + 5 * noise()))), 'edge')
+    const v = fit.value as Record<string, number>
+    for (const k of ['Eg', 'B', 'Eu'] as const) {
+      expect(v[`${k}_err`], k).toBeGreaterThan(0)
+      expect(Math.abs(v[k] - truth[k]), k).toBeLessThan(3 * v[`${k}_err`])
+    }
+  })
+
+  it('the window limits the points fitted', () => {
+    const cells = sheet(exact)
+    ;(cells[7] as Record<string, unknown>).from = 1.45
+    ;(cells[7] as Record<string, unknown>).to = 1.7
+    const v = pick(run(cells), 'edge').value as Record<string, number>
+    expect(v.n).toBe(101)
+    expect(rel(v.Eg, truth.Eg)).toBeLessThan(1e-6)
+  })
+
+  it('formulas read fitted parameters in SI: edge.Eu is in joules', () => {
+    const cells = [...sheet(exact), { kind: 'formula', name: 'eu', source: 'edge.Eu', unit: 'meV' }]
+    expect(rel(pick(run(cells), 'eu').value as number, truth.Eu)).toBeLessThan(1e-5)
+  })
+
+  it('a model fit says what is wrong with its model or parameters', () => {
+    const cells = sheet(exact)
+    const fit = cells[7] as Record<string, unknown>
+    expect(pick(run([...cells.slice(0, 7), { ...fit, model: 'Ex' }]), 'edge').error).toBe('the model Ex does not depend on any of the free parameters')
+    expect(pick(run([...cells.slice(0, 7), { ...fit, model: 'data' }]), 'edge').error).toBe('the model data must be a formula cell')
+    expect(pick(run([...cells.slice(0, 7), { ...fit, parameters: [{ name: 'model' }] }]), 'edge').error)
+      .toBe('the free parameter model must be a parameter cell')
+  })
+})
