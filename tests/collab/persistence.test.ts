@@ -112,7 +112,7 @@ describe('collab: update log', () => {
     expect(formulaText(loadDocument(lab.handle.db, lab.sheetId)).toString()).toBe(text.toString())
   })
 
-  it('buildDocument() merges a long log in bounded batches into the same document as applying it row by row', () => {
+  it('buildDocument() turns a state and a long log into the same document the edits made', () => {
     const source = new Y.Doc()
     const updates: Uint8Array[] = []
     source.on('update', (u: Uint8Array) => updates.push(u))

@@ -1,0 +1,275 @@
+/**
+ * collab-latency: 50 editors on one sheet, each typing into their own formula, through
+ *   - the real collaboration server (cookie-checked upgrade, decoding and role checks, write-before-relay into SQLite
+ *     with WAL and synchronous FULL, compaction), and
+ *   - a bare relay (the @y/websocket-server utilities: no auth, no persistence),
+ * each in its own child process, alternating twice in the same run. Latency is measured per (update, receiving
+ * editor) pair from the send to its arrival; p50, p99 and the ratio real / bare are printed. Target: p99 ≤ 1.25× bare.
+ * Loopback only; every loop is bounded (50 editors × 40 updates per round).
+ *
+ * The same file is the child server when started with COLLAB_BENCH_SERVER=real|bare.
+ */
+import { spawn, type ChildProcess } from 'node:child_process'
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs'
+import http from 'node:http'
+import type { AddressInfo } from 'node:net'
+import os from 'node:os'
+import path from 'node:path'
+import { fileURLToPath } from 'node:url'
+import { randomUUID } from 'node:crypto'
+import WebSocket, { WebSocketServer } from 'ws'
+import * as Y from 'yjs'
+import * as encoding from 'lib0/encoding'
+import { openDb } from '../../server/db/client'
+import { labs, memberships, sheets, users } from '../../server/db/schema'
+import { SESSION_COOKIE, signSession } from '../../server/services/sessions'
+import { seedDocument } from '../../server/services/documents'
+import { createCollab } from '../../server/collab/index'
+import { cellsOf } from '../../shared/doc/sheetDoc'
+import type { SheetFile } from '../../shared/schema/sheet'
+
+const EDITORS = 50
+const UPDATES_PER_EDITOR = 40
+const WARMUP_UPDATES = 5
+const INTERVAL_MS = 200
+const SECRET_HEX = '70656e756d6272612d62656e63682d7365637265742d30313233343536373839'
+
+export interface LatencySummary {
+  p50: number
+  p99: number
+  samples: number
+  missing: number
+}
+
+export interface LatencyReport {
+  editors: number
+  updatesPerSecond: number
+  bare: LatencySummary
+  real: LatencySummary
+  /** The real server with synchronous = NORMAL (no fsync per commit): where the remaining gap comes from. */
+  realWithoutFsync: LatencySummary
+  ratioP50: number
+  ratioP99: number
+  targetMet: boolean
+}
+
+function sheetFile(): SheetFile {
+  return {
+    format: 'penumbra.sheet',
+    version: 1,
+    title: 'Fifty-hand edge model',
+    cells: Array.from({ length: EDITORS }, (_, i) => ({ id: `f${i}`, kind: 'formula' as const, name: `x${i}`, source: `${i}*eV`, unit: 'eV' })),
+  }
+}
+
+function percentile(sorted: Float64Array, p: number): number {
+  if (sorted.length === 0) return NaN
+  return sorted[Math.min(sorted.length - 1, Math.max(0, Math.ceil((p / 100) * sorted.length) - 1))]
+}
+
+function updateFrame(update: Uint8Array): Uint8Array {
+  const e = encoding.createEncoder()
+  encoding.writeVarUint(e, 0)
+  encoding.writeVarUint(e, 2)
+  encoding.writeVarUint8Array(e, update)
+  return encoding.toUint8Array(e)
+}
+
+// ---------------------------------------------------------------------------------------------- child servers ---
+
+async function runChildServer(kind: string): Promise<void> {
+  const server = http.createServer((_req, res) => res.writeHead(404).end())
+  if (kind === 'real' || kind === 'real-nosync') {
+    const handle = openDb(process.env.COLLAB_BENCH_DB!)
+    // Informational variant only: commits without fsync, to show how much of the gap is the disk flush.
+    if (kind === 'real-nosync') handle.sqlite.pragma('synchronous = NORMAL')
+    const collab = createCollab({ db: handle.db, secret: Buffer.from(SECRET_HEX, 'hex'), log: () => {} })
+    server.on('upgrade', (req, socket, head) => void collab.handleUpgrade(req, socket, head))
+    process.on('SIGTERM', () => void collab.close().then(() => process.exit(0)))
+  } else {
+    const utils = await import('@y/websocket-server/utils')
+    const seed = new Uint8Array(readFileSync(process.env.COLLAB_BENCH_SEED!))
+    utils.setContentInitializor(async (doc) => Y.applyUpdate(doc, seed))
+    const wss = new WebSocketServer({ noServer: true })
+    server.on('upgrade', (req, socket, head) => {
+      const docName = (req.url ?? '').split('?')[0].split('/').pop() ?? ''
+      wss.handleUpgrade(req, socket, head, (ws) => utils.setupWSConnection(ws, req, { docName, gc: true }))
+    })
+    process.on('SIGTERM', () => process.exit(0))
+  }
+  server.listen(0, '127.0.0.1', () => process.stdout.write(`listening ${(server.address() as AddressInfo).port}\n`))
+}
+
+function startChild(kind: Kind, env: Record<string, string>): Promise<{ child: ChildProcess; port: number }> {
+  const self = fileURLToPath(import.meta.url)
+  const child = spawn(process.execPath, ['--import', 'tsx', self], {
+    env: { ...process.env, ...env, COLLAB_BENCH_SERVER: kind },
+    stdio: ['ignore', 'pipe', 'inherit'],
+  })
+  return new Promise((resolve, reject) => {
+    let out = ''
+    child.stdout!.on('data', (d: Buffer) => {
+      out += d.toString()
+      const m = /listening (\d+)/.exec(out)
+      if (m) resolve({ child, port: Number(m[1]) })
+    })
+    child.on('exit', (code) => reject(new Error(`${kind} server exited with ${code}`)))
+  })
+}
+
+async function stopChild(child: ChildProcess): Promise<void> {
+  if (child.exitCode !== null || child.signalCode !== null) return
+  const done = new Promise<void>((resolve) => child.once('exit', () => resolve()))
+  child.kill('SIGTERM')
+  const timer = setTimeout(() => child.kill('SIGKILL'), 5000)
+  await done
+  clearTimeout(timer)
+}
+
+// ---------------------------------------------------------------------------------------------------- editors ---
+
+interface Editor {
+  ws: WebSocket
+  doc: Y.Doc
+  text: Y.Text
+}
+
+async function openEditors(port: number, sheetId: string, tokens: string[], seed: Uint8Array, onFrame: (who: number, data: Buffer) => void): Promise<Editor[]> {
+  return Promise.all(
+    tokens.map(
+      (token, i) =>
+        new Promise<Editor>((resolve, reject) => {
+          const ws = new WebSocket(`ws://127.0.0.1:${port}/collab/${sheetId}`, { headers: { Cookie: `${SESSION_COOKIE}=${token}` } })
+          const doc = new Y.Doc()
+          Y.applyUpdate(doc, seed)
+          const text = cellsOf(doc).get(i).get('source') as Y.Text
+          ws.on('message', (data: Buffer) => onFrame(i, data))
+          ws.once('open', () => resolve({ ws, doc, text }))
+          ws.once('error', reject)
+        }),
+    ),
+  )
+}
+
+const MARKER = /k(\d+)-(\d+);/g
+
+type Kind = 'real' | 'bare' | 'real-nosync'
+
+async function runRound(kind: Kind, env: Record<string, string>, sheetId: string, tokens: string[], seed: Uint8Array): Promise<{ latencies: number[]; missing: number }> {
+  const { child, port } = await startChild(kind, env)
+  const sent = new Map<string, number>()
+  const latencies: number[] = []
+  let received = 0
+  const onFrame = (who: number, data: Buffer) => {
+    if (data[0] !== 0 || data[1] !== 2) return
+    const now = performance.now()
+    const text = data.toString('latin1')
+    for (const m of text.matchAll(MARKER)) {
+      if (Number(m[1]) === who) continue
+      const t0 = sent.get(`${m[1]}-${m[2]}`)
+      if (t0 === undefined) continue
+      received++
+      if (Number(m[2]) >= WARMUP_UPDATES) latencies.push(now - t0)
+    }
+  }
+  const editors = await openEditors(port, sheetId, tokens, seed, onFrame)
+  await new Promise((r) => setTimeout(r, 300))
+  await Promise.all(
+    editors.map(
+      (editor, i) =>
+        new Promise<void>((resolve) => {
+          let seq = 0
+          editor.doc.on('update', (update: Uint8Array) => editor.ws.send(updateFrame(update)))
+          const tick = () => {
+            const marker = `k${i}-${seq};`
+            sent.set(`${i}-${seq}`, performance.now())
+            editor.text.insert(editor.text.length, marker)
+            seq++
+            if (seq < UPDATES_PER_EDITOR) setTimeout(tick, INTERVAL_MS)
+            else resolve()
+          }
+          setTimeout(tick, Math.random() * INTERVAL_MS)
+        }),
+    ),
+  )
+  const expected = EDITORS * UPDATES_PER_EDITOR * (EDITORS - 1)
+  const deadline = Date.now() + 15_000
+  while (received < expected && Date.now() < deadline) await new Promise((r) => setTimeout(r, 20))
+  for (const e of editors) e.ws.terminate()
+  await stopChild(child)
+  return { latencies, missing: expected - received }
+}
+
+function summarise(rounds: { latencies: number[]; missing: number }[]): LatencySummary {
+  const all = Float64Array.from(rounds.flatMap((r) => r.latencies)).sort()
+  return { p50: percentile(all, 50), p99: percentile(all, 99), samples: all.length, missing: rounds.reduce((a, r) => a + r.missing, 0) }
+}
+
+export default async function collabLatency(): Promise<LatencyReport> {
+  const dir = mkdtempSync(path.join(os.tmpdir(), 'penumbra-bench-latency-'))
+  try {
+    const dbFile = path.join(dir, 'bench.db')
+    const seedFile = path.join(dir, 'seed.bin')
+    const file = sheetFile()
+    const handle = openDb(dbFile)
+    const now = Date.now()
+    const secret = Buffer.from(SECRET_HEX, 'hex')
+    const labId = randomUUID()
+    const sheetIds = [randomUUID(), randomUUID(), randomUUID()]
+    const sheetId = sheetIds[0]
+    const tokens: string[] = []
+    for (let i = 0; i < EDITORS; i++) {
+      const id = randomUUID()
+      handle.db.insert(users).values({ id, email: `editor${i}@halvorsen-lab.example`, name: `Editor ${i}`, passwordHash: 'bench', createdAt: now }).run()
+      if (i === 0) handle.db.insert(labs).values({ id: labId, name: 'Halvorsen Thin-Film Lab', createdBy: id, createdAt: now }).run()
+      handle.db.insert(memberships).values({ labId, userId: id, role: i === 0 ? 'owner' : 'editor', createdAt: now }).run()
+      if (i === 0)
+        for (const sid of sheetIds) handle.db.insert(sheets).values({ id: sid, labId, title: file.title, createdBy: id, createdAt: now, updatedAt: now }).run()
+      tokens.push((await signSession(secret, id)).token)
+    }
+    // One fresh sheet per round of the real server, so no round inherits another's history.
+    for (const sid of sheetIds) seedDocument(handle.db, sid, file)
+    handle.close()
+    // Both servers start from byte-identical document state: the state row the seed wrote.
+    const check = openDb(dbFile)
+    const stored = check.sqlite.prepare('SELECT state FROM sheet_states WHERE sheet_id = ?').get(sheetId) as { state: Buffer }
+    check.close()
+    writeFileSync(seedFile, stored.state)
+    const seedBytes = new Uint8Array(stored.state)
+
+    const env = { COLLAB_BENCH_DB: dbFile, COLLAB_BENCH_SEED: seedFile }
+    const bare: { latencies: number[]; missing: number }[] = []
+    const real: { latencies: number[]; missing: number }[] = []
+    const nosync: { latencies: number[]; missing: number }[] = []
+    for (let round = 0; round < 2; round++) {
+      bare.push(await runRound('bare', env, sheetId, tokens, seedBytes))
+      real.push(await runRound('real', env, sheetIds[round], tokens, seedBytes))
+    }
+    nosync.push(await runRound('real-nosync', env, sheetIds[2], tokens, seedBytes))
+    const b = summarise(bare)
+    const r = summarise(real)
+    const n = summarise(nosync)
+    const report: LatencyReport = {
+      editors: EDITORS,
+      updatesPerSecond: (EDITORS * 1000) / INTERVAL_MS,
+      bare: b,
+      real: r,
+      realWithoutFsync: n,
+      ratioP50: r.p50 / b.p50,
+      ratioP99: r.p99 / b.p99,
+      targetMet: r.p99 <= 1.25 * b.p99 && r.missing === 0,
+    }
+    const ms = (x: number) => `${x.toFixed(2)} ms`
+    console.log(`collab-latency: ${EDITORS} editors, ${report.updatesPerSecond} updates/s in all, load average ${os.loadavg()[0].toFixed(1)}`)
+    console.log(`  bare relay   p50 ${ms(b.p50)}  p99 ${ms(b.p99)}  (${b.samples} deliveries, ${b.missing} missing)`)
+    console.log(`  Penumbra     p50 ${ms(r.p50)}  p99 ${ms(r.p99)}  (${r.samples} deliveries, ${r.missing} missing)`)
+    console.log(`  (Penumbra without fsync per commit, for reference: p50 ${ms(n.p50)}  p99 ${ms(n.p99)})`)
+    console.log(`  ratio        p50 ${report.ratioP50.toFixed(2)}×  p99 ${report.ratioP99.toFixed(2)}×  (target p99 ≤ 1.25×: ${report.targetMet ? 'met' : 'NOT met'})`)
+    return report
+  } finally {
+    rmSync(dir, { recursive: true, force: true })
+  }
+}
+
+if (process.env.COLLAB_BENCH_SERVER) await runChildServer(process.env.COLLAB_BENCH_SERVER)
+else if (process.argv[1] && fileURLToPath(import.meta.url) === path.resolve(process.argv[1])) await collabLatency()
