@@ -81,12 +81,13 @@ export function fitFigure(spec: FitSpec, results: Record<string, CellResult | un
   base.x = { title: `${spec.x} (${prettyUnit(p.xUnit)})`, unit: p.xUnit, scale: 'linear', quantity: 'energy' }
   base.y = { title: p.yTitle, unit: '', scale: 'linear', quantity: null }
   base.series.push({ name: 'data', x: p.x, y: p.y, style: 'points', color: traceColor(0) })
-  if (p.line) base.series.push({ name: 'fitted line', x: [...p.line.x], y: [...p.line.y], style: 'line', color: 'accent' })
+  if (p.line)
+    base.series.push({ name: p.method === 'urbach' && p.result ? `fitted line, ${p.result}` : 'fitted line', x: [...p.line.x], y: [...p.line.y], style: 'line', color: 'accent' })
   if (p.window) base.regions.push({ from: p.window[0], to: p.window[1], label: 'fit window' })
   const value = results[spec.name]?.value as Record<string, unknown> | undefined
   if (p.method === 'tauc' && p.result && typeof value?.Eg === 'number') {
     const err = typeof value.Eg_err === 'number' ? value.Eg_err : undefined
-    base.marks.push({ ref: `${spec.name}.Eg`, at: value.Eg, band: err ? [value.Eg - err, value.Eg + err] : undefined, label: p.result })
+    base.marks.push({ ref: `${spec.name}.Eg`, at: value.Eg, band: err ? [value.Eg - err, value.Eg + err] : undefined, label: `${spec.name}.${p.result}` })
   }
   // the line runs to zero at Eg: keep the plot's y from starting far below zero
   if (p.method === 'tauc') {

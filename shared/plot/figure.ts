@@ -107,8 +107,13 @@ export function isGeometric(values: readonly number[]): boolean {
   return true
 }
 
+export interface BuildOptions {
+  /** The swept parameter's name of each sweep cell (the result does not carry it), for legends: { thick: 'd' }. */
+  sweepParameters?: Record<string, string>
+}
+
 /** Builds the drawing model of a figure cell from the sheet's results (by cell name). */
-export function buildFigure(cell: FigureCell, results: Results): FigureModel {
+export function buildFigure(cell: FigureCell, results: Results, options: BuildOptions = {}): FigureModel {
   const messages: string[] = []
   const pairs: Pair[] = []
   const sweepName = cell.sweep
@@ -229,7 +234,7 @@ export function buildFigure(cell: FigureCell, results: Results): FigureModel {
   }
 
   let sweep: FigureModel['sweep']
-  const parameterLabel = `${sweepName ?? ''}`
+  const parameterLabel = (sweepName && options.sweepParameters?.[sweepName]) || (sweepName ?? '')
   if (family) {
     const cx = converter(family.xUnit, xUnit)
     const cy = converter(familyYUnit, yUnit)
@@ -271,7 +276,7 @@ export function buildFigure(cell: FigureCell, results: Results): FigureModel {
   const yNames = pairs.map((p) => p.y.ref)
   if (family) yNames.push(family.output)
   const y: AxisModel = {
-    title: axisTitle(cell.y?.label, yUnit, map ? [`${sweepName}: swept value`] : yNames, yQuantity),
+    title: axisTitle(cell.y?.label, yUnit, map ? [sweepName && options.sweepParameters?.[sweepName] ? parameterLabel : `${sweepName}: swept value`] : yNames, yQuantity),
     unit: yUnit,
     scale: cell.y?.scale ?? (map && isGeometric(map.y) ? 'log' : 'linear'),
     quantity: yQuantity,

@@ -12,7 +12,9 @@ export function formatNumber(x: number, digits = 4): string {
     const [m, e] = x.toExponential(digits - 1).split('e')
     return `${trimZeros(m)}e${e.replace('+', '')}`
   }
-  return trimZeros(x.toPrecision(digits))
+  const p = x.toPrecision(digits)
+  // toPrecision writes 12345 as "1.235e+4" when digits < 5: keep plain integers below 1e5
+  return p.includes('e') ? String(Math.round(x)) : trimZeros(p)
 }
 
 function trimZeros(s: string): string {

@@ -2,7 +2,7 @@
  * Maps a figure's drawing model (shared/plot) onto plotly traces and layout in Penumbra's look: paper plot area,
  * a night-blue frame, the warm accent for band-gap marks and fitted lines, Fira Sans text and Fira Mono numbers.
  */
-import type { Data, Layout, Shape } from 'plotly.js-dist-min'
+import type { Annotation, Data, Layout, Shape } from 'plotly.js-dist-min'
 import type { PlotSpec } from '@/composables/usePlot'
 import type { FigureModel } from '../../../shared/plot/figure'
 import { rampColor, rampScale } from '../../../shared/plot/palette'
@@ -177,8 +177,15 @@ export function figureToPlotly(model: FigureModel, theme: Theme = DEFAULT_THEME,
   }
 
   const shapes: Partial<Shape>[] = []
+  const annotations: Partial<Annotation>[] = []
   const vertical = model.markAxis === 'x'
-  for (const seg of model.band ?? [])
+  const extent = model.x.range ? [Math.min(...model.x.range), Math.max(...model.x.range)] : dataExtent(model)
+  const band = extent
+    ? (model.band ?? [])
+        .filter((seg) => seg.to > extent[0] && seg.from < extent[1])
+        .map((seg) => ({ ...seg, from: Math.max(seg.from, extent[0]), to: Math.min(seg.to, extent[1]) }))
+    : []
+  for (const seg of band)
     shapes.push(
       {
         type: 'rect',
@@ -208,6 +215,23 @@ export function figureToPlotly(model: FigureModel, theme: Theme = DEFAULT_THEME,
         layer: 'above',
       },
     )
+  if (band.length && extent) {
+    const lo = band[0].from < band[band.length - 1].from ? band[0].from : band[band.length - 1].from
+    const hi = Math.max(...band.map((b) => b.to))
+    const wide = model.x.scale === 'log' ? Math.log(hi / lo) > 0.12 * Math.log(extent[1] / extent[0]) : hi - lo > 0.12 * (extent[1] - extent[0])
+    const mid = model.x.scale === 'log' ? Math.log10(Math.sqrt(lo * hi)) : (lo + hi) / 2
+    if (wide)
+      annotations.push({
+        xref: 'x',
+        yref: 'paper',
+        x: mid,
+        y: 0.022,
+        yanchor: 'bottom',
+        text: 'visible band',
+        showarrow: false,
+        font: { size: 10.5, color: theme.muted, family: theme.fontSans },
+      })
+  }
   for (const r of model.regions)
     shapes.push({
       type: 'rect',
@@ -223,7 +247,8 @@ export function figureToPlotly(model: FigureModel, theme: Theme = DEFAULT_THEME,
       layer: 'below',
       label: { text: r.label, textposition: 'top center', font: { size: 10.5, color: theme.muted, family: theme.fontSans } },
     })
-  for (const mark of model.marks) {
+  model.marks.forEach((mark, i) => {
+    const dash = MARK_DASHES[i % MARK_DASHES.length]
     if (mark.band)
       shapes.push({
         type: 'rect',
@@ -240,18 +265,40 @@ export function figureToPlotly(model: FigureModel, theme: Theme = DEFAULT_THEME,
       xref: vertical ? 'x' : 'paper',
       yref: vertical ? 'paper' : 'y',
       ...(vertical ? { x0: mark.at, x1: mark.at, y0: 0, y1: 1 } : { x0: 0, x1: 1, y0: mark.at, y1: mark.at }),
-      line: { color: theme.accent, width: 1.6, dash: 'dash' },
+      line: { color: theme.accent, width: 1.6, dash },
       layer: 'above',
-      label: {
-        text: escapeHtml(mark.label),
-        textposition: 'end',
-        textangle: vertical ? -90 : 0,
-        xanchor: vertical ? 'right' : 'auto',
-        padding: 4,
-        font: { size: 11, color: theme.accentInk, family: theme.fontSans },
-      },
     })
-  }
+    // the short name along the line, inside the frame (alternating sides so neighbouring marks do not collide);
+    // the value with its unit goes in the legend
+    const logAxis = (vertical ? model.x.scale : model.y.scale) === 'log'
+    const pos = logAxis ? (mark.at > 0 ? Math.log10(mark.at) : null) : mark.at
+    if (pos !== null)
+      annotations.push({
+        xref: vertical ? 'x' : 'paper',
+        yref: vertical ? 'paper' : 'y',
+        x: vertical ? pos : 1,
+        y: vertical ? 1 : pos,
+        text: escapeHtml(mark.ref),
+        showarrow: false,
+        textangle: vertical ? -90 : 0,
+        xanchor: vertical ? (i % 2 === 0 ? 'right' : 'left') : 'right',
+        yanchor: vertical ? 'top' : i % 2 === 0 ? 'bottom' : 'top',
+        xshift: vertical ? (i % 2 === 0 ? -1 : 1) : 0,
+        font: { size: 11, color: theme.accentInk, family: theme.fontSans },
+        bgcolor: withAlpha(theme.surface, 0.78),
+        borderpad: 1,
+      })
+    data.push({
+      type: 'scatter',
+      mode: 'lines',
+      name: mark.label,
+      x: [null],
+      y: [null],
+      line: { color: theme.accent, width: 1.6, dash },
+      hoverinfo: 'skip',
+      showlegend: true,
+    })
+  })
 
   const title = opts.showTitle && model.title ? model.title : undefined
   const legendShown = data.filter((d) => (d as { showlegend?: boolean }).showlegend !== false).length > 1
@@ -261,8 +308,10 @@ export function figureToPlotly(model: FigureModel, theme: Theme = DEFAULT_THEME,
     paper_bgcolor: theme.surface,
     plot_bgcolor: theme.paper,
     font: { family: theme.fontSans, size: 12, color: theme.ink },
-    title: title ? { text: escapeHtml(title), x: 0.01, xanchor: 'left', font: { size: 14, color: theme.night } } : undefined,
-    margin: { l: 64, r: colorbarTitle || model.sweep?.view === 'map' ? 24 : 18, t: title ? 44 : legendShown ? 34 : 14, b: 50, pad: 0 },
+    title: title
+      ? { text: escapeHtml(title), x: 0.01, xanchor: 'left', yref: 'container', y: 1, yanchor: 'top', pad: { t: 12 }, font: { size: 14, color: theme.night } }
+      : undefined,
+    margin: { l: 64, r: colorbarTitle || model.sweep?.view === 'map' ? 24 : 18, t: (title ? 40 : 12) + (legendShown ? 24 : 0), b: 50, pad: 0 },
     xaxis: axis(theme, model.x.title, model.x.scale, model.x.range),
     yaxis: axis(theme, model.y.title, model.y.scale, model.y.range),
     showlegend: legendShown,
@@ -278,8 +327,36 @@ export function figureToPlotly(model: FigureModel, theme: Theme = DEFAULT_THEME,
     hovermode: 'closest',
     hoverlabel: { bgcolor: theme.surface, bordercolor: theme.night, font: { family: theme.fontMono, size: 11.5, color: theme.ink } },
     shapes,
+    annotations,
   }
   return { data, layout, config: { displayModeBar: 'hover' } }
+}
+
+/** '#rrggbb' (or any other CSS colour) with an alpha, for label backgrounds. */
+function withAlpha(color: string, alpha: number): string {
+  const m = /^#([0-9a-f]{6})$/i.exec(color.trim())
+  if (!m) return color
+  const n = parseInt(m[1], 16)
+  return `rgba(${(n >> 16) & 255}, ${(n >> 8) & 255}, ${n & 255}, ${alpha})`
+}
+
+const MARK_DASHES = ['dash', 'dot', 'dashdot', 'longdash'] as const
+
+/** The x extent of everything drawn (series and sweeps), or null when nothing finite is drawn. */
+function dataExtent(model: FigureModel): [number, number] | null {
+  let lo = Infinity
+  let hi = -Infinity
+  const take = (xs: readonly number[]) => {
+    for (const v of xs)
+      if (Number.isFinite(v) && (model.x.scale !== 'log' || v > 0)) {
+        if (v < lo) lo = v
+        if (v > hi) hi = v
+      }
+  }
+  for (const s of model.series) take(s.x)
+  if (model.sweep?.view === 'curves') for (const c of model.sweep.family.curves) take(c.x)
+  if (model.sweep?.view === 'map') take(model.sweep.map.x)
+  return lo <= hi ? [lo, hi] : null
 }
 
 function colorbarSpec(theme: Theme, title: string, log: boolean, lo: number, hi: number) {

@@ -29,6 +29,8 @@ describe('formatNumber', () => {
     expect(formatNumber(0.000012)).toBe('1.2e-5')
     expect(formatNumber(250000)).toBe('2.5e5')
     expect(formatNumber(0)).toBe('0')
+    expect(formatNumber(10000)).toBe('10000')
+    expect(formatNumber(12345.6)).toBe('12346')
   })
   it('formatWithError rounds to two significant figures of the error', () => {
     expect(formatWithError(1.48137, 0.00213)).toBe('1.4814 ± 0.0021')
