@@ -82,7 +82,6 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
   const closedReason = ref('')
   const canUndo = ref(false)
   const canRedo = ref(false)
-  const error = ref('')
   const provider = shallowRef<WebsocketProvider | null>(null)
 
   const p = new WebsocketProvider(collabBase(), encodeURIComponent(sheetId), doc, {
@@ -93,7 +92,10 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
   })
   if (readonly) makeReceiveOnly(p, doc)
   p.on('status', ({ status }) => {
-    connection.value = status === 'connected' ? 'online' : status === 'connecting' ? 'connecting' : 'offline'
+    // a reconnection attempt after a lost connection stays "offline" until it succeeds
+    if (status === 'connected') connection.value = 'online'
+    else if (status === 'disconnected') connection.value = 'offline'
+    else if (connection.value !== 'offline') connection.value = 'connecting'
     if (status !== 'connected') synced.value = false
   })
   p.on('sync', (state) => {
@@ -243,7 +245,6 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     closedReason,
     canUndo,
     canRedo,
-    error,
     origin,
     mapOf,
     indexOf,

@@ -44,8 +44,15 @@ async function parameterValue(page: Page, name: string): Promise<string> {
   return card(page, name).getByLabel('Value').inputValue()
 }
 
+/** A formula's text as the editor holds it, without the name labels of other people's carets. */
 async function formulaText(page: Page, name: string): Promise<string> {
-  return (await card(page, name).locator('.cm-content').textContent()) ?? ''
+  return card(page, name)
+    .locator('.cm-content')
+    .evaluate((el) => {
+      const copy = el.cloneNode(true) as HTMLElement
+      copy.querySelectorAll('.cm-ySelectionCaret').forEach((c) => c.remove())
+      return [...copy.querySelectorAll('.cm-line')].map((l) => l.textContent ?? '').join('\n')
+    })
 }
 
 /** Drags a parameter's slider handle by `dx` pixels in ten small moves, as a hand does. */

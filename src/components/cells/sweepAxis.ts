@@ -28,8 +28,9 @@ export function sweepAxis(
 ): { values: number[]; unit: string; name: string } | null {
   const result = byName[sweep.name]
   const outputs = result?.value && typeof result.value === 'object' && 'outputs' in result.value ? (result.value.outputs as Record<string, unknown[]>) : null
-  const firstRow = outputs ? Object.values(outputs)[0]?.[0] : undefined
-  const length = Array.isArray(firstRow) ? firstRow.length : 0
+  // the first output whose rows are arrays decides the length (scalar outputs need no x series)
+  const arrayRow = outputs ? Object.values(outputs).map((rows) => rows?.[0]).find((row) => Array.isArray(row)) : undefined
+  const length = Array.isArray(arrayRow) ? arrayRow.length : 0
   if (length < 2) return null
 
   const usable = (name: string) => {
