@@ -28,8 +28,29 @@ export interface CompiledFormula {
   run: Run
 }
 
-/** Parses and compiles one formula. Throws CellError for syntax, refused names, unknown functions or arity. */
+const cache = new Map<string, CompiledFormula>()
+const CACHE_SIZE = 1000
+
+/**
+ * Parses and compiles one formula. Throws CellError for syntax, refused names, unknown functions or arity.
+ * Compiled formulas do not depend on their sheet, so they are kept by source text (the last 1,000) and a reloaded
+ * sheet, or the same formula in another cell, is not parsed again.
+ */
 export function compileFormula(source: string): CompiledFormula {
+  const hit = cache.get(source)
+  if (hit) {
+    // refresh its place in the insertion order, which is the eviction order
+    cache.delete(source)
+    cache.set(source, hit)
+    return hit
+  }
+  const compiled = compileUncached(source)
+  cache.set(source, compiled)
+  if (cache.size > CACHE_SIZE) cache.delete(cache.keys().next().value as string)
+  return compiled
+}
+
+function compileUncached(source: string): CompiledFormula {
   registerFunctions()
   const tree = parseFormula(source)
   const names: string[] = []
