@@ -70,7 +70,7 @@ function handAll(p: Inputs): Record<string, unknown> {
   }
   return {
     lam: shown(lam, 1e-9), E: shown(E, q), alpha: shown(alpha, 100), R: R / 0.01, flux: Array.from(flux), ...film,
-    Jmax: Jmax / 10, lamSun: shown(lamSun, 1e-9), fluxSun: Array.from(fluxSun), eta: eta / 0.01, d90: (d90 as number) / 1e-6,
+    Jmax: Jmax / 10, lamSun: shown(lamSun, 1e-9), fluxSun: Array.from(fluxSun), eta: (eta as number) / 0.01, d90: (d90 as number) / 1e-6,
     thick: rows, thickLog: logRows,
   }
 }
