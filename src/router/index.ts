@@ -5,6 +5,9 @@
  */
 import { createRouter, createWebHistory, type RouteLocationRaw } from 'vue-router'
 import { useSessionStore } from '@/stores/session'
+import { safeNext } from '@/lib/navigation'
+
+export { safeNext }
 
 declare module 'vue-router' {
   interface RouteMeta {
@@ -14,14 +17,6 @@ declare module 'vue-router' {
     /** Pages without the header frame (the centred sign-in card). */
     bare?: boolean
   }
-}
-
-/** A `next` query parameter we may follow: only paths inside the app, never another site. */
-export function safeNext(next: unknown): string | null {
-  const value = Array.isArray(next) ? next[0] : next
-  if (typeof value !== 'string') return null
-  if (!value.startsWith('/') || value.startsWith('//') || value.startsWith('/\\')) return null
-  return value
 }
 
 export const router = createRouter({
