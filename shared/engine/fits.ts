@@ -173,6 +173,7 @@ function modelFit(cell: FitCell, env: Env): CellState {
   const fit = fitModel({
     evaluate, y: yWindow, start: free.map((f) => f.start), min: free.map((f) => f.min ?? -Infinity),
     max: free.map((f) => f.max ?? Infinity), names: free.map((f) => f.name),
+    timeBudgetMs: Number.isFinite(env.budget.remainingMs()) ? env.budget.remainingMs() : undefined,
   })
   if (!fit.converged) warnings.push(`the fit stopped after ${fit.iterations} iterations without converging`)
   const shown: Record<string, unknown> = {}

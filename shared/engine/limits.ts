@@ -29,6 +29,11 @@ export class Budget {
     this.deadline = now() + this.budgetMs
   }
 
+  /** Milliseconds left of this cell's budget. */
+  remainingMs(): number {
+    return Math.max(0, this.deadline - now())
+  }
+
   /** Throws when the cell has used up its time. Called between operations. */
   tick(): void {
     if (now() > this.deadline)

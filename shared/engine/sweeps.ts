@@ -13,6 +13,9 @@ import { parseUnit } from './units'
 import { asNum, type Value } from './values'
 import type { PreparedCell } from './cells'
 
+/** Most numbers one sweep table may hold (steps × output elements), so a sweep cannot exhaust memory. */
+export const MAX_SWEEP_NUMBERS = 5_000_000
+
 /** The parameter values of a sweep, in its unit: `steps` values from `from` to `to`, both included. */
 export function sweepValues(cell: SweepCell): number[] {
   const n = cell.steps
@@ -70,10 +73,17 @@ export function evaluateSweep(p: PreparedCell, env: Env): CellState {
     } catch (err) {
       throw new CellError(`at ${cell.parameter} = ${values[i]}${unitText ? ` ${unitText}` : ''}: ${messageOf(err)}`, 'value')
     }
+    let size = 0
     outputs.forEach((o, k) => {
-      const v = overrides.get(o.id) ?? env.valueOf(o.id)
-      rows[k][i] = toJson(asNum(v as Value, o.name), o.factor, true)
+      const v = asNum((overrides.get(o.id) ?? env.valueOf(o.id)) as Value, o.name)
+      size += typeof v === 'number' ? 1 : v.length
+      rows[k][i] = toJson(v, o.factor, true)
     })
+    if (i === 0 && size * values.length > MAX_SWEEP_NUMBERS)
+      throw new CellError(
+        `the sweep table would hold ${(size * values.length).toLocaleString('en-US')} numbers; the limit is ${MAX_SWEEP_NUMBERS.toLocaleString('en-US')} (use fewer steps or shorter arrays)`,
+        'limit',
+      )
     const fraction = (i + 1) / values.length
     if (fraction - reported >= 0.05) {
       reported = fraction

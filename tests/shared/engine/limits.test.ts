@@ -35,6 +35,15 @@ describe('evaluation limits', () => {
     expect(r.status).toBe('error')
   })
 
+  it('a sweep whose table would exceed 5,000,000 numbers is an error before it fills memory', () => {
+    const res = run([
+      { kind: 'parameter', name: 'p', value: 1 },
+      { kind: 'formula', name: 'y', source: 'grid(0, 1, 100000) * p' },
+      { kind: 'sweep', name: 'sw', parameter: 'p', from: 1, to: 2, steps: 10000, outputs: ['y'] },
+    ])
+    expect(pick(res, 'sw').error).toBe('the sweep table would hold 1,000,000,000 numbers; the limit is 5,000,000 (use fewer steps or shorter arrays)')
+  })
+
   it('a cell that runs past its time budget is stopped with an error; the rest of the sheet still evaluates', () => {
     // without the budget this sweep would run 10,000 steps over a 20,000-element grid: seconds of work
     const res = run(
