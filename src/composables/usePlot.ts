@@ -21,6 +21,9 @@ export type PlotState = 'loading' | 'ready' | 'error'
 export interface ExportOptions {
   width?: number
   height?: number
+  /** A figure to write instead of the one on screen (e.g. with the title drawn and export fonts). */
+  spec?: PlotSpec
+  /** Layout fields overriding the on-screen (or given) figure's layout in the file. */
   layout?: Partial<Layout>
 }
 
@@ -117,7 +120,7 @@ export function usePlot(target: Ref<HTMLElement | null | undefined>, spec: Ref<P
   }
 
   function exportFigure(size?: ExportOptions): { data: Data[]; layout: Partial<Layout>; config: Partial<Config> } | null {
-    const s = spec.value
+    const s = size?.spec ?? spec.value
     const el = drawn
     if (!s || !el) return null
     const width = size?.width ?? Math.max(480, el.clientWidth)

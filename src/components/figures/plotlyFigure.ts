@@ -247,8 +247,16 @@ export function figureToPlotly(model: FigureModel, theme: Theme = DEFAULT_THEME,
       layer: 'below',
       label: { text: r.label, textposition: 'top center', font: { size: 10.5, color: theme.muted, family: theme.fontSans } },
     })
+  // labels of neighbouring marks go outward: the lower one to the left of its line, the next to the right, …
+  const rank = new Map(
+    model.marks
+      .map((m, i) => ({ at: m.at, i }))
+      .sort((a, b) => a.at - b.at)
+      .map((m, r) => [m.i, r]),
+  )
   model.marks.forEach((mark, i) => {
     const dash = MARK_DASHES[i % MARK_DASHES.length]
+    const side = (rank.get(i) ?? i) % 2
     if (mark.band)
       shapes.push({
         type: 'rect',
@@ -281,9 +289,9 @@ export function figureToPlotly(model: FigureModel, theme: Theme = DEFAULT_THEME,
         text: escapeHtml(mark.ref),
         showarrow: false,
         textangle: vertical ? -90 : 0,
-        xanchor: vertical ? (i % 2 === 0 ? 'right' : 'left') : 'right',
-        yanchor: vertical ? 'top' : i % 2 === 0 ? 'bottom' : 'top',
-        xshift: vertical ? (i % 2 === 0 ? -1 : 1) : 0,
+        xanchor: vertical ? (side === 0 ? 'right' : 'left') : 'right',
+        yanchor: vertical ? 'top' : side === 0 ? 'top' : 'bottom',
+        xshift: vertical ? (side === 0 ? -1 : 1) : 0,
         font: { size: 11, color: theme.accentInk, family: theme.fontSans },
         bgcolor: withAlpha(theme.surface, 0.78),
         borderpad: 1,
@@ -361,7 +369,7 @@ function dataExtent(model: FigureModel): [number, number] | null {
 
 function colorbarSpec(theme: Theme, title: string, log: boolean, lo: number, hi: number) {
   const bar: Record<string, unknown> = {
-    title: { text: escapeHtml(title), side: 'right', font: { size: 12, color: theme.ink } },
+    title: { text: escapeHtml(title), side: 'right', font: { size: 12, color: theme.ink, family: theme.fontSans } },
     thickness: 12,
     outlinecolor: theme.night,
     outlinewidth: 1,
