@@ -39,6 +39,8 @@ export interface LatencySummary {
   p99: number
   samples: number
   missing: number
+  /** Server CPU (user + system) per 1,000 updates relayed to 49 editors each. */
+  cpuMsPer1000Updates: number
 }
 
 export interface LatencyReport {
@@ -50,6 +52,8 @@ export interface LatencyReport {
   realWithoutFsync: LatencySummary
   ratioP50: number
   ratioP99: number
+  /** Median single-row commit (WAL, synchronous FULL) on the benchmark's disk, measured in the same run. */
+  commitMs: number
   targetMet: boolean
 }
 
@@ -59,6 +63,25 @@ function sheetFile(): SheetFile {
     version: 1,
     title: 'Fifty-hand edge model',
     cells: Array.from({ length: EDITORS }, (_, i) => ({ id: `f${i}`, kind: 'formula' as const, name: `x${i}`, source: `${i}*eV`, unit: 'eV' })),
+  }
+}
+
+/** Median time of one single-row commit with WAL and synchronous FULL on this disk (200 commits): the fsync floor. */
+function commitMs(file: string): number {
+  const probe = openDb(file)
+  try {
+    probe.sqlite.exec('CREATE TABLE probe (x BLOB)')
+    const insert = probe.sqlite.prepare('INSERT INTO probe VALUES (?)')
+    const blob = Buffer.alloc(40)
+    const times: number[] = []
+    for (let i = 0; i < 200; i++) {
+      const t0 = performance.now()
+      insert.run(blob)
+      times.push(performance.now() - t0)
+    }
+    return times.sort((a, b) => a - b)[100]
+  } finally {
+    probe.close()
   }
 }
 
@@ -85,7 +108,10 @@ async function runChildServer(kind: string): Promise<void> {
     if (kind === 'real-nosync') handle.sqlite.pragma('synchronous = NORMAL')
     const collab = createCollab({ db: handle.db, secret: Buffer.from(SECRET_HEX, 'hex'), log: () => {} })
     server.on('upgrade', (req, socket, head) => void collab.handleUpgrade(req, socket, head))
-    process.on('SIGTERM', () => void collab.close().then(() => process.exit(0)))
+    process.on('SIGTERM', () => {
+      reportCpu()
+      void collab.close().then(() => process.exit(0))
+    })
   } else {
     const utils = await import('@y/websocket-server/utils')
     const seed = new Uint8Array(readFileSync(process.env.COLLAB_BENCH_SEED!))
@@ -95,25 +121,55 @@ async function runChildServer(kind: string): Promise<void> {
       const docName = (req.url ?? '').split('?')[0].split('/').pop() ?? ''
       wss.handleUpgrade(req, socket, head, (ws) => utils.setupWSConnection(ws, req, { docName, gc: true }))
     })
-    process.on('SIGTERM', () => process.exit(0))
+    process.on('SIGTERM', () => {
+      reportCpu()
+      process.exit(0)
+    })
   }
-  server.listen(0, '127.0.0.1', () => process.stdout.write(`listening ${(server.address() as AddressInfo).port}\n`))
+  let cpuAtStart = process.cpuUsage()
+  // CPU spent from listening to the stop signal: the cost of serving the round, startup excluded.
+  const reportCpu = () => {
+    const used = process.cpuUsage(cpuAtStart)
+    process.stdout.write(`cpu ${(used.user + used.system) / 1000}\n`)
+  }
+  server.listen(0, '127.0.0.1', () => {
+    cpuAtStart = process.cpuUsage()
+    process.stdout.write(`listening ${(server.address() as AddressInfo).port}\n`)
+  })
 }
 
-function startChild(kind: Kind, env: Record<string, string>): Promise<{ child: ChildProcess; port: number }> {
+interface Child {
+  child: ChildProcess
+  port: number
+  /** Resolves with the CPU milliseconds the server reported when stopped. */
+  cpuMs: Promise<number>
+}
+
+function startChild(kind: Kind, env: Record<string, string>): Promise<Child> {
   const self = fileURLToPath(import.meta.url)
   const child = spawn(process.execPath, ['--import', 'tsx', self], {
     env: { ...process.env, ...env, COLLAB_BENCH_SERVER: kind },
     stdio: ['ignore', 'pipe', 'inherit'],
   })
+  let out = ''
+  let cpuResolve: (ms: number) => void = () => {}
+  const cpuMs = new Promise<number>((resolve) => (cpuResolve = resolve))
+  child.on('exit', () => cpuResolve(NaN))
   return new Promise((resolve, reject) => {
-    let out = ''
+    let listening = false
     child.stdout!.on('data', (d: Buffer) => {
       out += d.toString()
       const m = /listening (\d+)/.exec(out)
-      if (m) resolve({ child, port: Number(m[1]) })
+      if (m && !listening) {
+        listening = true
+        resolve({ child, port: Number(m[1]), cpuMs })
+      }
+      const c = /cpu ([\d.]+)/.exec(out)
+      if (c) cpuResolve(Number(c[1]))
     })
-    child.on('exit', (code) => reject(new Error(`${kind} server exited with ${code}`)))
+    child.on('exit', (code) => {
+      if (!listening) reject(new Error(`${kind} server exited with ${code}`))
+    })
   })
 }
 
@@ -155,8 +211,14 @@ const MARKER = /k(\d+)-(\d+);/g
 
 type Kind = 'real' | 'bare' | 'real-nosync'
 
-async function runRound(kind: Kind, env: Record<string, string>, sheetId: string, tokens: string[], seed: Uint8Array): Promise<{ latencies: number[]; missing: number }> {
-  const { child, port } = await startChild(kind, env)
+interface Round {
+  latencies: number[]
+  missing: number
+  cpuMs: number
+}
+
+async function runRound(kind: Kind, env: Record<string, string>, sheetId: string, tokens: string[], seed: Uint8Array): Promise<Round> {
+  const { child, port, cpuMs } = await startChild(kind, env)
   const sent = new Map<string, number>()
   const latencies: number[] = []
   let received = 0
@@ -197,12 +259,19 @@ async function runRound(kind: Kind, env: Record<string, string>, sheetId: string
   while (received < expected && Date.now() < deadline) await new Promise((r) => setTimeout(r, 20))
   for (const e of editors) e.ws.terminate()
   await stopChild(child)
-  return { latencies, missing: expected - received }
+  return { latencies, missing: expected - received, cpuMs: await cpuMs }
 }
 
-function summarise(rounds: { latencies: number[]; missing: number }[]): LatencySummary {
+function summarise(rounds: Round[]): LatencySummary {
   const all = Float64Array.from(rounds.flatMap((r) => r.latencies)).sort()
-  return { p50: percentile(all, 50), p99: percentile(all, 99), samples: all.length, missing: rounds.reduce((a, r) => a + r.missing, 0) }
+  const updates = rounds.length * EDITORS * UPDATES_PER_EDITOR
+  return {
+    p50: percentile(all, 50),
+    p99: percentile(all, 99),
+    samples: all.length,
+    missing: rounds.reduce((a, r) => a + r.missing, 0),
+    cpuMsPer1000Updates: (rounds.reduce((a, r) => a + r.cpuMs, 0) / updates) * 1000,
+  }
 }
 
 export default async function collabLatency(): Promise<LatencyReport> {
@@ -227,8 +296,11 @@ export default async function collabLatency(): Promise<LatencyReport> {
         for (const sid of sheetIds) handle.db.insert(sheets).values({ id: sid, labId, title: file.title, createdBy: id, createdAt: now, updatedAt: now }).run()
       tokens.push((await signSession(secret, id)).token)
     }
-    // One fresh sheet per round of the real server, so no round inherits another's history.
-    for (const sid of sheetIds) seedDocument(handle.db, sid, file)
+    // One fresh sheet per round of the real server, so no round inherits another's history — all with the very same
+    // seeded state (a second seeding would create the cells anew under another client id).
+    seedDocument(handle.db, sheetIds[0], file)
+    for (const sid of sheetIds.slice(1))
+      handle.sqlite.prepare('INSERT INTO sheet_states (sheet_id, state, upto_seq, updated_at) SELECT ?, state, 0, updated_at FROM sheet_states WHERE sheet_id = ?').run(sid, sheetIds[0])
     handle.close()
     // Both servers start from byte-identical document state: the state row the seed wrote.
     const check = openDb(dbFile)
@@ -237,10 +309,11 @@ export default async function collabLatency(): Promise<LatencyReport> {
     writeFileSync(seedFile, stored.state)
     const seedBytes = new Uint8Array(stored.state)
 
+    const fsyncMs = commitMs(path.join(dir, 'probe.db'))
     const env = { COLLAB_BENCH_DB: dbFile, COLLAB_BENCH_SEED: seedFile }
-    const bare: { latencies: number[]; missing: number }[] = []
-    const real: { latencies: number[]; missing: number }[] = []
-    const nosync: { latencies: number[]; missing: number }[] = []
+    const bare: Round[] = []
+    const real: Round[] = []
+    const nosync: Round[] = []
     for (let round = 0; round < 2; round++) {
       bare.push(await runRound('bare', env, sheetId, tokens, seedBytes))
       real.push(await runRound('real', env, sheetIds[round], tokens, seedBytes))
@@ -257,13 +330,16 @@ export default async function collabLatency(): Promise<LatencyReport> {
       realWithoutFsync: n,
       ratioP50: r.p50 / b.p50,
       ratioP99: r.p99 / b.p99,
+      commitMs: fsyncMs,
       targetMet: r.p99 <= 1.25 * b.p99 && r.missing === 0,
     }
     const ms = (x: number) => `${x.toFixed(2)} ms`
-    console.log(`collab-latency: ${EDITORS} editors, ${report.updatesPerSecond} updates/s in all, load average ${os.loadavg()[0].toFixed(1)}`)
-    console.log(`  bare relay   p50 ${ms(b.p50)}  p99 ${ms(b.p99)}  (${b.samples} deliveries, ${b.missing} missing)`)
-    console.log(`  Penumbra     p50 ${ms(r.p50)}  p99 ${ms(r.p99)}  (${r.samples} deliveries, ${r.missing} missing)`)
-    console.log(`  (Penumbra without fsync per commit, for reference: p50 ${ms(n.p50)}  p99 ${ms(n.p99)})`)
+    console.log(
+      `collab-latency: ${EDITORS} editors, ${report.updatesPerSecond} updates/s in all, load average ${os.loadavg()[0].toFixed(1)}, one synchronous commit ${fsyncMs.toFixed(2)} ms (median)`,
+    )
+    console.log(`  bare relay   p50 ${ms(b.p50)}  p99 ${ms(b.p99)}  (${b.samples} deliveries, ${b.missing} missing; server CPU ${b.cpuMsPer1000Updates.toFixed(0)} ms per 1000 updates)`)
+    console.log(`  Penumbra     p50 ${ms(r.p50)}  p99 ${ms(r.p99)}  (${r.samples} deliveries, ${r.missing} missing; server CPU ${r.cpuMsPer1000Updates.toFixed(0)} ms per 1000 updates)`)
+    console.log(`  (Penumbra without fsync per commit, for reference: p50 ${ms(n.p50)}  p99 ${ms(n.p99)}, ${n.missing} missing)`)
     console.log(`  ratio        p50 ${report.ratioP50.toFixed(2)}×  p99 ${report.ratioP99.toFixed(2)}×  (target p99 ≤ 1.25×: ${report.targetMet ? 'met' : 'NOT met'})`)
     return report
   } finally {
