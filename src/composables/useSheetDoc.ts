@@ -10,7 +10,8 @@
  */
 import { onScopeDispose, ref, shallowRef } from 'vue'
 import * as Y from 'yjs'
-import { WebsocketProvider, messageQueryAwareness, messageSync, messageAwareness } from 'y-websocket'
+import { WebsocketProvider, messageAuth, messageQueryAwareness, messageSync, messageAwareness } from 'y-websocket'
+import * as authProtocol from 'y-protocols/auth'
 import * as awarenessProtocol from 'y-protocols/awareness'
 import * as syncProtocol from 'y-protocols/sync'
 import * as decoding from 'lib0/decoding'
@@ -80,6 +81,8 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
   const synced = ref(false)
   /** Set when the server closed the connection for good (access revoked, sheet deleted): a plain sentence. */
   const closedReason = ref('')
+  /** Set when the server refused an edit (the role was changed to a reader while the page was open). */
+  const denied = ref('')
   const canUndo = ref(false)
   const canRedo = ref(false)
   const provider = shallowRef<WebsocketProvider | null>(null)
@@ -91,6 +94,11 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     maxBackoffTime: 5000,
   })
   if (readonly) makeReceiveOnly(p, doc)
+  ;(p as unknown as { messageHandlers: MessageHandler[] }).messageHandlers[messageAuth] = (_encoder, decoder) => {
+    authProtocol.readAuthMessage(decoder, doc, (_doc, reason) => {
+      denied.value = reason || 'the server refused a change'
+    })
+  }
   p.on('status', ({ status }) => {
     // a reconnection attempt after a lost connection stays "offline" until it succeeds
     if (status === 'connected') connection.value = 'online'
@@ -243,6 +251,7 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     connection,
     synced,
     closedReason,
+    denied,
     canUndo,
     canRedo,
     origin,

@@ -44,13 +44,21 @@ const PREFIX: Record<CellKind, string> = {
   stack: 'stack',
 }
 
-/** The first of `base1`, `base2`, … not used by any cell. A name that is free as given is kept. */
-export function freeName(base: string, cells: readonly SheetCell[], keepIfFree = false): string {
+/** The first of `base1`, `base2`, … not used by any cell. */
+export function freeName(base: string, cells: readonly SheetCell[]): string {
   const used = new Set(cells.map((c) => c.name).filter(Boolean))
-  if (keepIfFree && !used.has(base)) return base
-  const stem = base.replace(/_?\d+$/, '') || base
   for (let i = 1; ; i++) {
-    const candidate = keepIfFree ? `${stem}_${i + 1}` : `${stem}${i}`
+    const candidate = `${base}${i}`
+    if (!used.has(candidate)) return candidate
+  }
+}
+
+/** The name of a copy: `Eg` → `Eg_2` (then `Eg_3`, …), the first not used by any cell. */
+export function copyName(name: string, cells: readonly SheetCell[]): string {
+  const used = new Set(cells.map((c) => c.name).filter(Boolean))
+  const stem = name.replace(/_\d+$/, '')
+  for (let i = 2; ; i++) {
+    const candidate = `${stem}_${i}`.slice(0, 64)
     if (!used.has(candidate)) return candidate
   }
 }
