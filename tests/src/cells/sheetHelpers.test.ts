@@ -1,0 +1,93 @@
+import { describe, expect, it } from 'vitest'
+import { dependentsOf, referencedNames } from '../../../src/components/sheet/references'
+import { copyName, freeName } from '../../../src/components/sheet/newCells'
+import { fitCautions, fitRows, valueWithError } from '../../../src/components/cells/fitReport'
+import { blockedInput, summarizeArray } from '../../../src/components/cells/resultFormat'
+import type { FitCell, SheetCell } from '../../../shared/schema/sheet'
+import type { CellResult } from '../../../shared/schema/result'
+
+const cells: SheetCell[] = [
+  { id: 'p', kind: 'parameter', name: 'Eg', value: 1.5, unit: 'eV' },
+  { id: 'e', kind: 'formula', name: 'E', source: 'grid(1*eV, 2*eV, 11)', unit: 'eV' },
+  { id: 'a', kind: 'formula', name: 'alpha', source: 'alpha_direct(E, Eg, 1e4)', unit: '1/cm' },
+  { id: 'f', kind: 'fit', name: 'edge', method: 'tauc', x: 'E', y: 'alpha', r: 0.5, from: 1.6, to: 1.9, unit: 'eV' },
+  { id: 'g', kind: 'formula', name: 'lg', source: 'photon_wavelength(edge.Eg * eV)', unit: 'nm' },
+  { id: 'z', kind: 'formula', name: 'other', source: '2 * 3' },
+  { id: 'fig', kind: 'figure', traces: [{ x: 'E', y: 'alpha' }] },
+]
+
+describe('referencedNames and dependentsOf', () => {
+  it('referencedNames(fit) names its x, y and model cells', () => {
+    expect([...referencedNames(cells[3])].sort()).toEqual(['E', 'alpha'])
+  })
+
+  it('dependentsOf(cells, [Eg]) follows formulas, fits, member access and figures but leaves unrelated cells', () => {
+    expect([...dependentsOf(cells, ['p'])].sort()).toEqual(['a', 'f', 'fig', 'g', 'p'])
+  })
+})
+
+describe('new cell names', () => {
+  it('freeName("p", cells) skips names in use', () => {
+    const withP1: SheetCell[] = [...cells, { id: 'x', kind: 'parameter', name: 'p1', value: 0 }]
+    expect(freeName('p', withP1)).toBe('p2')
+  })
+
+  it('copyName("Eg", cells) gives Eg_2, and a copy of Eg_2 gives Eg_3', () => {
+    expect(copyName('Eg', cells)).toBe('Eg_2')
+    const more: SheetCell[] = [...cells, { id: 'y', kind: 'parameter', name: 'Eg_2', value: 0 }]
+    expect(copyName('Eg_2', more)).toBe('Eg_3')
+  })
+})
+
+describe('result formatting', () => {
+  it('summarizeArray([1, null, 3, NaN]) counts finite values and gives their range', () => {
+    const s = summarizeArray([1, null, 3, NaN])
+    expect([s.length, s.finite, s.min, s.max]).toEqual([4, 2, 1, 3])
+  })
+
+  it('blockedInput reads the failed input from the engine message', () => {
+    expect(blockedInput({ index: 0, kind: 'formula', status: 'blocked', error: 'blocked: input u failed' })).toBe('u')
+  })
+
+  it('valueWithError(6.7238e-6, 9.5e-9) shares one power of ten', () => {
+    expect(valueWithError(6.7238e-6, 9.5e-9)).toBe('(6.7238 ± 0.0095)e-6')
+  })
+
+  it('valueWithError(1.48137, 0.00213) rounds to the error’s two significant figures', () => {
+    expect(valueWithError(1.48137, 0.00213)).toBe('1.4814 ± 0.0021')
+  })
+})
+
+describe('fit report', () => {
+  const fit = cells[3] as FitCell & { id: string }
+  const ok = (value: Record<string, number>): CellResult => ({ index: 3, id: 'f', name: 'edge', kind: 'fit', status: 'ok', value, unit: 'eV' })
+
+  it('fitRows(tauc) lists Eg ± error in the fit unit, then B, R² and the point count', () => {
+    const rows = fitRows(fit, ok({ Eg: 1.48137, Eg_err: 0.00213, B: 3.9e-6, r2: 0.9994, n: 40 }), () => undefined)
+    expect(rows.map((r) => [r.quantity, r.value, r.unit])).toEqual([
+      ['Eg', '1.4814 ± 0.0021', 'eV'],
+      ['B', '3.9e-6', 'SI'],
+      ['R²', '0.99940', ''],
+      ['points', '40', ''],
+    ])
+  })
+
+  it('fitCautions(tauc) is silent for a straight line in a window just above the gap', () => {
+    expect(fitCautions(fit, ok({ Eg: 1.55, r2: 0.999, n: 30 }), cells, {})).toEqual([])
+  })
+
+  it('fitCautions(tauc) warns when the window starts below the fitted gap and when the line is not straight', () => {
+    const notes = fitCautions(fit, ok({ Eg: 1.7, r2: 0.95, n: 30 }), cells, {})
+    expect(notes).toHaveLength(2)
+    expect(notes.join(' ')).toMatch(/not straight/)
+    expect(notes.join(' ')).toMatch(/below the fitted gap/)
+  })
+
+  it('fitCautions(urbach) warns when the window reaches above the gap of the Tauc fit on the same data', () => {
+    const tail: FitCell & { id: string } = { id: 't', kind: 'fit', name: 'tail', method: 'urbach', x: 'E', y: 'alpha', from: 1.4, to: 1.6, unit: 'meV' }
+    const results: Record<string, CellResult> = { f: ok({ Eg: 1.5, r2: 0.999, n: 30 }) }
+    const notes = fitCautions(tail, { index: 7, kind: 'fit', status: 'ok', value: { Eu: 25, r2: 0.999, n: 20 } }, [...cells, tail], results)
+    expect(notes).toHaveLength(1)
+    expect(notes[0]).toMatch(/above the gap/)
+  })
+})
