@@ -43,7 +43,8 @@ router.beforeEach(async (to): Promise<RouteLocationRaw | true> => {
   const session = useSessionStore()
   await session.ensureLoaded()
   const access = to.meta.access ?? 'signed-in'
-  if (access === 'signed-in' && !session.signedIn) return { name: 'sign-in', query: { next: to.fullPath } }
+  if (access === 'signed-in' && !session.signedIn)
+    return { name: 'sign-in', query: to.fullPath === '/labs' ? {} : { next: to.fullPath } }
   if (access === 'guest' && session.signedIn) return safeNext(to.query.next) ?? { name: 'labs' }
   return true
 })
