@@ -42,8 +42,19 @@ export const DEFAULT_RATE_LIMIT: RateLimit = {
   byteBurst: 8 * 1024 * 1024,
 }
 
-/** A connection whose unsent backlog grows past this is not reading: it is closed rather than buffered for ever. */
+/**
+ * A connection whose unsent backlog stays above MAX_BUFFERED_BYTES for STALLED_MS is not reading: it is closed rather
+ * than buffered for ever. (A large first sync may sit above the mark briefly on a slow link; that is not a stall.)
+ */
 export const MAX_BUFFERED_BYTES = 32 * 1024 * 1024
+export const STALLED_MS = 30_000
+
+/**
+ * Sync step 1 answers encode the whole document, so they are rationed apart from other messages: a burst of 10, then
+ * one every 3 s (the stock client sends one per connection, or one per resync interval when that is set).
+ */
+export const SYNC_REQUEST_BURST = 10
+export const SYNC_REQUEST_EVERY_MS = 3000
 
 export interface ConnectionCounters {
   deniedUpdates: number
@@ -92,6 +103,9 @@ export class CollabConnection implements RegistryPeer {
   private messageTokens: number
   private byteTokens: number
   private lastRefill = Date.now()
+  private syncTokens = SYNC_REQUEST_BURST
+  private lastSyncRefill = Date.now()
+  private backlogSince = 0
 
   constructor(
     private readonly ws: WebSocket,
@@ -133,9 +147,13 @@ export class CollabConnection implements RegistryPeer {
   send(frame: Uint8Array): void {
     if (this.closed || this.ws.readyState !== WS_OPEN) return
     if (this.ws.bufferedAmount > MAX_BUFFERED_BYTES) {
-      this.close(CLOSE.tooSlow, 'too far behind; reconnect to catch up')
-      return
-    }
+      const now = Date.now()
+      if (this.backlogSince === 0) this.backlogSince = now
+      else if (now - this.backlogSince > STALLED_MS) {
+        this.close(CLOSE.tooSlow, 'too far behind; reconnect to catch up')
+        return
+      }
+    } else this.backlogSince = 0
     this.ws.send(frame)
   }
 
@@ -224,9 +242,19 @@ export class CollabConnection implements RegistryPeer {
     }
     const message = decoded.message
     switch (message.type) {
-      case 'sync-step1':
+      case 'sync-step1': {
+        const now = Date.now()
+        this.syncTokens = Math.min(SYNC_REQUEST_BURST, this.syncTokens + (now - this.lastSyncRefill) / SYNC_REQUEST_EVERY_MS)
+        this.lastSyncRefill = now
+        if (this.syncTokens < 1) {
+          this.counters.rateLimited++
+          this.close(CLOSE.rateLimited, 'too many sync requests; slow down')
+          return
+        }
+        this.syncTokens -= 1
         this.registry.answerSyncStep1(this.entry, this, message.stateVector)
         return
+      }
       case 'sync-step2':
       case 'update': {
         if (!this.canWrite) {

@@ -6,7 +6,7 @@ import { cellsOf } from '../../shared/doc/sheetDoc'
 import { loadDocument } from '../../server/services/documents'
 import { CLOSE } from '../../server/collab/index'
 import { connectClient, createLab, rawClient, startCollabServer, storedRows, until, type Client, type CollabServer, type Lab, type RawClient } from './support/fixture'
-import { appendToFormula, syncFrame, syncStep1Frame } from './support/frames'
+import { QUERY_AWARENESS_FRAME, appendToFormula, readServerFrame, syncFrame, syncStep1Frame } from './support/frames'
 
 function formula(doc: Y.Doc): string {
   return ((cellsOf(doc).get(2).get('source') as Y.Text) ?? '').toString()
@@ -137,11 +137,23 @@ describe('collab: malformed and oversize frames', () => {
   it('closes a connection that goes over its message rate with 1008, leaving the rest alone', async () => {
     const raw = await rawClient(server, lab.sheetId, lab.tokens.viewer)
     raws.push(raw)
-    for (let i = 0; i < 200; i++) raw.ws.send(syncStep1Frame())
+    for (let i = 0; i < 200; i++) raw.ws.send(QUERY_AWARENESS_FRAME)
     const closed = await raw.closed
     expect(closed.code).toBe(CLOSE.rateLimited)
     expect(closed.reason).toBe('too many messages; slow down')
     expect(server.collab.stats().counters.rateLimited).toBe(1)
     await othersCarryOn('+8')
+  })
+
+  it('answers ten sync requests in a burst and closes a connection that keeps asking (each answer is the whole document)', async () => {
+    const raw = await rawClient(server, lab.sheetId, lab.tokens.viewer)
+    raws.push(raw)
+    for (let i = 0; i < 10; i++) raw.ws.send(syncStep1Frame())
+    await until(() => raw.frames.filter((f) => readServerFrame(f).type === 'sync-step2').length === 10, 'ten answers')
+    expect(raw.isOpen()).toBe(true)
+    for (let i = 0; i < 5; i++) raw.ws.send(syncStep1Frame())
+    const closed = await raw.closed
+    expect(closed).toEqual({ code: CLOSE.rateLimited, reason: 'too many sync requests; slow down' })
+    await othersCarryOn('+9')
   })
 })
