@@ -146,6 +146,7 @@ export function buildFigure(cell: FigureCell, results: Results, options: BuildOp
   // The sweep: outputs named by traces (or the first output), against the first such trace's x.
   let family: SweepFamily | undefined
   let familyYUnit = ''
+  let logSweptX = false
   let map: SweepMap | undefined
   let mapZUnit = ''
   const view = cell.sweepView ?? 'curves'
@@ -186,6 +187,7 @@ export function buildFigure(cell: FigureCell, results: Results, options: BuildOp
         const outUnit = results[pick.output]?.unit ?? ''
         if (f.value.mode === 'single') {
           const c = f.value.curves[0]
+          logSweptX = isGeometric(c.x)
           const label = pick.trace && pick.trace.x !== pick.output ? pick.trace.x : sweepName
           pairs.push({
             index: pick.index,
@@ -269,7 +271,7 @@ export function buildFigure(cell: FigureCell, results: Results, options: BuildOp
   const x: AxisModel = {
     title: axisTitle(cell.x?.label, xUnit, xNames, xQuantity),
     unit: xUnit,
-    scale: cell.x?.scale ?? 'linear',
+    scale: cell.x?.scale ?? (logSweptX && pairs.every((p) => p.x.cell === sweepName) ? 'log' : 'linear'),
     quantity: xQuantity,
     range: cell.x?.min !== undefined && cell.x?.max !== undefined ? [cell.x.min, cell.x.max] : undefined,
   }

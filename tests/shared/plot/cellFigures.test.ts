@@ -60,3 +60,13 @@ describe('fitFigure', () => {
     expect(m.messages).toEqual(['There is no cell named "nope" in this sheet.'])
   })
 })
+
+describe('sweepFigure on a log sweep', () => {
+  it('sweepFigure puts a log-spaced parameter on a log axis for scalar outputs', () => {
+    const r = results().thick
+    const m = sweepFigure({ ...r, value: { parameter: [10, 100, 1000], outputs: { Jsc: [1, 2, 3] } } }, { parameterName: 'd' })
+    expect(m.x.scale).toBe('log')
+    const lin = sweepFigure(r, { output: 'Jsc', parameterName: 'd' })
+    expect(lin.x.scale).toBe('linear')
+  })
+})
