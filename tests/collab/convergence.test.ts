@@ -5,7 +5,7 @@ import * as Y from 'yjs'
 import { cellsOf, docToSheetFile } from '../../shared/doc/sheetDoc'
 import { loadDocument } from '../../server/services/documents'
 import { evaluateSheet } from '../../shared/engine/index'
-import { DEMO_SHEET, connectClient, createLab, startCollabServer, until, type Client, type CollabServer, type Lab } from './support/fixture'
+import { connectClient, createLab, startCollabServer, until, type Client, type CollabServer, type Lab } from './support/fixture'
 
 function formulaText(doc: Y.Doc, name: string): Y.Text {
   const cell = cellsOf(doc)
@@ -62,10 +62,7 @@ describe('collab: two editors in one formula', () => {
     expect(formulaText(stored, 'x').toString()).toBe(ta.toString())
   })
 
-  // Until the engine's evaluator lands its API answers every cell with this one error; the check then runs by itself.
-  const engineBuilt = !evaluateSheet(DEMO_SHEET).cells.some((c) => c.error === 'the evaluator is not built yet in this version')
-
-  it.skipIf(!engineBuilt)('concurrent edits of one formula give both editors the same evaluation results', async () => {
+  it('concurrent edits of one formula give both editors the same evaluation results', async () => {
     const a = connectClient(server, lab.sheetId, lab.tokens.editor)
     const b = connectClient(server, lab.sheetId, lab.tokens.editor2)
     clients.push(a, b)
