@@ -97,7 +97,8 @@ export class SheetEngine {
     if (!p) return
     this.cells = this.cells.filter((c) => c !== p)
     this.cells.splice(Math.max(0, Math.min(index, this.cells.length)), 0, p)
-    this.rewire([])
+    // a duplicate-name error quotes the position of the cell holding the name, which a move may change
+    this.rewire([...this.graph.duplicateOf.keys()])
   }
 
   /** The whole result object, JSON-ready. */

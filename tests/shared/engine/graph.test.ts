@@ -154,6 +154,8 @@ describe('SheetEngine.update', () => {
     expect(engine.results().cells.map((c) => c.id)).toEqual(['two', 'one', id('y')])
     expect(engine.resultOf(id('y'))?.value).toBe(20)
     expect(engine.resultOf('one')?.error).toMatch(/already used by cells\[0\]/)
+    engine.move(id('y'), 0)
+    expect(engine.resultOf('one')?.error).toMatch(/already used by cells\[1\]/)
   })
 
   it('editing the value of a swept parameter leaves the sweep alone; editing another input re-runs it', () => {
