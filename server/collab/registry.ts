@@ -248,8 +248,7 @@ export class DocumentRegistry {
     const sends = this.sends
     this.rows = []
     this.sends = []
-    if (rows.length === 0 && sends.length === 0) return
-    this.counters.flushes++
+    if (rows.length > 0 || sends.length > 0) this.counters.flushes++
     const stored = this.commit(rows)
     for (const { entry, frame, peer } of sends) {
       if (entry.broken || !entry.peers.has(peer)) continue
