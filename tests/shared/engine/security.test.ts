@@ -1,4 +1,5 @@
 import { afterEach, beforeEach, describe, expect, it } from 'vitest'
+import seedrandom from 'seedrandom'
 import { compileFormula } from '../../../shared/engine/compile'
 import { formula, run, pick } from './helpers'
 
@@ -85,5 +86,28 @@ describe('formula security', () => {
       { kind: 'formula', name: 'out', source: 'process * 2' },
     ])
     expect(pick(res, 'out').value).toBe(8)
+  })
+})
+
+describe('errors are values', () => {
+  it('two thousand seeded random formulas never throw out of the engine; each cell is ok or an error', () => {
+    const rng = seedrandom('penumbra-formula-fuzz')
+    const pieces = ['x', 'E', 'nm', 'eV', '1', '2.5e3', '(', ')', '+', '-', '*', '/', '^', ',', '.', '[', ']', '?', ':', '>', '==',
+      'and', 'not', 'grid(', 'sum(', 'at(', 'filmB', '.T', 'constructor', '__proto__', 'exp(', ' ', ';', '=', '"', '!', '%']
+    for (let k = 0; k < 2000; k++) {
+      const n = 1 + Math.floor(rng() * 12)
+      let source = ''
+      for (let i = 0; i < n; i++) source += pieces[Math.floor(rng() * pieces.length)]
+      const res = run([
+        { kind: 'parameter', name: 'x', value: 2, unit: 'nm' },
+        { kind: 'spectrum', name: 'filmB', columns: { T: { unit: '%', values: [1, 2] } } },
+        { kind: 'formula', name: 'out', source },
+        { kind: 'formula', name: 'after', source: 'out * 2' },
+      ])
+      const out = pick(res, 'out')
+      expect(['ok', 'error'], source).toContain(out.status)
+      if (out.status !== 'ok') expect(pick(res, 'after').status, source).toBe('blocked')
+      expect(pick(res, 'x').status).toBe('ok')
+    }
   })
 })
