@@ -86,28 +86,48 @@ export function usePlot(target: Ref<HTMLElement | null | undefined>, spec: Ref<P
     observer.observe(el)
   }
 
-  function render() {
+  /** One drawing of the current element and spec. */
+  async function drawOnce(): Promise<void> {
     const P = plotly.value
     const el = target.value
     const s = spec.value
     if (!P || !el || !s || disposed) return
-    rendering = rendering.then(async () => {
-      if (disposed) return
-      try {
-        if (drawn && drawn !== el) {
-          P.purge(drawn)
-          drawn = null
-        }
-        await P.react(el, s.data, s.layout, { ...BASE_CONFIG, ...s.config })
-        if (drawn !== el) observe(el)
-        drawn = el
-        state.value = 'ready'
-        error.value = null
-      } catch (err) {
-        state.value = 'error'
-        error.value = `This figure could not be drawn: ${message(err)}.`
+    try {
+      if (drawn && drawn !== el) {
+        P.purge(drawn)
+        drawn = null
       }
-    })
+      await P.react(el, s.data, s.layout, { ...BASE_CONFIG, ...s.config })
+      if (drawn !== el) observe(el)
+      drawn = el
+      state.value = 'ready'
+      error.value = null
+    } catch (err) {
+      state.value = 'error'
+      error.value = `This figure could not be drawn: ${message(err)}.`
+    }
+  }
+
+  // Changes that arrive while a drawing is under way (a slider being dragged) collapse into one more drawing of the
+  // latest figure, instead of a queue of stale ones.
+  let busy = false
+  let dirty = false
+  function render(): void {
+    if (busy) {
+      dirty = true
+      return
+    }
+    busy = true
+    rendering = (async () => {
+      try {
+        do {
+          dirty = false
+          await drawOnce()
+        } while (dirty && !disposed)
+      } finally {
+        busy = false
+      }
+    })()
   }
 
   watch([plotly, target, spec], render, { flush: 'post' })
