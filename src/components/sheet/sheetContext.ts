@@ -27,6 +27,8 @@ export interface CellOps {
   remove: (cellId: string) => void
   /** Opens the add menu for a new cell after `cellId` (or at the end). */
   addAfter: (cellId: string | null) => void
+  /** Puts focus in the cell's main field (its formula, value or text). */
+  edit: (cellId: string) => void
 }
 
 export const SHEET_CONTEXT: InjectionKey<SheetContext> = Symbol('penumbra-sheet')
