@@ -55,8 +55,11 @@ export function usePlot(target: Ref<HTMLElement | null | undefined>, spec: Ref<P
   const state = ref<PlotState>('loading')
   const error = ref<string | null>(null)
   const plotly = shallowRef<PlotlyModule | null>(null)
+  /** The element's width as last observed; a change redraws. */
+  const width = ref(0)
   let disposed = false
   let drawn: HTMLElement | null = null
+  let drawnWidth: number | undefined
   let observer: ResizeObserver | null = null
   let frame = 0
   let rendering: Promise<void> = Promise.resolve()
@@ -79,8 +82,8 @@ export function usePlot(target: Ref<HTMLElement | null | undefined>, spec: Ref<P
     observer = new ResizeObserver(() => {
       cancelAnimationFrame(frame)
       frame = requestAnimationFrame(() => {
-        const P = plotly.value
-        if (P && drawn && drawn.isConnected && drawn.clientWidth > 0) P.Plots.resize(drawn)
+        // a full redraw at the new width (not Plots.resize), so margins grown for a wrapped legend shrink back
+        if (drawn && drawn.isConnected && drawn.clientWidth > 0) width.value = Math.round(drawn.clientWidth)
       })
     })
     observer.observe(el)
@@ -97,7 +100,12 @@ export function usePlot(target: Ref<HTMLElement | null | undefined>, spec: Ref<P
         P.purge(drawn)
         drawn = null
       }
-      await P.react(el, s.data, s.layout, { ...BASE_CONFIG, ...s.config })
+      const w = el.clientWidth > 0 ? Math.round(el.clientWidth) : undefined
+      // After a width change plotly keeps margins it grew for a wrapped legend and misplaces the legend; a drawing
+      // from scratch is right, and widths change rarely.
+      if (drawn === el && w !== drawnWidth) P.purge(el)
+      drawnWidth = w
+      await P.react(el, s.data, w ? { ...s.layout, width: w } : s.layout, { ...BASE_CONFIG, ...s.config })
       if (drawn !== el) observe(el)
       drawn = el
       state.value = 'ready'
@@ -130,7 +138,7 @@ export function usePlot(target: Ref<HTMLElement | null | undefined>, spec: Ref<P
     })()
   }
 
-  watch([plotly, target, spec], render, { flush: 'post' })
+  watch([plotly, target, spec, width], render, { flush: 'post' })
 
   async function ready(): Promise<{ P: PlotlyModule; el: HTMLElement }> {
     await rendering

@@ -92,6 +92,8 @@ function axis(theme: Theme, title: string, scale: 'linear' | 'log', r: [number, 
 
 export interface RenderOptions {
   height?: number
+  /** Known drawing width (files): lets the top margin make room for a legend that wraps. */
+  width?: number
   /** Show the title inside the figure (exports want it; a card that shows the title itself does not). */
   showTitle?: boolean
 }
@@ -319,7 +321,7 @@ export function figureToPlotly(model: FigureModel, theme: Theme = DEFAULT_THEME,
     title: title
       ? { text: escapeHtml(title), x: 0.01, xanchor: 'left', yref: 'container', y: 1, yanchor: 'top', pad: { t: 12 }, font: { size: 14, color: theme.night } }
       : undefined,
-    margin: { l: 64, r: colorbarTitle || model.sweep?.view === 'map' ? 24 : 18, t: (title ? 40 : 12) + (legendShown ? 24 : 0), b: 50, pad: 0 },
+    margin: { l: 64, r: colorbarTitle || model.sweep?.view === 'map' ? 24 : 18, t: (title ? 40 : 12) + (legendShown ? 24 * legendLines(data, opts.width) : 0), b: 50, pad: 0 },
     xaxis: axis(theme, model.x.title, model.x.scale, model.x.range),
     yaxis: axis(theme, model.y.title, model.y.scale, model.y.range),
     showlegend: legendShown,
@@ -346,6 +348,25 @@ function withAlpha(color: string, alpha: number): string {
   if (!m) return color
   const n = parseInt(m[1], 16)
   return `rgba(${(n >> 16) & 255}, ${(n >> 8) & 255}, ${n & 255}, ${alpha})`
+}
+
+/** Rows a horizontal legend needs at a width (about 6.5 px per character plus the symbol), at least one. */
+function legendLines(data: Data[], width = 0): number {
+  if (!width) return 1
+  const usable = width - 90
+  let rows = 1
+  let x = 0
+  for (const d of data) {
+    const t = d as { name?: string; showlegend?: boolean }
+    if (t.showlegend === false || !t.name) continue
+    const w = 48 + 6.5 * t.name.length
+    if (x > 0 && x + w > usable) {
+      rows++
+      x = 0
+    }
+    x += w
+  }
+  return rows
 }
 
 const MARK_DASHES = ['dash', 'dot', 'dashdot', 'longdash'] as const
