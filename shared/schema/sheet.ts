@@ -173,23 +173,28 @@ export const sheetFile = z
     cells: z.array(cell).max(2000),
   })
   .superRefine((sheet, ctx) => {
-    const seenNames = new Map<string, number>()
-    const seenIds = new Map<string, number>()
-    sheet.cells.forEach((c, i) => {
-      if (c.name !== undefined) {
-        const before = seenNames.get(c.name)
-        if (before !== undefined)
-          ctx.addIssue({ code: 'custom', path: ['cells', i, 'name'], message: `duplicate name "${c.name}" (also cells[${before}])` })
-        else seenNames.set(c.name, i)
-      }
-      if (c.id !== undefined) {
-        const before = seenIds.get(c.id)
-        if (before !== undefined)
-          ctx.addIssue({ code: 'custom', path: ['cells', i, 'id'], message: `duplicate id "${c.id}" (also cells[${before}])` })
-        else seenIds.set(c.id, i)
-      }
-    })
+    for (const issue of duplicateIssues(sheet.cells)) ctx.addIssue({ code: 'custom', path: issue.path, message: issue.message })
   })
+
+/**
+ * Cells that reuse an earlier cell's name or id, pointing at the later use. Works on any array (not only valid cells),
+ * so a file with other problems still hears about its duplicates.
+ */
+export function duplicateIssues(cells: readonly unknown[]): { path: (string | number)[]; message: string }[] {
+  const out: { path: (string | number)[]; message: string }[] = []
+  const seen = { name: new Map<string, number>(), id: new Map<string, number>() }
+  cells.forEach((c, i) => {
+    if (!c || typeof c !== 'object') return
+    for (const key of ['name', 'id'] as const) {
+      const value = (c as Record<string, unknown>)[key]
+      if (typeof value !== 'string') continue
+      const before = seen[key].get(value)
+      if (before !== undefined) out.push({ path: ['cells', i, key], message: `duplicate ${key} "${value}" (also cells[${before}])` })
+      else seen[key].set(value, i)
+    }
+  })
+  return out
+}
 
 export type ParameterCell = z.infer<typeof parameterCell>
 export type FormulaCell = z.infer<typeof formulaCell>
@@ -226,28 +231,83 @@ export function formatPath(path: readonly PropertyKey[]): string {
   return out
 }
 
-/** Turns zod issues into plain `{ path, message }` pairs; a missing field reads "required". */
-export function toSchemaIssues(error: z.ZodError): SchemaIssue[] {
+/**
+ * Turns zod issues into plain `{ path, message }` pairs; a missing field reads "required". With the parsed `input`,
+ * a cell without a `kind` reads "required" too (rather than "unknown cell kind").
+ */
+export function toSchemaIssues(error: z.ZodError, input?: unknown): SchemaIssue[] {
   const issues: SchemaIssue[] = []
   for (const issue of error.issues) {
     if (issue.code === 'invalid_union' && 'errors' in issue && Array.isArray(issue.errors) && issue.errors.length > 0) {
       // discriminated union with a known kind: report the branch's own problems
       const branch = issue.errors[0] as z.core.$ZodIssue[]
-      for (const sub of branch) issues.push(describe(sub, [...issue.path, ...sub.path]))
+      for (const sub of branch) issues.push(describe(sub, [...issue.path, ...sub.path], input))
       continue
     }
-    issues.push(describe(issue, issue.path))
+    issues.push(describe(issue, issue.path, input))
   }
   return issues
 }
 
-function describe(issue: z.core.$ZodIssue, path: readonly PropertyKey[]): SchemaIssue {
+/** zod's own wording starts like this; a message written in our schemas is kept as it is. */
+const ZOD_DEFAULT = /^(Invalid input|Invalid option|Too small|Too big|Invalid string|Invalid number)/
+
+function article(type: string): string {
+  return /^[aeiou]/.test(type) ? `an ${type}` : `a ${type}`
+}
+
+function valueAt(input: unknown, path: readonly PropertyKey[]): unknown {
+  let at: unknown = input
+  for (const key of path) {
+    if (at === null || typeof at !== 'object') return undefined
+    at = (at as Record<PropertyKey, unknown>)[key]
+  }
+  return at
+}
+
+function describe(issue: z.core.$ZodIssue, path: readonly PropertyKey[], input?: unknown): SchemaIssue {
   let message = issue.message
   if (issue.code === 'invalid_type' && /received undefined/.test(issue.message)) message = 'required'
   else if (issue.code === 'invalid_union' && 'note' in issue && issue.note === 'No matching discriminator')
-    message = `unknown cell kind; expected one of ${CELL_KINDS.join(', ')}`
+    message =
+      input !== undefined && valueAt(input, path) === undefined
+        ? `required; one of ${CELL_KINDS.join(', ')}`
+        : `unknown cell kind; expected one of ${CELL_KINDS.join(', ')}`
   else if (issue.code === 'unrecognized_keys') message = `unknown field(s): ${issue.keys.join(', ')}`
+  else if (ZOD_DEFAULT.test(issue.message)) message = plainWording(issue) ?? issue.message
   return { path: formatPath(path), message }
+}
+
+/** zod's default messages in the words the rest of Penumbra uses: "must be a number, not a string". */
+function plainWording(issue: z.core.$ZodIssue): string | null {
+  switch (issue.code) {
+    case 'invalid_type': {
+      const received = /received (\w+)/.exec(issue.message)?.[1]
+      return `must be ${article(issue.expected)}${received ? `, not ${received === 'null' ? 'null' : article(received)}` : ''}`
+    }
+    case 'invalid_value':
+      return issue.values.length === 1
+        ? `must be ${JSON.stringify(issue.values[0])}`
+        : `must be one of ${issue.values.map((v) => JSON.stringify(v)).join(', ')}`
+    case 'too_small':
+    case 'too_big': {
+      const bound = Number(issue.code === 'too_small' ? issue.minimum : issue.maximum)
+      const inclusive = issue.inclusive !== false
+      if (issue.origin === 'string')
+        return issue.code === 'too_small' ? (bound <= 1 ? 'must not be empty' : `must be at least ${bound} characters`) : `must be at most ${bound} characters`
+      if (issue.origin === 'array' || issue.origin === 'set')
+        return issue.code === 'too_small' ? `must have at least ${bound} item${bound === 1 ? '' : 's'}` : `must have at most ${bound} item${bound === 1 ? '' : 's'}`
+      if (issue.origin === 'number' || issue.origin === 'int' || issue.origin === 'bigint')
+        return issue.code === 'too_small'
+          ? inclusive ? `must be at least ${bound}` : `must be greater than ${bound}`
+          : inclusive ? `must be at most ${bound}` : `must be less than ${bound}`
+      return null
+    }
+    case 'not_multiple_of':
+      return `must be a multiple of ${issue.divisor}`
+    default:
+      return null
+  }
 }
 
 export type ParseResult<T> = { ok: true; value: T } | { ok: false; issues: SchemaIssue[] }
@@ -256,7 +316,26 @@ export type ParseResult<T> = { ok: true; value: T } | { ok: false; issues: Schem
 export function parseSheetFile(input: unknown): ParseResult<SheetFile> {
   const parsed = sheetFile.safeParse(input)
   if (parsed.success) return { ok: true, value: parsed.data }
-  return { ok: false, issues: toSchemaIssues(parsed.error) }
+  const issues = toSchemaIssues(parsed.error, input)
+  // zod skips the duplicate check once anything else failed: run it on the raw cells so every problem is listed
+  const cells = input && typeof input === 'object' ? (input as { cells?: unknown }).cells : undefined
+  if (Array.isArray(cells)) {
+    const known = new Set(issues.map((i) => `${i.path}\n${i.message}`))
+    for (const d of duplicateIssues(cells)) {
+      const issue = { path: formatPath(d.path), message: d.message }
+      if (!known.has(`${issue.path}\n${issue.message}`)) issues.push(issue)
+    }
+  }
+  return { ok: false, issues: sortByCell(issues) }
+}
+
+/** Orders problems by the cell they are in (file-level ones first), keeping the order within each cell. */
+function sortByCell(issues: SchemaIssue[]): SchemaIssue[] {
+  const cellOf = (i: SchemaIssue) => {
+    const m = /^cells\[(\d+)\]/.exec(i.path)
+    return m ? Number(m[1]) : -1
+  }
+  return issues.map((issue, order) => ({ issue, order, cell: cellOf(issue) })).sort((a, b) => a.cell - b.cell || a.order - b.order).map((x) => x.issue)
 }
 
 /** Parses sheet-file text: a JSON syntax error is one issue at the root. */

@@ -106,6 +106,55 @@ describe('POST /api/labs/:labId/sheets', () => {
     ])
   })
 
+  it('answers 400 with "cells[1].source: required" for a formula cell without a source', async () => {
+    const t = makeTestApp()
+    const lab = await seedLab(t)
+    const res = await call(t, lab.users.editor.cookie).post(`/api/labs/${lab.labId}/sheets`, {
+      format: 'penumbra.sheet', version: 1, title: 'No source',
+      cells: [{ kind: 'parameter', name: 'd', value: 850, unit: 'nm' }, { kind: 'formula', name: 'A1', unit: '%' }],
+    })
+    expect(res.status).toBe(400)
+    expect(res.body).toEqual({ error: 'The sheet file has problems: cells[1].source required.', issues: [{ path: 'cells[1].source', message: 'required' }] })
+  })
+
+  it('answers 400 naming a cell without a kind, and plain words for a wrong type or a too-small number', async () => {
+    const t = makeTestApp()
+    const lab = await seedLab(t)
+    const res = await call(t, lab.users.owner.cookie).post(`/api/labs/${lab.labId}/sheets`, {
+      format: 'penumbra.sheet', version: 1, title: 'Odd cells',
+      cells: [{ name: 'a', value: 1 }, { kind: 'parameter', name: 'b', value: '1.5' }, { kind: 'sweep', name: 's', parameter: 'b', from: 0, to: 1, steps: 1, outputs: ['b'] }, 7],
+    })
+    expect(res.status).toBe(400)
+    expect(res.body.issues).toEqual([
+      { path: 'cells[0].kind', message: 'required; one of parameter, formula, spectrum, fit, sweep, figure, note, stack' },
+      { path: 'cells[1].value', message: 'must be a number, not a string' },
+      { path: 'cells[2].steps', message: 'must be at least 2' },
+      { path: 'cells[3]', message: 'must be an object, not a number' },
+    ])
+  })
+
+  it('answers 400 naming duplicate names even when other cells have problems too, in cell order', async () => {
+    const t = makeTestApp()
+    const lab = await seedLab(t)
+    const res = await call(t, lab.users.owner.cookie).post(`/api/labs/${lab.labId}/sheets`, {
+      format: 'penumbra.sheet', version: 1, title: 'Two of a name',
+      cells: [
+        { id: 'p1', kind: 'parameter', name: 'Eg', value: 1.48, unit: 'eV' },
+        { kind: 'formula', name: 'alpha' },
+        { id: 'p1', kind: 'parameter', name: 'Eg', value: 1.5 },
+        { kind: 'hologram', name: 'alpha' },
+      ],
+    })
+    expect(res.status).toBe(400)
+    expect(res.body.issues).toEqual([
+      { path: 'cells[1].source', message: 'required' },
+      { path: 'cells[2].name', message: 'duplicate name "Eg" (also cells[0])' },
+      { path: 'cells[2].id', message: 'duplicate id "p1" (also cells[0])' },
+      { path: 'cells[3].kind', message: 'unknown cell kind; expected one of parameter, formula, spectrum, fit, sweep, figure, note, stack' },
+      { path: 'cells[3].name', message: 'duplicate name "alpha" (also cells[1])' },
+    ])
+  })
+
   it('answers 400 for an uploaded file that is not JSON, and for a wrong format or version', async () => {
     const t = makeTestApp()
     const lab = await seedLab(t)
