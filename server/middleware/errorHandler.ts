@@ -6,6 +6,8 @@ interface BodyParserError extends Error {
   status?: number
   type?: string
   limit?: number
+  charset?: string
+  encoding?: string
 }
 
 interface MulterLikeError extends Error {
@@ -13,8 +15,10 @@ interface MulterLikeError extends Error {
   field?: string
 }
 
-function sizeLabel(bytes: number | undefined): string {
-  return bytes ? `${Math.round(bytes / (1024 * 1024))} MB` : 'the limit'
+export function sizeLabel(bytes: number | undefined): string {
+  if (!bytes) return 'the limit'
+  if (bytes >= 1024 * 1024) return `${+(bytes / (1024 * 1024)).toFixed(1)} MB`
+  return `${Math.max(1, Math.round(bytes / 1024))} KB`
 }
 
 export function errorHandler(maxBodyBytes: number): ErrorRequestHandler {
@@ -30,15 +34,34 @@ export function errorHandler(maxBodyBytes: number): ErrorRequestHandler {
       return
     }
     if (e?.type === 'entity.too.large' || e?.code === 'LIMIT_FILE_SIZE') {
-      res.status(413).json({ error: `The upload is larger than ${sizeLabel(maxBodyBytes)}.` })
+      const what = e.code === 'LIMIT_FILE_SIZE' ? 'The uploaded file' : 'The request body'
+      res.status(413).json({ error: `${what} is larger than ${sizeLabel(e.limit ?? maxBodyBytes)}, the most this server accepts.` })
       return
     }
     if (e?.name === 'MulterError') {
-      res.status(400).json({ error: `The upload was not accepted: ${e.message}${e.field ? ` (field ${e.field})` : ''}.` })
+      const message =
+        e.code === 'LIMIT_UNEXPECTED_FILE'
+          ? `send the sheet file in the form field "file"${e.field ? `, not "${e.field}"` : ''}`
+          : e.message.charAt(0).toLowerCase() + e.message.slice(1)
+      res.status(400).json({ error: `The upload was not accepted: ${message}.`, issues: [{ path: e.field ?? 'file', message }] })
+      return
+    }
+    if (e?.type === 'charset.unsupported') {
+      res.status(415).json({ error: `The request body's charset (${e.charset ?? 'unknown'}) is not supported: send UTF-8.` })
+      return
+    }
+    if (e?.type === 'encoding.unsupported') {
+      res.status(415).json({ error: `The request body's Content-Encoding (${e.encoding ?? 'unknown'}) is not supported: send it uncompressed, or as gzip, deflate or br.` })
+      return
+    }
+    if (e?.type === 'request.aborted') {
+      res.status(400).json({ error: 'The request body ended before it was complete.', issues: [{ path: '', message: 'incomplete body' }] })
       return
     }
     if (typeof e?.status === 'number' && e.status >= 400 && e.status < 500) {
-      res.status(e.status).json({ error: e.message || 'The request was not accepted.' })
+      const message = e.message || 'The request was not accepted.'
+      // every 400 names its problems, even one that comes from a library
+      res.status(e.status).json(e.status === 400 ? { error: message, issues: [{ path: '', message }] } : { error: message })
       return
     }
     console.error(`${req.method} ${req.originalUrl} failed:`, err)

@@ -13,6 +13,9 @@ import {
   changePasswordBody, confirmSignUpBody, resetBody, resetRequestBody, signInBody, signUpBody, updateMeBody,
 } from '../../shared/schema/api'
 
+/** One answer for a wrong password, an unknown address and a sign-up whose mailed link was not opened yet. */
+export const SIGN_IN_FAILED = 'E-mail or password is wrong. If you have just signed up, open the link we mailed you first.'
+
 export function authRoutes(deps: AppDeps): Router {
   const r = Router()
   const signInLimit = limiter(deps.config.limits.signIn, 'failed sign-ins from this address', { onlyFailures: true })
@@ -22,7 +25,10 @@ export function authRoutes(deps: AppDeps): Router {
   r.post('/sign-up', mailLimit, async (req, res) => {
     const body = parse(signUpBody, req.body)
     await requestSignUp(deps, body)
-    res.status(201).json({ message: `Check your mail: we sent a link to ${body.email} to finish signing up.` })
+    // The same answer whether or not the address has an account (that owner gets a mail saying so instead).
+    res.status(201).json({
+      message: `Check your mail: we sent a link to ${body.email}. Open it to finish signing up; after that you can sign in with this e-mail and password.`,
+    })
   })
 
   r.post('/confirm', tokenLimit, async (req, res) => {
@@ -35,7 +41,7 @@ export function authRoutes(deps: AppDeps): Router {
   r.post('/sign-in', signInLimit, async (req, res) => {
     const { email, password } = parse(signInBody, req.body)
     const user = await checkCredentials(deps, email, password)
-    if (!user) throw unauthorized('E-mail or password is wrong.')
+    if (!user) throw unauthorized(SIGN_IN_FAILED)
     await startSession(deps, res, user.id)
     res.json({ user: publicUser(user) })
   })

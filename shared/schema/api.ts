@@ -93,7 +93,9 @@ export type User = z.infer<typeof userSchema>
 /**
  * POST /api/auth/sign-up → 201 MessageReply, always the same answer whether or not the address has an account.
  * A confirmation link is mailed (MAIL_LINK_ROUTES.confirmSignUp); an address that already has an account gets a
- * mail saying so instead. No cookie is set here.
+ * mail saying so instead. No cookie is set here and no account exists yet: opening the link (POST /api/auth/confirm)
+ * creates it and signs it in; from then on POST /api/auth/sign-in works with the e-mail and password given here.
+ * Until then sign-in answers the same 401 as a wrong password (which says to open the mailed link first).
  */
 export const signUpBody = z.object({ email: emailSchema, name: personNameSchema, password: newPasswordSchema })
 export type SignUpBody = z.infer<typeof signUpBody>
@@ -102,7 +104,10 @@ export type SignUpBody = z.infer<typeof signUpBody>
 export const confirmSignUpBody = z.object({ token: tokenSchema })
 export type ConfirmSignUpBody = z.infer<typeof confirmSignUpBody>
 
-/** POST /api/auth/sign-in → 200 UserReply + session cookie; 401 "E-mail or password is wrong"; 429 when rate-limited. */
+/**
+ * POST /api/auth/sign-in → 200 UserReply + session cookie (httpOnly, SameSite=Lax, Secure over https); 401 with one
+ * message for a wrong password, an unknown address and an unconfirmed sign-up; 429 after too many failures.
+ */
 export const signInBody = z.object({
   email: emailSchema,
   password: z.string({ message: 'required' }).min(1, 'required').max(PASSWORD_MAX_LENGTH),

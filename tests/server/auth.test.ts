@@ -31,6 +31,27 @@ describe('POST /api/auth/sign-up', () => {
     expect(again.status).toBe(410)
   })
 
+  it('says in its reply that the mailed link comes first; sign-in works once it is opened, and keeps working', async () => {
+    const t = makeTestApp()
+    const body = { email: 'ines@okafor-lab.example', name: 'Ines Okafor', password: 'absorber film B' }
+    const res = await call(t).post('/api/auth/sign-up', body)
+    expect(res.status).toBe(201)
+    expect(res.body.message).toBe('Check your mail: we sent a link to ines@okafor-lab.example. Open it to finish signing up; after that you can sign in with this e-mail and password.')
+    // before the link is opened: the same 401 as an address nobody signed up with
+    const early = await call(t).post('/api/auth/sign-in', { email: body.email, password: body.password })
+    const nobody = await call(t).post('/api/auth/sign-in', { email: 'nobody@okafor-lab.example', password: body.password })
+    expect(early.status).toBe(401)
+    expect(early.body).toEqual(nobody.body)
+    expect(early.body.error).toMatch(/open the link we mailed you first/)
+    const confirmed = await call(t).post('/api/auth/confirm', { token: t.mailer.tokenFor(body.email, '/confirm/') })
+    expect(confirmed.status).toBe(200)
+    expect((await call(t, cookieFrom(confirmed)).post('/api/auth/sign-out')).status).toBe(204)
+    const later = await call(t).post('/api/auth/sign-in', { email: 'Ines@Okafor-Lab.example', password: body.password })
+    expect(later.status).toBe(200)
+    expect(later.body.user).toMatchObject({ email: body.email, name: 'Ines Okafor' })
+    expect((await call(t, cookieFrom(later)).get('/api/auth/me')).body.user.email).toBe(body.email)
+  })
+
   it('gives the same answer for an address that already has an account, and mails its owner instead', async () => {
     const t = makeTestApp()
     const fresh = await call(t).post('/api/auth/sign-up', { email: 'new@example.org', name: 'A', password: 'long enough one' })
@@ -96,7 +117,7 @@ describe('POST /api/auth/sign-in', () => {
     expect(wrong.status).toBe(401)
     expect(unknown.status).toBe(401)
     expect(wrong.body).toEqual(unknown.body)
-    expect(wrong.body).toEqual({ error: 'E-mail or password is wrong.' })
+    expect(wrong.body).toEqual({ error: 'E-mail or password is wrong. If you have just signed up, open the link we mailed you first.' })
   })
 })
 

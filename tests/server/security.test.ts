@@ -57,6 +57,41 @@ describe('errors', () => {
     expect((await request(t.app).get('/not-a-page')).body.error).toMatch(/nothing at GET \/not-a-page/)
   })
 
+  it('an upload in the wrong form field answers 400 naming the field, and a non-UTF-8 charset 415', async () => {
+    const t = makeTestApp()
+    const lab = await seedLab(t)
+    const wrongField = await request(t.app)
+      .post(`/api/labs/${lab.labId}/sheets`)
+      .set('Cookie', lab.users.owner.cookie)
+      .set('X-Penumbra-Request', '1')
+      .attach('sheet', Buffer.from('{}'), 'film.penumbra.json')
+    expect(wrongField.status).toBe(400)
+    expect(wrongField.body).toEqual({
+      error: 'The upload was not accepted: send the sheet file in the form field "file", not "sheet".',
+      issues: [{ path: 'sheet', message: 'send the sheet file in the form field "file", not "sheet"' }],
+    })
+    const latin1 = await request(t.app).post('/api/labs').set('Cookie', lab.users.owner.cookie).set('Content-Type', 'application/json; charset=latin1').send('{"name":"x"}')
+    expect(latin1.status).toBe(415)
+    expect(latin1.body.error).toBe("The request body's charset (latin1) is not supported: send UTF-8.")
+  })
+
+  it('a JSON body over the limit answers 413 naming the limit, and creates nothing', async () => {
+    const t = makeTestApp({ config: { maxBodyBytes: 4096 } })
+    const u = await createTestUser(t)
+    const res = await call(t, u.cookie).post('/api/labs', { name: 'x'.repeat(5000) })
+    expect(res.status).toBe(413)
+    expect(res.body).toEqual({ error: 'The request body is larger than 4 KB, the most this server accepts.' })
+    expect((await call(t, u.cookie).get('/api/labs')).body.labs).toEqual([])
+  })
+
+  it('malformed JSON answers 400 with an issue at the root', async () => {
+    const t = makeTestApp()
+    const u = await createTestUser(t)
+    const res = await request(t.app).post('/api/labs').set('Cookie', u.cookie).set('Content-Type', 'application/json').send('{"name": "Optics",}')
+    expect(res.status).toBe(400)
+    expect(res.body).toEqual({ error: 'The request body is not valid JSON.', issues: [{ path: '', message: 'not valid JSON' }] })
+  })
+
   it('a JSON array body where an object is expected answers 400 with the root path', async () => {
     const t = makeTestApp()
     const u = await createTestUser(t)
