@@ -204,24 +204,31 @@ export class SheetEngine {
     }
   }
 
-  /** The view of the sheet one cell's evaluation gets; `overrides` replace values during sweeps and model fits. */
-  private env(cellId: string, overrides?: Map<string, Value>): Env {
+  /**
+   * The view of the sheet one cell's evaluation gets. `overrides` replace values during sweeps and model fits; `outer`
+   * is the view of an enclosing chain, so a model fit re-run inside a sweep still sees the swept value.
+   */
+  private env(cellId: string, overrides?: Map<string, Value>, outer?: (id: string) => Value | undefined): Env {
+    const base = outer ?? ((id: string) => this.states.get(id)?.value)
+    const valueOf = overrides ? (id: string) => (overrides.has(id) ? overrides.get(id) : base(id)) : base
     return {
       budget: this.budget,
       cellNamed: (name) => {
         const id = this.graph.byName.get(name)
         return id === undefined ? undefined : this.byId.get(id)
       },
-      valueOf: (id) => (overrides?.has(id) ? overrides.get(id) : this.states.get(id)?.value),
+      valueOf,
       stateOf: (id) => this.states.get(id),
       chain: (from, to) => this.graph.chain(from, to),
-      runChain: (chain, values) => this.runChain(cellId, chain, values),
+      runChain: (chain, values) => this.runChain(cellId, chain, values, valueOf),
       progress: (fraction) => this.options.onProgress?.(cellId, fraction),
     }
   }
 
-  private runChain(cellId: string, chain: readonly string[], overrides: Map<string, Value>): void {
-    const env = this.env(cellId, overrides)
+  private runChain(
+    cellId: string, chain: readonly string[], overrides: Map<string, Value>, outer: (id: string) => Value | undefined,
+  ): void {
+    const env = this.env(cellId, overrides, outer)
     for (const id of chain) {
       const p = this.byId.get(id)!
       try {

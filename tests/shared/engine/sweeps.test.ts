@@ -96,6 +96,29 @@ describe('sweep cells', () => {
     ;[1.3, 1.4, 1.5, 1.6, 1.7].forEach((g, i) => expect(rel(rows[i], g)).toBeLessThan(1e-9))
   })
 
+  it('a model fit re-run inside a sweep sees the swept value in its model', () => {
+    // y = 2x + 5 fitted by a·x + d with only a free: least squares gives a = Σx(y − d)/Σx² for each swept d
+    const xs = [0, 1, 2, 3, 4, 5]
+    const ys = xs.map((x) => 2 * x + 5)
+    const res = run([
+      { kind: 'spectrum', name: 'data', columns: { x: { unit: '', values: xs }, y: { unit: '', values: ys } } },
+      { kind: 'formula', name: 'x', source: 'data.x' },
+      { kind: 'formula', name: 'y', source: 'data.y' },
+      { kind: 'parameter', name: 'a', value: 1 },
+      { kind: 'parameter', name: 'd', value: 5 },
+      { kind: 'formula', name: 'model', source: 'a*x + d' },
+      { kind: 'fit', name: 'lin', method: 'model', x: 'x', y: 'y', model: 'model', parameters: [{ name: 'a' }] },
+      { kind: 'formula', name: 'slope_fit', source: 'lin.a' },
+      { kind: 'sweep', name: 'sw', parameter: 'd', from: 0, to: 10, steps: 3, outputs: ['slope_fit'] },
+    ])
+    const rows = (pick(res, 'sw').value as { outputs: { slope_fit: number[] } }).outputs.slope_fit
+    const sxx = xs.reduce((s, x) => s + x * x, 0)
+    ;[0, 5, 10].forEach((d, i) => {
+      const expected = xs.reduce((s, x, k) => s + x * (ys[k] - d), 0) / sxx
+      expect(rel(rows[i], expected)).toBeLessThan(1e-8)
+    })
+  })
+
   it('progress is reported for a long sweep, ending at 1', () => {
     const seen: number[] = []
     run([...slab, { kind: 'sweep', name: 'thick', parameter: 'd', from: 100, to: 3000, steps: 100, unit: 'nm', outputs: ['A1'] }], {
