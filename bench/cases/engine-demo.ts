@@ -36,7 +36,7 @@ const shown = (a: O.Num, factor: number): number[] => {
 }
 const grid = (a: number, b: number, n: number): Float64Array => Float64Array.from({ length: n }, (_, i) => (i === n - 1 ? b : a + (i * (b - a)) / (n - 1)))
 const loggrid = (a: number, b: number, n: number): Float64Array =>
-  Float64Array.from({ length: n }, (_, i) => Math.exp(Math.log(a) + (i * (Math.log(b) - Math.log(a))) / (n - 1)))
+  Float64Array.from({ length: n }, (_, i) => 10 ** (Math.log10(a) + (i * (Math.log10(b) - Math.log10(a))) / (n - 1)))
 
 /** The thickness study by hand: every formula of the sheet, both sweeps, values in their display units. */
 function handAll(p: Inputs): Record<string, unknown> {

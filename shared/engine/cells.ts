@@ -101,8 +101,8 @@ export function prepareCell(cell: SheetCell): PreparedCell {
       }
       case 'sweep':
         if (cell.unit) checkUnit(cell.unit, 'sweep unit')
-        if (cell.scale === 'log' && (cell.from <= 0 || cell.to <= 0 || Math.sign(cell.from) !== Math.sign(cell.to)))
-          throw new CellError('a log sweep needs from and to of the same sign, non-zero', 'input')
+        if (cell.scale === 'log' && !(cell.from > 0 && cell.to > 0))
+          throw new CellError(`a log sweep needs positive from and to (got from ${cell.from}, to ${cell.to})`, 'input')
         p.reads = [...new Set([cell.parameter, ...cell.outputs])]
         break
       default:

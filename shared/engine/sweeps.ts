@@ -7,7 +7,7 @@
 import type { SweepCell } from '../schema/sheet'
 import type { CellState, Env, SweepTable } from './cells'
 import { dimEquals, dimName } from './dimensions'
-import { displayFor, toJson } from './display'
+import { clean, displayFor, toJson } from './display'
 import { CellError, messageOf } from './errors'
 import { parseUnit } from './units'
 import { asNum, type Value } from './values'
@@ -16,17 +16,21 @@ import type { PreparedCell } from './cells'
 /** Most numbers one sweep table may hold (steps × output elements), so a sweep cannot exhaust memory. */
 export const MAX_SWEEP_NUMBERS = 5_000_000
 
-/** The parameter values of a sweep, in its unit: `steps` values from `from` to `to`, both included. */
+/**
+ * The parameter values of a sweep, in its unit: `steps` values from `from` to `to`, both included, rounded to 15
+ * significant digits so the table reads as typed (0.1, 0.4, 0.7 rather than 0.7000000000000001). Log steps are
+ * 10^(log10(from) + i·step), exact on whole decades.
+ */
 export function sweepValues(cell: SweepCell): number[] {
   const n = cell.steps
   const out = new Array<number>(n)
   if (cell.scale === 'log') {
-    const a = Math.log(cell.from)
-    const step = (Math.log(cell.to) - a) / (n - 1)
-    for (let i = 0; i < n; i++) out[i] = Math.exp(a + i * step)
+    const a = Math.log10(cell.from)
+    const step = (Math.log10(cell.to) - a) / (n - 1)
+    for (let i = 0; i < n; i++) out[i] = clean(10 ** (a + i * step))
   } else {
     const step = (cell.to - cell.from) / (n - 1)
-    for (let i = 0; i < n; i++) out[i] = cell.from + i * step
+    for (let i = 0; i < n; i++) out[i] = clean(cell.from + i * step)
   }
   out[0] = cell.from
   out[n - 1] = cell.to

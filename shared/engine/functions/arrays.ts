@@ -52,7 +52,8 @@ export function grid(from: Num, to: Num, n: Num, maxElements: number): Float64Ar
 /**
  * `loggrid(from, to, n)`: n values from `from` to `to` with equal ratios between neighbours (both included).
  * Units as grid. Range: from and to of the same sign and non-zero; 2 ≤ n ≤ the element limit.
- * Example: loggrid(1, 1000, 4) → [1, 10, 100, 1000].
+ * The values are 10^(log10|from| + i·step), so a grid over whole decades lands exactly on the powers of ten.
+ * Example: loggrid(1, 1000, 4) → [1, 10, 100, 1000]; loggrid(1*nm, 1000*nm, 4) shown in nm → [1, 10, 100, 1000].
  */
 export function loggrid(from: Num, to: Num, n: Num, maxElements: number): Float64Array {
   const a = scalar('loggrid', 'from', from)
@@ -60,10 +61,10 @@ export function loggrid(from: Num, to: Num, n: Num, maxElements: number): Float6
   const m = count('loggrid', 'n', n, 2, maxElements)
   if (a === 0 || b === 0 || Math.sign(a) !== Math.sign(b)) fail('loggrid', 'from and to must be non-zero and of the same sign')
   const out = new Float64Array(m)
-  const la = Math.log(Math.abs(a))
-  const step = (Math.log(Math.abs(b)) - la) / (m - 1)
+  const la = Math.log10(Math.abs(a))
+  const step = (Math.log10(Math.abs(b)) - la) / (m - 1)
   const s = Math.sign(a)
-  for (let i = 0; i < m; i++) out[i] = s * Math.exp(la + i * step)
+  for (let i = 0; i < m; i++) out[i] = s * 10 ** (la + i * step)
   out[0] = a
   out[m - 1] = b
   return out

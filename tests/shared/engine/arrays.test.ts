@@ -25,8 +25,16 @@ describe('grids', () => {
     const g = arr('loggrid(1, 1000, 4)')
     expect(g[0]).toBe(1)
     expect(g[3]).toBe(1000)
-    expect(g[1]).toBeCloseTo(10, 12)
-    expect(g[2]).toBeCloseTo(100, 11)
+    expect(g[1]).toBe(10)
+    expect(g[2]).toBe(100)
+  })
+
+  it('loggrid lands on whole decades exactly in a display unit, decreasing or negative too', () => {
+    expect(arr('loggrid(1*nm, 1000*nm, 4)', 'nm')).toEqual([1, 10, 100, 1000])
+    expect(arr('loggrid(1000, 1, 4)')).toEqual([1000, 100, 10, 1])
+    expect(arr('loggrid(-1, -1000, 4)')).toEqual([-1, -10, -100, -1000])
+    const g = arr('loggrid(1, 2, 5)')
+    for (let i = 1; i < 5; i++) expect(g[i] / g[i - 1]).toBeCloseTo(2 ** 0.25, 14)
   })
 
   it('loggrid refuses ends of opposite sign or zero', () => {
