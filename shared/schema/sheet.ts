@@ -267,7 +267,10 @@ function valueAt(input: unknown, path: readonly PropertyKey[]): unknown {
 
 function describe(issue: z.core.$ZodIssue, path: readonly PropertyKey[], input?: unknown): SchemaIssue {
   let message = issue.message
+  const absent = input !== undefined && path.length > 0 && valueAt(input, path) === undefined
   if (issue.code === 'invalid_type' && /received undefined/.test(issue.message)) message = 'required'
+  // a missing field of a literal or enum type (format, version, method, scale …) is missing, not of the wrong value
+  else if (absent && (issue.code === 'invalid_value' || issue.code === 'invalid_type')) message = 'required'
   else if (issue.code === 'invalid_union' && 'note' in issue && issue.note === 'No matching discriminator')
     message =
       input !== undefined && valueAt(input, path) === undefined
@@ -338,11 +341,11 @@ function sortByCell(issues: SchemaIssue[]): SchemaIssue[] {
   return issues.map((issue, order) => ({ issue, order, cell: cellOf(issue) })).sort((a, b) => a.cell - b.cell || a.order - b.order).map((x) => x.issue)
 }
 
-/** Parses sheet-file text: a JSON syntax error is one issue at the root. */
+/** Parses sheet-file text (a leading byte-order mark is ignored): a JSON syntax error is one issue at the root. */
 export function parseSheetFileText(text: string): ParseResult<SheetFile> {
   let json: unknown
   try {
-    json = JSON.parse(text)
+    json = JSON.parse(text.charCodeAt(0) === 0xfeff ? text.slice(1) : text)
   } catch (err) {
     return { ok: false, issues: [{ path: '', message: `not valid JSON: ${(err as Error).message}` }] }
   }

@@ -72,6 +72,11 @@ describe('parseSheetFile', () => {
     expect(p[0].startsWith('cells[0].method: ')).toBe(true)
   })
 
+  it('parseSheetFile says "required" for a missing field of a fixed value or a choice (format, version, method)', () => {
+    const p = problems({ title: 'T', cells: [{ kind: 'fit', name: 'f', x: 'E', y: 'alpha' }, { kind: 'parameter', name: 'p' }] })
+    expect(p).toEqual(['format: required', 'version: required', 'cells[0].method: required', 'cells[1].value: required'])
+  })
+
   it('parseSheetFile accepts a stack cell with extra fields, for files of later versions', () => {
     expect(parseSheetFile(sheet([{ kind: 'stack', name: 'st', layers: [{ d: 100e-9, n: 2 }], ambient: 'air' }])).ok).toBe(true)
   })
@@ -86,6 +91,11 @@ describe('parseSheetFileText', () => {
       expect(r.issues[0].path).toBe('')
       expect(r.issues[0].message).toMatch(/^not valid JSON/)
     }
+  })
+
+  it('parseSheetFileText reads a file saved with a byte-order mark', () => {
+    const r = parseSheetFileText('\ufeff{"format": "penumbra.sheet", "version": 1, "title": "T", "cells": []}')
+    expect(r.ok).toBe(true)
   })
 })
 
