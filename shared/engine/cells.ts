@@ -4,6 +4,7 @@
  * Values are SI; showing them in display units is display.ts's job, turning states into result objects results.ts's.
  */
 import type { SheetCell, ParameterCell, SpectrumCell } from '../schema/sheet'
+import { CELL_KINDS, fitCell, formulaCell, parameterCell, sweepCell, toSchemaIssues } from '../schema/sheet'
 import type { Num } from '../optics/num'
 import { compileFormula, inferDims, type CompiledFormula, type InputDim } from './compile'
 import type { Dim } from './dimensions'
@@ -11,6 +12,7 @@ import { dimName } from './dimensions'
 import { CellError, messageOf } from './errors'
 import type { Budget } from './limits'
 import { CONSTANTS, builtinName } from './names'
+import { isReserved } from './parse'
 import { parseUnit, formulaUnitTable } from './units'
 import { RecordValue, type Field, type Value } from './values'
 
@@ -66,14 +68,52 @@ export interface Env {
 
 const SHADOW_UNITS = new Set(formulaUnitTable().keys())
 
+/**
+ * What is wrong with a cell that does not match the sheet-file schema (a half-edited cell from the live document, a
+ * caller that skipped validation), in the schema's words, or undefined. Figures, notes and stacks are not evaluated,
+ * so only the evaluated kinds are checked; a spectrum's columns are checked for shape here and entry by entry when
+ * it is evaluated, so a million-point column is not validated twice.
+ */
+const EVALUATED_SCHEMAS: Partial<Record<string, typeof parameterCell | typeof formulaCell | typeof fitCell | typeof sweepCell>> = {
+  parameter: parameterCell, formula: formulaCell, fit: fitCell, sweep: sweepCell,
+}
+
+function malformed(cell: SheetCell): string | undefined {
+  if (!CELL_KINDS.includes(cell.kind)) return `unknown cell kind ${JSON.stringify(cell.kind)}; expected one of ${CELL_KINDS.join(', ')}`
+  if (cell.kind === 'spectrum') {
+    const cols: unknown = cell.columns
+    if (!cols || typeof cols !== 'object' || Array.isArray(cols)) return 'invalid cell: columns: required (an object of columns)'
+    for (const [name, col] of Object.entries(cols as Record<string, unknown>)) {
+      const c = col as { unit?: unknown; values?: unknown } | null
+      if (!c || typeof c !== 'object') return `invalid cell: columns.${name}: must be an object with unit and values`
+      if (typeof c.unit !== 'string') return `invalid cell: columns.${name}.unit: required`
+      if (!Array.isArray(c.values)) return `invalid cell: columns.${name}.values: required (an array of numbers)`
+    }
+    return undefined
+  }
+  const schema = EVALUATED_SCHEMAS[cell.kind]
+  if (!schema) return undefined
+  const checked = schema.safeParse(cell)
+  if (checked.success) return undefined
+  const issues = toSchemaIssues(checked.error, cell)
+  return `invalid cell: ${issues.slice(0, 3).map((i) => `${i.path || '(cell)'}: ${i.message}`).join('; ')}`
+}
+
 /** Parses, compiles and inspects a cell once; nothing here depends on other cells. */
 export function prepareCell(cell: SheetCell): PreparedCell {
   const p: PreparedCell = { cell, id: cell.id, name: cell.name, kind: cell.kind, reads: [], cellsOnly: true, staticWarnings: [] }
-  if (cell.name) {
+  if (typeof cell.name === 'string' && cell.name) {
     const c = CONSTANTS.get(cell.name)
     if (c) p.staticWarnings.push(`the name ${cell.name} shadows the built-in constant ${cell.name} (${c.doc}) in this sheet's formulas`)
     else if (SHADOW_UNITS.has(cell.name))
       p.staticWarnings.push(`the name ${cell.name} shadows the unit ${cell.name} in this sheet's formulas`)
+    else if (isReserved(cell.name))
+      p.staticWarnings.push(`the name ${cell.name} is reserved: formulas cannot refer to it; choose another name`)
+  }
+  const invalid = malformed(cell)
+  if (invalid) {
+    p.problem = invalid
+    return p
   }
   try {
     switch (cell.kind) {
@@ -191,6 +231,7 @@ export function evaluateSpectrum(cell: SpectrumCell): CellState {
     let gaps = 0
     col.values.forEach((x, i) => {
       if (x === null) gaps++
+      else if (typeof x !== 'number') throw new CellError(`column ${name}: entry ${i} is not a number (${JSON.stringify(x)?.slice(0, 40)})`, 'input')
       values[i] = x === null ? NaN : x * u.factor
     })
     if (gaps) warnings.push(`column ${name} has ${gaps} empty entr${gaps === 1 ? 'y' : 'ies'} (read as NaN)`)

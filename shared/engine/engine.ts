@@ -84,6 +84,7 @@ export class SheetEngine {
 
   /** Inserts a cell at a position of the sheet; returns the ids recomputed. */
   insert(cell: SheetCell, index: number): string[] {
+    if (!cell || typeof cell !== 'object' || typeof cell.id !== 'string') return []
     if (this.byId.has(cell.id)) return this.update(cell.id, cell)
     const p = prepareCell(cell)
     this.cells.splice(Math.max(0, Math.min(index, this.cells.length)), 0, p)

@@ -286,6 +286,7 @@ function plainWording(issue: z.core.$ZodIssue): string | null {
   switch (issue.code) {
     case 'invalid_type': {
       const received = /received (\w+)/.exec(issue.message)?.[1]
+      if (issue.expected === 'int') return 'must be a whole number'
       return `must be ${article(issue.expected)}${received ? `, not ${received === 'null' ? 'null' : article(received)}` : ''}`
     }
     case 'invalid_value':
