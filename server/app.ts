@@ -14,7 +14,7 @@ import { authRoutes } from './routes/auth'
 import { labRoutes } from './routes/labs'
 import { invitationRoutes } from './routes/invitations'
 import { sheetRoutes } from './routes/sheets'
-import { evaluateRoutes } from './routes/evaluate'
+import { EVALUATE_PATH, evaluateRoutes } from './routes/evaluate'
 import { devMailRoutes } from './routes/devMail'
 import { clientRoutes } from './static'
 import { SHEET_MEDIA_TYPE } from '../shared/schema/sheet'
@@ -51,7 +51,8 @@ export function createApp(deps: AppDeps): Express {
     }),
   )
   app.use(cookieParser())
-  app.use(express.json({ limit: config.maxBodyBytes, type: ['application/json', 'application/*+json', SHEET_MEDIA_TYPE] }))
+  const json = express.json({ limit: config.maxBodyBytes, type: ['application/json', 'application/*+json', SHEET_MEDIA_TYPE] })
+  app.use((req, res, next) => (EVALUATE_PATH.test(req.path) ? next() : json(req, res, next)))
   app.use(sessionLoader(deps))
   app.use(csrfGuard)
 
@@ -69,7 +70,7 @@ export function createApp(deps: AppDeps): Express {
   api.use('/labs', labRoutes(deps))
   api.use('/invitations', invitationRoutes(deps))
   api.use('/sheets', sheets)
-  api.use('/evaluate', evaluateRoutes())
+  api.use('/evaluate', evaluateRoutes(config))
   api.use(notFoundHandler)
   app.use('/api', api)
 

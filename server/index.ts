@@ -18,6 +18,7 @@ import { openDb, type DbHandle } from './db/client'
 import { demoAccountsPresent, formatDemoTable, isEmpty, seedDemo } from './db/seed'
 import { createDevMailer, smtpMailer, type Mailer } from './mail/mailer'
 import { pruneExpired } from './services/housekeeping'
+import { closeSharedEvaluator } from './services/evaluation'
 import { createCollab, type Collab } from './collab/index'
 import type { AppHooks } from './deps'
 
@@ -150,6 +151,7 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
         server.closeIdleConnections()
         setTimeout(() => server.closeAllConnections(), 2000).unref()
       })
+      closeSharedEvaluator()
       await mailer.close().catch((err: unknown) => warn(`closing mail: ${String(err)}`))
       try {
         handle.sqlite.pragma('wal_checkpoint(TRUNCATE)')

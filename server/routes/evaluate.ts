@@ -1,17 +1,59 @@
-/** POST /api/evaluate: a sheet file in, the engine's result object out (the same code as the worker and the CLI). */
-import { Router } from 'express'
+/**
+ * POST /api/evaluate: a sheet file in, the engine's result object out — the same parse and the same engine as the
+ * command-line evaluator, run on a worker thread (services/evaluation.ts) so a slow sheet never blocks the server.
+ * The body is read as text here and parsed in the worker; its size and the whole sheet's time are limited.
+ */
+import express, { Router, type RequestHandler } from 'express'
+import type { AppConfig } from '../config'
 import { requireUser } from '../middleware/auth'
 import { issuesSummary } from '../middleware/validate'
-import { badRequest } from '../errors'
-import { parseSheetFile } from '../../shared/schema/sheet'
-import { evaluateSheet } from '../../shared/engine/index'
+import { sizeLabel } from '../middleware/errorHandler'
+import { badRequest, HttpError } from '../errors'
+import { sharedEvaluator, type SheetEvaluator } from '../services/evaluation'
 
-export function evaluateRoutes(): Router {
+/** Paths the app-wide JSON parser leaves alone (this route reads its body as text). */
+export const EVALUATE_PATH = /^\/api\/evaluate\/?$/
+
+function formatSeconds(ms: number): string {
+  return ms >= 1000 ? `${+(ms / 1000).toFixed(1)} s` : `${ms} ms`
+}
+
+export function evaluateRoutes(config: AppConfig, evaluator: () => SheetEvaluator = sharedEvaluator): Router {
+  const { maxBytes, budgetMs } = config.evaluate
+  const text = express.text({ type: () => true, limit: maxBytes })
+  const readBody: RequestHandler = (req, res, next) => {
+    text(req, res, (err?: unknown) => {
+      if ((err as { type?: string } | undefined)?.type === 'entity.too.large')
+        return next(new HttpError(413, `The sheet file is larger than ${sizeLabel(maxBytes)}, the most POST /api/evaluate accepts. Evaluate it with the command-line evaluator (npm run evaluate) instead.`))
+      next(err)
+    })
+  }
+
   const r = Router()
-  r.post('/', requireUser, (req, res) => {
-    const parsed = parseSheetFile(req.body)
-    if (!parsed.ok) throw badRequest(issuesSummary('The sheet file has problems', parsed.issues), parsed.issues)
-    res.json(evaluateSheet(parsed.value, { timeBudgetMs: 2000 }))
+  r.post('/', requireUser, readBody, async (req, res) => {
+    const body = typeof req.body === 'string' ? req.body : ''
+    if (body.trim() === '') throw badRequest('Send a sheet file as the request body.', [{ path: '', message: 'required' }])
+    const outcome = await evaluator().evaluate(body, budgetMs)
+    if (outcome.ok) {
+      res.type('application/json').send(outcome.json)
+      return
+    }
+    switch (outcome.reason) {
+      case 'invalid': {
+        const notJson = outcome.issues.length === 1 && outcome.issues[0].path === '' && outcome.issues[0].message.startsWith('not valid JSON')
+        throw badRequest(notJson ? 'The request body is not valid JSON.' : issuesSummary('The sheet file has problems', outcome.issues), outcome.issues)
+      }
+      case 'timeout':
+        throw new HttpError(422, `The sheet took longer than ${formatSeconds(outcome.budgetMs)} to evaluate and was stopped. Make it lighter (shorter grids, fewer sweep steps) or evaluate it with the command-line evaluator (npm run evaluate).`)
+      case 'memory':
+        throw new HttpError(422, 'The sheet needs more memory to evaluate than the server gives one evaluation. Make it lighter (shorter grids, fewer sweep steps) or evaluate it with the command-line evaluator (npm run evaluate).')
+      case 'busy':
+        res.set('Retry-After', String(Math.ceil(budgetMs / 1000)))
+        throw new HttpError(503, 'The server is busy evaluating other sheets. Try again in a few seconds.')
+      case 'failed':
+        console.error(`POST /api/evaluate failed: ${outcome.message}`)
+        throw new HttpError(500, 'The sheet could not be evaluated on the server. Please try again.')
+    }
   })
   return r
 }

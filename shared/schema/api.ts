@@ -281,7 +281,11 @@ export type RenameSheetBody = z.infer<typeof renameSheetBody>
  * `Content-Disposition: attachment; filename="<title>.penumbra.json"`.
  *
  * POST /api/evaluate (signed in) with a sheet file as the body → 200 the engine's result object
- * (shared/schema/result.ts); a file with problems → 400 with `issues`.
+ * (shared/schema/result.ts), byte for byte what the command-line evaluator prints. It runs on a worker thread with a
+ * budget for the whole sheet (10 s by default, besides the engine's own budget per cell). Errors: 400 with `issues`
+ * for malformed JSON or a file with problems; 413 for a file over the evaluate limit (5 MB by default); 422 when the
+ * sheet took longer than its budget or more memory than one evaluation may use; 503 (with Retry-After) when the
+ * server is busy evaluating other sheets.
  */
 export const cellResultSchema = z
   .object({

@@ -1,0 +1,28 @@
+/**
+ * The body of an evaluation worker thread (started through evaluation.worker.mjs): parses a sheet file's text with
+ * the shared schema and evaluates it with the shared engine — exactly what the command-line evaluator does — and
+ * answers with the result's JSON text, or the file's problems by JSON path.
+ */
+import { parentPort } from 'node:worker_threads'
+import { evaluateSheet } from '../../shared/engine/index'
+import { parseSheetFileText } from '../../shared/schema/sheet'
+import type { WorkerReply, WorkerRequest } from './evaluation'
+
+if (!parentPort) throw new Error('evaluationWorker.ts runs only as a worker thread')
+const port = parentPort
+
+port.on('message', (request: WorkerRequest) => {
+  let reply: WorkerReply
+  try {
+    const parsed = parseSheetFileText(request.text)
+    reply = parsed.ok
+      ? { id: request.id, kind: 'result', json: JSON.stringify(evaluateSheet(parsed.value)) }
+      : { id: request.id, kind: 'invalid', issues: parsed.issues }
+  } catch (err) {
+    // the engine turns every cell failure into a value; this is a bug or a resource limit
+    reply = { id: request.id, kind: 'failed', message: err instanceof Error ? err.message : String(err) }
+  }
+  port.postMessage(reply)
+})
+
+port.postMessage({ id: 0, kind: 'ready' } satisfies WorkerReply)
