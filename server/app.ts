@@ -36,6 +36,8 @@ export function createApp(deps: AppDeps): Express {
   app.disable('x-powered-by')
   app.set('trust proxy', config.trustProxy)
 
+  // upgrade and HSTS only when the public address is https (a production server tried out over plain http keeps working)
+  const publicHttps = config.publicUrl.startsWith('https:')
   app.use(
     helmet({
       contentSecurityPolicy: {
@@ -44,10 +46,10 @@ export function createApp(deps: AppDeps): Express {
           'img-src': ["'self'", 'data:', 'blob:'],
           'worker-src': ["'self'", 'blob:'],
           'connect-src': ["'self'"],
-          'upgrade-insecure-requests': config.cookieSecure ? [] : null,
+          'upgrade-insecure-requests': publicHttps ? [] : null,
         },
       },
-      strictTransportSecurity: config.cookieSecure,
+      strictTransportSecurity: publicHttps,
     }),
   )
   app.use(cookieParser())

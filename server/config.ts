@@ -13,6 +13,7 @@ export interface AppConfig {
   production: boolean
   /** Folder of the built client (dist/) to serve with a fallback to index.html, or null to serve only the API. */
   clientDir: string | null
+  /** Mark the session cookie Secure on every response (it is Secure anyway on a request that came over https). */
   cookieSecure: boolean
   /** Express 'trust proxy' setting, for rate limits by client address behind a reverse proxy. */
   trustProxy: boolean | number | string

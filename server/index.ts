@@ -88,6 +88,8 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
     mailer = await createDevMailer(defaultConfig().mailFrom, { port: env.DEV_SMTP_PORT ? Number(env.DEV_SMTP_PORT) : 0 })
   }
 
+  if (production && !env.PUBLIC_URL)
+    warn('NODE_ENV=production without PUBLIC_URL: session cookies are Secure (sign in over https, e.g. behind a TLS proxy with TRUST_PROXY), and mailed links point at localhost. Set PUBLIC_URL to the address people use.')
   const clientDir = path.join(ROOT, 'dist')
   const hasClient = existsSync(path.join(clientDir, 'index.html'))
   if (!hasClient) warn('The client is not built (no dist/index.html): serving the API only. `npm start` builds it; `npm run dev` serves it with hot reload.')
@@ -95,7 +97,8 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
     publicUrl: env.PUBLIC_URL?.replace(/\/+$/, '') ?? `http://localhost:${port}`,
     production,
     clientDir: hasClient ? clientDir : null,
-    cookieSecure: !!env.PUBLIC_URL?.startsWith('https:'),
+    // public over https, or in production unless PUBLIC_URL says plain http on purpose
+    cookieSecure: env.PUBLIC_URL ? env.PUBLIC_URL.startsWith('https:') : production,
     trustProxy: parseTrustProxy(env.TRUST_PROXY),
   })
 

@@ -1,5 +1,5 @@
 /** Reads the session cookie on every request; `requireUser` answers 401 when nobody (valid) is signed in. */
-import type { CookieOptions, RequestHandler, Response } from 'express'
+import type { CookieOptions, Request, RequestHandler, Response } from 'express'
 import type { AppDeps } from '../deps'
 import { SESSION_COOKIE, signSession, userForToken, type SessionFailure } from '../services/sessions'
 import { unauthorized } from '../errors'
@@ -34,17 +34,22 @@ export const requireUser: RequestHandler = (req, _res, next) => {
   next()
 }
 
-function cookieOptions(deps: AppDeps): CookieOptions {
-  return { httpOnly: true, sameSite: 'lax', secure: deps.config.cookieSecure, path: '/' }
+/**
+ * httpOnly (scripts never read it), SameSite=Lax (not sent with cross-site posts), and Secure when the app is public
+ * over https (config.cookieSecure) or this request came over https — directly, or through a trusted proxy's
+ * X-Forwarded-Proto (TRUST_PROXY).
+ */
+export function cookieOptions(deps: AppDeps, req: Request): CookieOptions {
+  return { httpOnly: true, sameSite: 'lax', secure: deps.config.cookieSecure || req.secure, path: '/' }
 }
 
 /** Signs a session for the user and sets the cookie. */
 export async function startSession(deps: AppDeps, res: Response, userId: string): Promise<void> {
   const ttl = deps.config.ttl.sessionSeconds
   const { token } = await signSession(deps.secret, userId, ttl)
-  res.cookie(SESSION_COOKIE, token, { ...cookieOptions(deps), maxAge: ttl * 1000 })
+  res.cookie(SESSION_COOKIE, token, { ...cookieOptions(deps, res.req), maxAge: ttl * 1000 })
 }
 
 export function clearSession(deps: AppDeps, res: Response): void {
-  res.clearCookie(SESSION_COOKIE, cookieOptions(deps))
+  res.clearCookie(SESSION_COOKIE, cookieOptions(deps, res.req))
 }

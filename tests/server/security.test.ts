@@ -135,3 +135,49 @@ describe('rate limits', () => {
     expect((await call(t).post('/api/auth/reset', { token: 'z'.repeat(43), password: 'the new password' })).status).toBe(429)
   })
 })
+
+describe('the session cookie', () => {
+  async function signInCookie(t: ReturnType<typeof makeTestApp>, headers: Record<string, string> = {}): Promise<string> {
+    const u = await createTestUser(t)
+    const res = await call(t).post('/api/auth/sign-in', { email: u.email, password: u.password }).set(headers)
+    expect(res.status).toBe(200)
+    return (res.headers['set-cookie'] as unknown as string[]).find((c) => c.startsWith('penumbra_session='))!
+  }
+
+  it('POST /api/auth/sign-in sets it httpOnly and SameSite=Lax, without Secure over plain http in development', async () => {
+    const set = await signInCookie(makeTestApp())
+    expect(set).toMatch(/; HttpOnly/)
+    expect(set).toMatch(/; SameSite=Lax/)
+    expect(set).not.toMatch(/; Secure/)
+  })
+
+  it('POST /api/auth/sign-in marks it Secure when the app is public over https, with HSTS and upgrade-insecure-requests', async () => {
+    const t = makeTestApp({ config: { cookieSecure: true, production: true, publicUrl: 'https://penumbra.halvorsen-lab.example' } })
+    const set = await signInCookie(t)
+    expect(set).toMatch(/; Secure/)
+    expect(set).toMatch(/; HttpOnly/)
+    const health = await request(t.app).get('/api/health')
+    expect(health.headers['strict-transport-security']).toMatch(/max-age=\d+/)
+    expect(health.headers['content-security-policy']).toContain('upgrade-insecure-requests')
+  })
+
+  it('POST /api/auth/sign-in marks it Secure behind a trusted TLS proxy, and not for a forwarded header nobody trusts', async () => {
+    const proxied = await signInCookie(makeTestApp({ config: { trustProxy: 1 } }), { 'X-Forwarded-Proto': 'https' })
+    expect(proxied).toMatch(/; Secure/)
+    const untrusted = await signInCookie(makeTestApp(), { 'X-Forwarded-Proto': 'https' })
+    expect(untrusted).not.toMatch(/; Secure/)
+  })
+
+  it('POST /api/auth/sign-out clears it with the same flags', async () => {
+    const t = makeTestApp({ config: { cookieSecure: true } })
+    const u = await createTestUser(t)
+    const res = await call(t, u.cookie).post('/api/auth/sign-out')
+    expect(res.status).toBe(204)
+    const cleared = (res.headers['set-cookie'] as unknown as string[])[0]
+    expect(cleared).toMatch(/^penumbra_session=;/)
+    expect(cleared).toMatch(/; HttpOnly/)
+    expect(cleared).toMatch(/; Secure/)
+    expect(cleared).toMatch(/; SameSite=Lax/)
+    expect(cleared).toMatch(/Expires=Thu, 01 Jan 1970/)
+  })
+})
