@@ -64,6 +64,33 @@ function windowOf(cell: FitCell, x: Series): [number, number] {
   return a <= b ? [a - slack, b + slack] : [a + slack, b - slack]
 }
 
+/**
+ * Throws a CellError, in the x cell's own display unit, when the window holds fewer than `needed` points of x: what
+ * was asked, how many points fell inside, and the range x covers (the usual slip is a window in another unit).
+ */
+function requirePoints(cell: FitCell, x: Series, lo: number, hi: number, needed: number, what: string): void {
+  const [a, b] = [Math.min(lo, hi), Math.max(lo, hi)]
+  let inside = 0
+  let first = Infinity
+  let last = -Infinity
+  for (const v of x.values) {
+    if (!Number.isFinite(v)) continue
+    if (v >= a && v <= b) inside++
+    first = Math.min(first, v)
+    last = Math.max(last, v)
+  }
+  if (inside >= needed) return
+  const show = (v: number): string => String(+(v / x.factor).toPrecision(6))
+  const unit = x.unit ? ` ${x.unit}` : ''
+  const range = Number.isFinite(first) ? `, which run from ${show(first)} to ${show(last)}${unit}` : ''
+  throw new CellError(
+    cell.from === undefined && cell.to === undefined
+      ? `${cell.x} has only ${inside} finite point${inside === 1 ? '' : 's'}; ${what} needs at least ${needed}`
+      : `the window ${show(lo)} to ${show(hi)}${unit} holds ${inside} of the ${x.values.length} points of ${cell.x}${range}; ${what} needs at least ${needed}`,
+    'fit',
+  )
+}
+
 function field(value: Num, dim: Dim | null): Field {
   return { value, dim }
 }
@@ -80,6 +107,7 @@ export function evaluateFit(p: PreparedCell, env: Env): CellState {
     throw new CellError(`x (${cell.x}) has ${x.values.length} values but y (${cell.y}) has ${y.values.length}`, 'input')
   const e = energyUnit(cell, x)
   const [lo, hi] = windowOf(cell, x)
+  requirePoints(cell, x, lo, hi, 3, cell.method === 'tauc' ? 'a Tauc fit' : 'an Urbach fit')
   if (cell.method === 'tauc') {
     const r = cell.r ?? 0.5
     if (cell.r === undefined) warnings.push('r is not given: using r = 1/2 (direct allowed transition)')
@@ -146,6 +174,7 @@ function modelFit(cell: FitCell, env: Env): CellState {
   const chain = env.chain(free.map((f) => f.id), [model.id])
   if (!chain.includes(model.id)) throw new CellError(`the model ${cell.model} does not depend on any of the free parameters`, 'input')
   const [lo, hi] = windowOf(cell, x)
+  requirePoints(cell, x, lo, hi, free.length + 1, `a model fit of ${free.length} parameter${free.length === 1 ? '' : 's'}`)
   const [a, b] = [Math.min(lo, hi), Math.max(lo, hi)]
   const picked: number[] = []
   x.values.forEach((v, i) => {

@@ -72,7 +72,18 @@ describe('fit cells: tauc', () => {
 
   it('a window with too few points is a clear error', () => {
     const res = run([...directEdge, { kind: 'fit', name: 'edge', method: 'tauc', x: 'E', y: 'alpha', r: 0.5, from: 1.6, to: 1.602 }])
-    expect(pick(res, 'edge').error).toMatch(/holds 2 points; a fit needs at least 3/)
+    expect(pick(res, 'edge').error).toBe('the window 1.6 to 1.602 eV holds 2 of the 501 points of E, which run from 1.2 to 2.2 eV; a Tauc fit needs at least 3')
+  })
+
+  it("a window given in another unit than the x cell's says what range x covers, in x's unit", () => {
+    const res = run([
+      { kind: 'formula', name: 'E', source: 'grid(1.2*eV, 2.2*eV, 501)', unit: 'meV' },
+      directEdge[1],
+      { kind: 'fit', name: 'edge', method: 'tauc', x: 'E', y: 'alpha', r: 0.5, from: 1.6, to: 2.0, unit: 'eV' },
+      { kind: 'fit', name: 'tail', method: 'urbach', x: 'E', y: 'alpha', from: 1.6, to: 2.0 },
+    ])
+    expect(pick(res, 'edge').error).toBe('the window 1.6 to 2 meV holds 0 of the 501 points of E, which run from 1200 to 2200 meV; a Tauc fit needs at least 3')
+    expect(pick(res, 'tail').error).toMatch(/^the window 1.6 to 2 meV holds 0 .*; an Urbach fit needs at least 3$/)
   })
 
   it('a window reaching below the gap is flagged: the fitted gap lies inside it', () => {
@@ -177,6 +188,44 @@ describe('fit cells: model (Levenberg–Marquardt)', () => {
   it('formulas read fitted parameters in SI: edge.Eu is in joules', () => {
     const cells = [...sheet(exact), { kind: 'formula', name: 'eu', source: 'edge.Eu', unit: 'meV' }]
     expect(rel(pick(run(cells), 'eu').value as number, truth.Eu)).toBeLessThan(1e-5)
+  })
+
+  it('a model fit of a straight line equals ordinary least squares, standard errors included', () => {
+    // closed form: slope = Sxy/Sxx, intercept = ȳ − slope·x̄, var(slope) = s²/Sxx, var(intercept) = s²(1/n + x̄²/Sxx),
+    // s² = SSR/(n − 2) (Draper & Smith, Applied Regression Analysis, 3rd ed., ch. 1)
+    const xs = [0, 1, 2, 3, 4, 5, 6, 7, 8, 9]
+    const noise = [0.3, -0.2, 0.1, -0.4, 0.25, 0.05, -0.15, 0.35, -0.3, 0]
+    const ys = xs.map((x, i) => 2 * x + 1 + noise[i])
+    const n = xs.length
+    const xm = xs.reduce((a, b) => a + b) / n
+    const ym = ys.reduce((a, b) => a + b) / n
+    const sxx = xs.reduce((a, x) => a + (x - xm) ** 2, 0)
+    const slope = xs.reduce((a, x, i) => a + (x - xm) * (ys[i] - ym), 0) / sxx
+    const intercept = ym - slope * xm
+    const ssr = xs.reduce((a, x, i) => a + (ys[i] - intercept - slope * x) ** 2, 0)
+    const s2 = ssr / (n - 2)
+    const res = run([
+      { kind: 'spectrum', name: 'data', columns: { x: { unit: '', values: xs }, y: { unit: '', values: ys } } },
+      { kind: 'formula', name: 'x', source: 'data.x' },
+      { kind: 'formula', name: 'y', source: 'data.y' },
+      { kind: 'parameter', name: 'a', value: 1 },
+      { kind: 'parameter', name: 'b', value: 0 },
+      { kind: 'formula', name: 'line', source: 'a*x + b' },
+      { kind: 'fit', name: 'lin', method: 'model', x: 'x', y: 'y', model: 'line', parameters: [{ name: 'a' }, { name: 'b' }] },
+    ])
+    const v = pick(res, 'lin').value as Record<string, number>
+    expect(rel(v.a, slope)).toBeLessThan(1e-8)
+    expect(rel(v.b, intercept)).toBeLessThan(1e-8)
+    expect(rel(v.a_err, Math.sqrt(s2 / sxx))).toBeLessThan(1e-6)
+    expect(rel(v.b_err, Math.sqrt(s2 * (1 / n + (xm * xm) / sxx)))).toBeLessThan(1e-6)
+    expect(rel(v.chi2, ssr)).toBeLessThan(1e-8)
+  })
+
+  it('a model fit window with too few points for its parameters is a clear error', () => {
+    const cells = sheet(exact)
+    const fit = cells[7] as Record<string, unknown>
+    const error = pick(run([...cells.slice(0, 7), { ...fit, from: 1.5, to: 1.5005 }]), 'edge').error
+    expect(error).toMatch(/^the window 1\.5 to 1\.5005 eV holds 1 of the 161 points of Ex, which run from 1\.4 to 1\.8 eV; a model fit of 3 parameters needs at least 4$/)
   })
 
   it('a model fit says what is wrong with its model or parameters', () => {
