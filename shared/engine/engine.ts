@@ -11,6 +11,7 @@ import {
 } from './cells'
 import { blockedMessage, CellError, cycleMessage, messageOf, unknownNamesMessage } from './errors'
 import { evaluateFit } from './fits'
+import { builtinFunction } from './functions/registry'
 import { Budget, DEFAULT_MAX_ELEMENTS, DEFAULT_TIME_BUDGET_MS } from './limits'
 import { Graph } from './order'
 import { toCellJson, type CellJson } from './results'
@@ -172,7 +173,12 @@ export class SheetEngine {
     const cycle = this.graph.cycle.get(p.id)
     if (cycle) return fail(cycleMessage(cycle))
     const unknown = this.graph.unknown.get(p.id)
-    if (unknown) return fail(unknownNamesMessage(unknown))
+    if (unknown) {
+      // a library function named without its arguments reads as an unknown name: say how to call it
+      const fns = unknown.map((n) => builtinFunction(n)).filter((f) => f !== undefined)
+      const hint = fns.length ? `; ${fns.map((f) => `${f.name} is a function: call it as ${f.signature}`).join('; ')}` : ''
+      return fail(unknownNamesMessage(unknown) + hint)
+    }
     for (const d of this.graph.deps.get(p.id) ?? []) {
       const dep = this.byId.get(d)!
       if (this.states.get(d)?.status !== 'ok') return fail(blockedMessage(dep.name ?? d), 'blocked')

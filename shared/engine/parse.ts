@@ -90,11 +90,16 @@ export function parseFormula(source: string): Node {
     tokens = (formulaParser().parse(source) as unknown as { tokens: Instr[] }).tokens
   } catch (err) {
     if (err instanceof RangeError) throw new CellError('the formula is nested too deeply', 'limit')
+    const word = /Expected EOF/.test((err as Error).message) ? JS_WORDS.exec(source) : null
+    if (word) throw new CellError(`"${word[1]}" is not part of the formula language (formulas are one expression of numbers, names and library functions)`, 'syntax')
     throw new CellError(syntaxMessage((err as Error).message), 'syntax')
   }
   const counter = { n: 0 }
   return toTree(tokens, counter)
 }
+
+/** JavaScript and expr-eval words a formula might try; after them the parser only says it expected the end. */
+const JS_WORDS = /\b(in|instanceof|typeof|new|void|delete|function|return|let|var|const|await|yield)\b\s*[^\s(,)]/
 
 const CHARACTER_HINTS: Record<string, string> = {
   '=': 'assignments are not allowed: each cell defines one name (compare with ==)',

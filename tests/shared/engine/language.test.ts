@@ -202,6 +202,20 @@ describe('formula language: syntax', () => {
     expect(formula('[1, 2][0]').error).toMatch(/use at\(a, i\)/)
   })
 
+  it('array literals, the ternary and and/or/not are part of the language; "in" and JavaScript keywords are refused by name', () => {
+    expect(formula('[1, 2] * 2').value).toEqual([2, 4])
+    expect(formula('2 > 1 ? 10 : 20').value).toBe(10)
+    expect(formula('(1 and 0) or not 0').value).toBe(1)
+    expect(formula('1 in [1, 2]').error).toBe('"in" is not part of the formula language (formulas are one expression of numbers, names and library functions)')
+    expect(formula('typeof 1').error).toMatch(/^"typeof" is not part of the formula language/)
+    expect(formula('new grid(0, 1, 2)').error).toMatch(/^"new" is not part of the formula language/)
+  })
+
+  it('a library function named without arguments is an unknown name that says how to call it', () => {
+    expect(formula('sin').error).toBe('unknown name: sin; sin is a function: call it as sin(x)')
+    expect(formula('grid * 2').error).toBe('unknown name: grid; grid is a function: call it as grid(from, to, n)')
+  })
+
   it('an unknown function and a wrong argument count are errors naming the function', () => {
     expect(formula('frobnicate(1)').error).toBe('unknown function: frobnicate')
     expect(formula('grid(1, 2)').error).toBe('grid(from, to, n) takes 3 arguments, not 2')
