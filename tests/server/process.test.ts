@@ -14,12 +14,14 @@ import { CSRF_HEADER } from '../../shared/schema/api'
 
 const ROOT = path.resolve(__dirname, '../..')
 const dataDir = mkdtempSync(path.join(tmpdir(), 'penumbra-process-'))
+const npmDataDir = mkdtempSync(path.join(tmpdir(), 'penumbra-process-npm-'))
 const children: ChildProcess[] = []
 const exampleCount = readExamples(EXAMPLES_DIR, () => {}).length
 
 afterAll(() => {
   for (const c of children) if (c.exitCode === null && c.signalCode === null) c.kill('SIGKILL')
   rmSync(dataDir, { recursive: true, force: true })
+  rmSync(npmDataDir, { recursive: true, force: true })
 })
 
 interface Started {
@@ -29,10 +31,11 @@ interface Started {
   exited: Promise<{ code: number | null; signal: NodeJS.Signals | null }>
 }
 
-function start(): Promise<Started> {
-  const child = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], {
+function start(via: 'node' | 'npm' = 'node', dir = dataDir): Promise<Started> {
+  const [command, args] = via === 'node' ? [process.execPath, ['--import', 'tsx', 'server/index.ts']] : ['npm', ['run', '--silent', 'serve']]
+  const child = spawn(command, args, {
     cwd: ROOT,
-    env: { ...process.env, DATA_DIR: dataDir, PORT: '0', NODE_ENV: 'development', PENUMBRA_SECRET: '' },
+    env: { ...process.env, DATA_DIR: dir, PORT: '0', NODE_ENV: 'development', PENUMBRA_SECRET: '' },
     stdio: ['ignore', 'pipe', 'pipe'],
   })
   children.push(child)
@@ -114,5 +117,16 @@ describe('server/index.ts as a process', () => {
     expect(created.status).toBe(201)
     second.child.kill('SIGTERM')
     expect((await second.exited).code).toBe(0)
+  }, 60000)
+
+  it('npm run serve passes SIGTERM to the server itself, which stops cleanly (no server left running behind npm)', async () => {
+    const s = await start('npm', npmDataDir)
+    const health = await fetch(`${s.url}/api/health`)
+    expect(health.status).toBe(200)
+    s.child.kill('SIGTERM')
+    expect((await s.exited).code).toBe(0)
+    expect(s.output()).toContain('Penumbra stopped.')
+    // nothing answers on the port any more
+    await expect(fetch(`${s.url}/api/health`)).rejects.toThrow()
   }, 60000)
 })
