@@ -192,12 +192,14 @@ export function reflectanceSlab(alpha: Num, d: Num, R: Num): Num {
  */
 export function absorptanceSlab(alpha: Num, d: Num, R: Num): Num {
   check('absorptance_slab', 'the thickness d', d, nonNegative, 'zero or positive')
+  // with m = x − 1 = expm1(−αd) from one call: A = (1 − R)(−m) / ((1 − R) − R·m), which keeps its digits for
+  // αd → 0 (m small) and for an opaque slab (m → −1, the denominator → 1)
   const n = broadcastLength(alpha, d, R)
   if (n < 0) {
     const r = R as number
     if (!(r >= 0 && r <= 1)) throw badR('absorptance_slab', r)
-    const ad = (alpha as number) * (d as number)
-    return ((1 - r) * -Math.expm1(-ad)) / (1 - r * Math.exp(-ad))
+    const m = Math.expm1(-(alpha as number) * (d as number))
+    return ((1 - r) * -m) / (1 - r - r * m)
   }
   const out = new Float64Array(n)
   const A = typeof alpha === 'number' ? null : alpha
@@ -209,28 +211,16 @@ export function absorptanceSlab(alpha: Num, d: Num, R: Num): Num {
     if (!(r >= 0 && r <= 1)) throw badR('absorptance_slab', r)
     const c = 1 - r
     for (let i = 0; i < n; i++) {
-      const ad = A[i] * t
-      const x = Math.exp(-ad)
-      // 1 − x from expm1 keeps its digits when αd is small
-      out[i] = (c * -Math.expm1(-ad)) / (1 - r * x)
-    }
-    return out
-  }
-  if (A && !D && RR) {
-    const t = d as number
-    for (let i = 0; i < n; i++) {
-      const r = RR[i]
-      if (!(r >= 0 && r <= 1)) throw badR('absorptance_slab', r)
-      const ad = A[i] * t
-      out[i] = ((1 - r) * -Math.expm1(-ad)) / (1 - r * Math.exp(-ad))
+      const m = Math.expm1(-A[i] * t)
+      out[i] = (c * -m) / (c - r * m)
     }
     return out
   }
   for (let i = 0; i < n; i++) {
     const r = RR ? RR[i] : (R as number)
     if (!(r >= 0 && r <= 1)) throw badR('absorptance_slab', r)
-    const ad = (A ? A[i] : (alpha as number)) * (D ? D[i] : (d as number))
-    out[i] = ((1 - r) * -Math.expm1(-ad)) / (1 - r * Math.exp(-ad))
+    const m = Math.expm1(-(A ? A[i] : (alpha as number)) * (D ? D[i] : (d as number)))
+    out[i] = ((1 - r) * -m) / (1 - r - r * m)
   }
   return out
 }

@@ -48,21 +48,9 @@ function gridOf(fn: string, lambda: Num, others: Num[]): Float64Array {
   return lambda
 }
 
-/** Trapezoid ∫ y dx with |Δx|, so a grid running from long to short wavelengths integrates the same. */
-function trapezoidAbs(x: Float64Array, y: (i: number) => number): number {
-  let s = 0
-  let prev = y(0)
-  for (let i = 1; i < x.length; i++) {
-    const cur = y(i)
-    s += Math.abs(x[i] - x[i - 1]) * 0.5 * (prev + cur)
-    prev = cur
-  }
-  return s
-}
-
 /**
  * Photocurrent density of an absorber that turns every absorbed photon into one collected electron,
- * J = q·∫ A(λ)·Φ(λ) dλ (trapezoid rule on the given grid, in either direction).
+ * J = q·∫ A(λ)·Φ(λ) dλ (trapezoid rule with |Δλ|, so a grid running from long to short wavelengths gives the same).
  *
  * - `lambda`: wavelength grid, m (array, ≥ 2 points); `absorptance`: 0–1 (array on the grid, or one number);
  *   `flux`: spectral photon flux, photons m⁻² s⁻¹ per metre of wavelength (array on the grid, or one number)
@@ -74,9 +62,19 @@ function trapezoidAbs(x: Float64Array, y: (i: number) => number): number {
  */
 export function photocurrent(lambda: Num, absorptance: Num, flux: Num): number {
   const x = gridOf('photocurrent', lambda, [absorptance, flux])
-  const A = absorptance
-  const F = flux
-  return q * trapezoidAbs(x, (i) => (typeof A === 'number' ? A : A[i]) * (typeof F === 'number' ? F : F[i]))
+  // one pass, no per-element closure: a thickness sweep calls this once per step
+  const A = typeof absorptance === 'number' ? null : absorptance
+  const F = typeof flux === 'number' ? null : flux
+  const a0 = absorptance as number
+  const f0 = flux as number
+  let prev = (A ? A[0] : a0) * (F ? F[0] : f0)
+  let s = 0
+  for (let i = 1; i < x.length; i++) {
+    const cur = (A ? A[i] : a0) * (F ? F[i] : f0)
+    s += Math.abs(x[i] - x[i - 1]) * 0.5 * (prev + cur)
+    prev = cur
+  }
+  return q * s
 }
 
 const ZETA3 = 1.2020569031595942
