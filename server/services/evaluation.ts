@@ -88,6 +88,13 @@ class Slot {
     )
   }
 
+  /** Stops the thread for good; a job it was running answers busy. */
+  close(): void {
+    if (this.idleTimer) clearTimeout(this.idleTimer)
+    this.stop()
+    if (this.job) this.finish(this.job, { ok: false, reason: 'busy' })
+  }
+
   /** Stops the thread (a new one starts for the next job). */
   stop(): void {
     const worker = this.worker
@@ -170,7 +177,7 @@ export class SheetEvaluator {
   close(): void {
     this.closed = true
     for (const job of this.queue.splice(0)) job.resolve({ ok: false, reason: 'busy' })
-    for (const slot of this.slots) slot.stop()
+    for (const slot of this.slots) slot.close()
   }
 
   private dispatch(): void {

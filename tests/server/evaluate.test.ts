@@ -118,4 +118,15 @@ describe('SheetEvaluator', () => {
       evaluator.close()
     }
   }, 30_000)
+
+  it('close() answers the running and the waiting evaluations busy and stops its thread', async () => {
+    const evaluator = new SheetEvaluator({ workers: 1, maxQueue: 4, idleMs: 1000, maxHeapMb: 512 })
+    const running = evaluator.evaluate(slowSheet(), 20_000)
+    const waiting = evaluator.evaluate(slowSheet(1), 20_000)
+    await new Promise((r) => setTimeout(r, 1500))
+    evaluator.close()
+    expect(await running).toEqual({ ok: false, reason: 'busy' })
+    expect(await waiting).toEqual({ ok: false, reason: 'busy' })
+    expect(await evaluator.evaluate(slowSheet(1), 1000)).toEqual({ ok: false, reason: 'busy' })
+  }, 30_000)
 })
