@@ -15,11 +15,26 @@ export interface DbHandle {
 
 export const MIGRATIONS_FOLDER = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../../drizzle')
 
-export function openDb(file: string): DbHandle {
+export type Durability = 'NORMAL' | 'FULL'
+
+export interface OpenOptions {
+  /**
+   * SQLite's `synchronous` setting under WAL. NORMAL (the default): a transaction that returned survives the server
+   * process being killed (kill -9, crash) — the relayed-update guarantee — and costs no fsync per commit; the last
+   * commits may roll back only if the whole machine loses power. FULL: an fsync per commit, so they survive power
+   * loss too, at the price of the disk's flush time on every relayed edit. `PENUMBRA_SQLITE_SYNC=FULL` selects it.
+   */
+  durability?: Durability
+}
+
+function durabilityFromEnv(): Durability {
+  return (globalThis.process?.env?.PENUMBRA_SQLITE_SYNC ?? '').toUpperCase() === 'FULL' ? 'FULL' : 'NORMAL'
+}
+
+export function openDb(file: string, options: OpenOptions = {}): DbHandle {
   const sqlite = new Database(file)
   if (file !== ':memory:') sqlite.pragma('journal_mode = WAL')
-  // FULL: a write that returned is on disk even if the machine loses power, not only if the process dies.
-  sqlite.pragma('synchronous = FULL')
+  sqlite.pragma(`synchronous = ${options.durability ?? durabilityFromEnv()}`)
   sqlite.pragma('foreign_keys = ON')
   sqlite.pragma('busy_timeout = 5000')
   const db = drizzle(sqlite, { schema })
