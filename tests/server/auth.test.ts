@@ -142,6 +142,18 @@ describe('session tokens on GET /api/auth/me', () => {
     expect(res.body.error).toBe('Your session is not valid. Sign in again.')
   })
 
+  it('answers 401 for an unsigned token (alg "none") and for one from another issuer', async () => {
+    const t = makeTestApp()
+    const u = await createTestUser(t)
+    const b64 = (o: object) => Buffer.from(JSON.stringify(o)).toString('base64url')
+    const claims = { sub: u.id, jti: 'j', iss: 'penumbra', iat: Math.floor(Date.now() / 1000), exp: Math.floor(Date.now() / 1000) + 3600 }
+    const unsigned = `${b64({ alg: 'none' })}.${b64(claims)}.`
+    expect((await call(t, `${SESSION_COOKIE}=${unsigned}`).get('/api/auth/me')).body).toEqual({ error: 'Your session is not valid. Sign in again.' })
+    const { SignJWT } = await import('jose')
+    const foreign = await new SignJWT({}).setProtectedHeader({ alg: 'HS256' }).setSubject(u.id).setJti('k').setIssuer('someone-else').setIssuedAt().setExpirationTime('1h').sign(t.secret)
+    expect((await call(t, `${SESSION_COOKIE}=${foreign}`).get('/api/auth/me')).status).toBe(401)
+  })
+
   it('answers 401 for a token signed with another secret', async () => {
     const t = makeTestApp()
     const u = await createTestUser(t)

@@ -184,6 +184,18 @@ describe('invitations', () => {
     expect((await call(t).get(`/api/invitations/${secondToken}`)).status).toBe(404)
   })
 
+  it('POST /api/labs/:labId/invitations answers alike for an address with an account and one without, and mails the same words', async () => {
+    const t = makeTestApp()
+    const lab = await seedLab(t)
+    const owner = lab.users.owner.cookie
+    const known = await call(t, owner).post(`/api/labs/${lab.labId}/invitations`, { email: lab.users.outsider.email, role: 'viewer' })
+    const unknown = await call(t, owner).post(`/api/labs/${lab.labId}/invitations`, { email: 'nobody-yet@elsewhere.example', role: 'viewer' })
+    expect([known.status, unknown.status]).toEqual([201, 201])
+    expect(Object.keys(known.body).sort()).toEqual(Object.keys(unknown.body).sort())
+    const strip = (m: { subject: string; text: string }, email: string) => ({ subject: m.subject, text: m.text.replace(email, 'X').replace(/invitations\/[\w-]+/, 'invitations/T') })
+    expect(strip(t.mailer.to(lab.users.outsider.email)[0], lab.users.outsider.email)).toEqual(strip(t.mailer.to('nobody-yet@elsewhere.example')[0], 'nobody-yet@elsewhere.example'))
+  })
+
   it('inviting a current member answers 409', async () => {
     const t = makeTestApp()
     const lab = await seedLab(t)
