@@ -57,7 +57,7 @@ function tauc(fn: string, E: Num, Eg: Num, B: Num, r: Num): Num {
 /**
  * Direct allowed absorption edge, α = √(B·(E − Eg)) / E above Eg, 0 below: alphaTauc with r = 1/2.
  *
- * - `E`: photon energy, J; `Eg`: direct gap, J; `B`: J/m² (so (αE)² = B·(E − Eg))
+ * - `E`: photon energy, J (> 0); `Eg`: direct gap, J (≥ 0); `B`: J/m² (≥ 0; so (αE)² = B·(E − Eg))
  * - result: α, 1/m
  *
  * Source: Pankove, Optical Processes in Semiconductors (1971), ch. 3 (α ∝ (hν − Eg)^(1/2)), written in Tauc form.
@@ -71,7 +71,7 @@ export function alphaDirect(E: Num, Eg: Num, B: Num): Num {
 /**
  * Indirect allowed absorption edge, α = (B·(E − Eg))² / E above Eg, 0 below: alphaTauc with r = 2.
  *
- * - `E`: photon energy, J; `Eg`: indirect gap, J; `B`: 1/(J·m^(1/2)) (so (αE)^(1/2) = B·(E − Eg))
+ * - `E`: photon energy, J (> 0); `Eg`: indirect gap, J (≥ 0); `B`: 1/(J·m^(1/2)) (≥ 0; so (αE)^(1/2) = B·(E − Eg))
  * - result: α, 1/m
  *
  * Source: Tauc et al., phys. stat. sol. 15, 627 (1966); Pankove (1971), ch. 3 (indirect transitions).

@@ -36,6 +36,7 @@ function sameLength(fn: string, names: [string, string], a: Float64Array, b: Flo
 /**
  * `grid(from, to, n)`: n equally spaced values from `from` to `to`, both included.
  * Units: from and to in the same unit (SI), result in that unit. Range: n a whole number, 2 ≤ n ≤ the element limit.
+ * Source: definition (from + i·(to − from)/(n − 1), the last point set to `to` exactly).
  * Example: grid(1, 2, 5) → [1, 1.25, 1.5, 1.75, 2].
  */
 export function grid(from: Num, to: Num, n: Num, maxElements: number): Float64Array {
@@ -52,7 +53,8 @@ export function grid(from: Num, to: Num, n: Num, maxElements: number): Float64Ar
 /**
  * `loggrid(from, to, n)`: n values from `from` to `to` with equal ratios between neighbours (both included).
  * Units as grid. Range: from and to of the same sign and non-zero; 2 ≤ n ≤ the element limit.
- * The values are 10^(log10|from| + i·step), so a grid over whole decades lands exactly on the powers of ten.
+ * Source: definition; the values are 10^(log10|from| + i·step), so a grid over whole decades lands exactly on the
+ * powers of ten.
  * Example: loggrid(1, 1000, 4) → [1, 10, 100, 1000]; loggrid(1*nm, 1000*nm, 4) shown in nm → [1, 10, 100, 1000].
  */
 export function loggrid(from: Num, to: Num, n: Num, maxElements: number): Float64Array {
@@ -70,12 +72,20 @@ export function loggrid(from: Num, to: Num, n: Num, maxElements: number): Float6
   return out
 }
 
-/** `len(a)`: number of elements; 1 for a single number. Example: len(grid(0, 1, 11)) → 11. */
+/**
+ * `len(a)`: number of elements; 1 for a single number.
+ * Units: any argument; the result is a dimensionless count. Range: any array. Source: definition.
+ * Example: len(grid(0, 1, 11)) → 11.
+ */
 export function len(a: Num): number {
   return typeof a === 'number' ? 1 : a.length
 }
 
-/** `sum(a)`: sum of all elements (NaN if any is NaN). Unit of a. Example: sum([1, 2, 3]) → 6. */
+/**
+ * `sum(a)`: sum of all elements (NaN if any is NaN); a single number is its own sum.
+ * Units: the result is in the unit of a. Range: any array (an empty one sums to 0). Source: definition.
+ * Example: sum([1, 2, 3]) → 6.
+ */
 export function sum(a: Num): number {
   if (typeof a === 'number') return a
   let s = 0
@@ -83,7 +93,11 @@ export function sum(a: Num): number {
   return s
 }
 
-/** `mean(a)`: arithmetic mean of the elements (NaN if any is NaN). Unit of a. Example: mean([1, 2, 6]) → 3. */
+/**
+ * `mean(a)`: arithmetic mean of the elements (NaN if any is NaN).
+ * Units: the result is in the unit of a. Range: a non-empty array or a number. Source: definition.
+ * Example: mean([1, 2, 6]) → 3.
+ */
 export function mean(a: Num): number {
   if (typeof a === 'number') return a
   if (a.length === 0) fail('mean', 'the array is empty')
@@ -92,13 +106,18 @@ export function mean(a: Num): number {
 
 /**
  * `min(a)`: smallest element of one array; `min(a, b, …)`: element-wise smallest of several arguments (broadcast).
- * NaN elements are ignored by the one-argument form. Unit of the arguments. Example: min([3, 1, 2]) → 1.
+ * NaN elements are ignored by the one-argument form; the several-argument form gives NaN where any argument is NaN.
+ * Units: those of the arguments (all alike). Range: a non-empty array, or arrays of one length and numbers.
+ * Source: definition. Example: min([3, 1, 2]) → 1.
  */
 export function min(args: Num[]): Num {
   return extreme('min', args, (x, y) => x < y)
 }
 
-/** `max(a)` / `max(a, b, …)`: as min, largest. Example: max([3, 1, 2]) → 3; max([1, 5], 2) → [2, 5]. */
+/**
+ * `max(a)` / `max(a, b, …)`: as min, largest. Units: those of the arguments (all alike). Range: as min.
+ * Source: definition. Example: max([3, 1, 2]) → 3; max([1, 5], 2) → [2, 5].
+ */
 export function max(args: Num[]): Num {
   return extreme('max', args, (x, y) => x > y)
 }
@@ -137,14 +156,20 @@ function extreme(fn: string, args: Num[], better: (x: number, y: number) => bool
   return out
 }
 
-/** `first(a)`: the first element. Example: first([4, 5, 6]) → 4. */
+/**
+ * `first(a)`: the first element. Units: those of a. Range: a non-empty array or a number. Source: definition.
+ * Example: first([4, 5, 6]) → 4.
+ */
 export function first(a: Num): number {
   if (typeof a === 'number') return a
   if (a.length === 0) fail('first', 'the array is empty')
   return a[0]
 }
 
-/** `last(a)`: the last element. Example: last([4, 5, 6]) → 6. */
+/**
+ * `last(a)`: the last element. Units: those of a. Range: a non-empty array or a number. Source: definition.
+ * Example: last([4, 5, 6]) → 6.
+ */
 export function last(a: Num): number {
   if (typeof a === 'number') return a
   if (a.length === 0) fail('last', 'the array is empty')
@@ -153,7 +178,9 @@ export function last(a: Num): number {
 
 /**
  * `at(a, i)`: element i of a, counting from 0; a negative i counts from the end (−1 is the last). i may be an array
- * of indices (the result then has one element per index). Example: at([4, 5, 6], 1) → 5; at([4, 5, 6], -1) → 6.
+ * of indices (the result then has one element per index): at(grid(a, b, n), 0) is a and at(grid(a, b, n), n − 1)
+ * is b. Units: those of a. Range: whole i with −len(a) ≤ i < len(a). Source: definition.
+ * Example: at([4, 5, 6], 0) → 4; at([4, 5, 6], 1) → 5; at([4, 5, 6], -1) → 6.
  */
 export function at(a: Num, i: Num): Num {
   const arr = typeof a === 'number' ? Float64Array.of(a) : a
@@ -171,7 +198,8 @@ export function at(a: Num, i: Num): Num {
 
 /**
  * `where(cond, a, b)`: element-wise choice, a where cond is true (non-zero), b elsewhere; scalars broadcast.
- * Example: where([1, 0, 1], 5, [7, 8, 9]) → [5, 8, 5].
+ * Units: a and b alike, the result in that unit; cond any (non-zero and not NaN is true). Range: arrays of one
+ * length, or numbers. Source: definition (element-wise selection). Example: where([1, 0, 1], 5, [7, 8, 9]) → [5, 8, 5].
  */
 export function where(cond: Num, a: Num, b: Num): Num {
   const n = [cond, a, b].reduce<number>((m, x) => {
@@ -190,7 +218,11 @@ export function where(cond: Num, a: Num, b: Num): Num {
   return out
 }
 
-/** `clip(x, lo, hi)`: x limited to [lo, hi], element-wise. Example: clip([-1, 0.5, 3], 0, 1) → [0, 0.5, 1]. */
+/**
+ * `clip(x, lo, hi)`: x limited to [lo, hi], element-wise (min(max(x, lo), hi)); scalars broadcast.
+ * Units: x, lo and hi alike; the result in that unit. Range: lo ≤ hi. Source: definition.
+ * Example: clip([-1, 0.5, 3], 0, 1) → [0, 0.5, 1].
+ */
 export function clip(x: Num, lo: Num, hi: Num): Num {
   return min([max([x, lo]), hi])
 }
@@ -198,7 +230,8 @@ export function clip(x: Num, lo: Num, hi: Num): Num {
 /**
  * `interpolate(xq, x, y)`: linear interpolation of the samples (x, y) at xq. x must be monotonic, increasing or
  * decreasing (photon energies of a wavelength grid decrease); outside the range of x the result is NaN (no
- * extrapolation). Units: xq and x alike; result in the unit of y.
+ * extrapolation). Units: xq and x alike; result in the unit of y. Range: x strictly monotonic, at least 2 points,
+ * as long as y. Source: piecewise-linear interpolation (e.g. Press et al., Numerical Recipes, 3rd ed., §3.1).
  * Example: interpolate(1.5, [1, 2], [10, 20]) → 15.
  */
 export function interpolate(xq: Num, x: Num, y: Num): Num {
@@ -235,8 +268,8 @@ export function interpolate(xq: Num, x: Num, y: Num): Num {
 
 /**
  * `integrate(y, x)`: trapezoid rule ∫y dx over the samples, in the order given (a decreasing x gives the negative).
- * Units: unit of y times unit of x. Source: the composite trapezoid rule (e.g. Press et al., Numerical Recipes,
- * 3rd ed., §4.1). Example: integrate([0, 1, 2], [0, 1, 2]) → 2.
+ * Units: unit of y times unit of x. Range: x an array, y an array as long or a number. Source: the composite
+ * trapezoid rule (e.g. Press et al., Numerical Recipes, 3rd ed., §4.1). Example: integrate([0, 1, 2], [0, 1, 2]) → 2.
  */
 export function integrate(y: Num, x: Num): number {
   const xs = array('integrate', 'x', x)
@@ -249,7 +282,8 @@ export function integrate(y: Num, x: Num): number {
 
 /**
  * `cumulative(y, x)`: running trapezoid integral, 0 at the first sample, the full integrate(y, x) at the last.
- * Units as integrate. Example: cumulative([1, 1, 1], [0, 1, 3]) → [0, 1, 3].
+ * Units as integrate. Range: x an array, y an array as long or a number. Source: the composite trapezoid rule
+ * (Press et al., Numerical Recipes, 3rd ed., §4.1), summed interval by interval. Example: cumulative([1, 1, 1], [0, 1, 3]) → [0, 1, 3].
  */
 export function cumulative(y: Num, x: Num): Float64Array {
   const xs = array('cumulative', 'x', x)
@@ -262,8 +296,9 @@ export function cumulative(y: Num, x: Num): Float64Array {
 
 /**
  * `slope(y, x)`: derivative dy/dx at each sample: second-order central differences for uneven spacing inside,
- * one-sided differences at the two ends (the scheme of Fornberg, Math. Comp. 51, 699 (1988), three-point stencil).
- * Units: unit of y over unit of x. Exact for quadratics inside. Example: slope([0, 1, 4, 9], [0, 1, 2, 3]) →
+ * one-sided differences at the two ends. Source: the three-point stencil of B. Fornberg, Math. Comp. 51, 699 (1988).
+ * Units: unit of y over unit of x. Range: x and y arrays of one length, at least 2 points, x without repeats. Exact
+ * for quadratics inside. Example: slope([0, 1, 4, 9], [0, 1, 2, 3]) →
  * [1, 2, 4, 5].
  */
 export function slope(y: Num, x: Num): Float64Array {
@@ -286,7 +321,8 @@ export function slope(y: Num, x: Num): Float64Array {
 /**
  * `crossing(x, y, level)`: the first x where y reaches `level`, interpolated linearly between the two samples that
  * straddle it; NaN when y never reaches it. Units: level in the unit of y; result in the unit of x.
- * Example: crossing([0, 1, 2], [0, 10, 20], 15) → 1.5.
+ * Range: x and y arrays of one length, level a finite number. Source: linear interpolation between the bracketing
+ * samples (definition). Example: crossing([0, 1, 2], [0, 10, 20], 15) → 1.5.
  */
 export function crossing(x: Num, y: Num, level: Num): number {
   const xs = array('crossing', 'x', x)
