@@ -63,6 +63,63 @@ describe('command-line evaluator', () => {
     expect(missing.stderr).toBe('no-such-sheet.penumbra.json: cannot read: no such file\n')
   })
 
+  it('evaluate gives fit energies in the fit\'s unit and sweep rows in each output\'s display unit', () => {
+    const sheet = JSON.parse(readFileSync(example, 'utf8'))
+    sheet.cells[5].unit = 'meV'
+    const r = evaluate(['-'], JSON.stringify(sheet))
+    expect(r.status).toBe(0)
+    const cells = JSON.parse(r.stdout).cells
+    expect(cells[5].unit).toBe('meV')
+    // DESIGN §5 sheet: the window 1.55–1.9 eV lies on the Tauc branch of alpha_edge, whose gap is Eg = 1.48 eV
+    expect(Math.abs(cells[5].value.Eg - 1480)).toBeLessThan(1e-6)
+    // rows of A1 (shown in %) at d = 100 nm: 100·(1 − exp(−α·d)) from the α the same run printed in 1/cm
+    const alpha = cells[3].value as number[]
+    const row = cells[6].value.outputs.A1[0] as number[]
+    expect(cells[6].value.parameter[0]).toBe(100)
+    alpha.forEach((a, i) => {
+      const expected = 100 * -Math.expm1(-a * 100 * 100e-9)
+      expect(Math.abs(row[i] - expected)).toBeLessThanOrEqual(1e-9 * Math.max(expected, 1e-12))
+    })
+  })
+
+  it('evaluate reports a blocked cell with the result shape of DESIGN §5 and keeps the other cells', () => {
+    const sheet = {
+      format: 'penumbra.sheet', version: 1, title: 'blocked',
+      cells: [
+        { kind: 'formula', name: 'u', source: '1 +' },
+        { kind: 'formula', name: 'v', source: 'u * 2' },
+        { kind: 'parameter', name: 'w', value: 3, unit: 'nm' },
+      ],
+    }
+    const cells = JSON.parse(evaluate(['-'], JSON.stringify(sheet)).stdout).cells
+    expect(cells[1]).toEqual({ index: 1, id: 'cell-2', name: 'v', kind: 'formula', status: 'blocked', error: 'blocked: input u failed' })
+    expect(cells[2]).toEqual({
+      index: 2, id: 'cell-3', name: 'w', kind: 'parameter', status: 'ok', value: 3, unit: 'nm', dimension: 'length', warnings: [],
+    })
+  })
+
+  it('evaluate lists every problem of an invalid file on its own line, by JSON path', () => {
+    const sheet = {
+      version: 1, title: 'x',
+      cells: [{ kind: 'parameter', name: 'a', value: '1' }, { kind: 'fit', name: 'f', x: 'a', y: 'a' }, { kind: 'formula', name: 'b' }],
+    }
+    const r = evaluate(['-'], JSON.stringify(sheet))
+    expect(r.status).toBe(2)
+    expect(r.stderr.trim().split('\n')).toEqual([
+      'standard input: not a valid Penumbra sheet file:',
+      'format: required',
+      'cells[0].value: must be a number, not a string',
+      'cells[1].method: required',
+      'cells[2].source: required',
+    ])
+  })
+
+  it('evaluate exits 2 when the path is a directory', () => {
+    const r = evaluate([root])
+    expect(r.status).toBe(2)
+    expect(r.stderr).toBe(`${root}: cannot read: it is a directory\n`)
+  })
+
   it('evaluate without a file prints the usage and exits 2', () => {
     const r = evaluate([])
     expect(r.status).toBe(2)
