@@ -12,7 +12,7 @@ import { badRequest, HttpError } from '../errors'
 import { sharedEvaluator, type SheetEvaluator } from '../services/evaluation'
 
 /** Paths the app-wide JSON parser leaves alone (this route reads its body as text). */
-export const EVALUATE_PATH = /^\/api\/evaluate\/?$/
+export const EVALUATE_PATH = /^\/api\/evaluate\/?$/i
 
 function formatSeconds(ms: number): string {
   return ms >= 1000 ? `${+(ms / 1000).toFixed(1)} s` : `${ms} ms`

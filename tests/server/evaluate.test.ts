@@ -67,6 +67,10 @@ describe('POST /api/evaluate', () => {
     const next = await call(t, lab.users.editor.cookie).post('/api/evaluate', { format: 'penumbra.sheet', version: 1, title: 'Quick', cells: [{ kind: 'parameter', name: 'd', value: 850, unit: 'nm' }] })
     expect(next.status).toBe(200)
     expect(next.body.cells[0]).toMatchObject({ name: 'd', status: 'ok', value: 850, unit: 'nm' })
+    // Express matches paths without regard to case or a trailing slash; so does the body reader
+    const shouted = await call(t, lab.users.editor.cookie).post('/API/Evaluate/', { format: 'penumbra.sheet', version: 1, title: 'Loud', cells: [] })
+    expect(shouted.status).toBe(200)
+    expect(shouted.body).toEqual({ title: 'Loud', cells: [], engine: expect.any(String) })
   }, 30_000)
 
   it('answers 413 for a sheet file over its own size limit, before any evaluation', async () => {
