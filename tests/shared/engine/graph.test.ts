@@ -92,6 +92,44 @@ describe('SheetEngine.update', () => {
     expect(engine.resultOf(id('other'))?.value).toBe(6)
   })
 
+  it('update touches only the edited branch of a sheet of independent branches, and equals a full re-evaluation', () => {
+    // three branches a → a2 → a3, b → b2 → b3, c → c2, joined only by j = a3 + b3; a fit and a sweep hang off branch b
+    const sheet = [
+      { id: 'a', kind: 'parameter', name: 'a', value: 1, unit: 'nm' },
+      { id: 'b', kind: 'parameter', name: 'b', value: 1.5, unit: 'eV' },
+      { id: 'c', kind: 'parameter', name: 'c', value: 3 },
+      { id: 'a2', kind: 'formula', name: 'a2', source: 'grid(a, 10*a, 5)', unit: 'nm' },
+      { id: 'b2', kind: 'formula', name: 'b2', source: 'grid(1*eV, 3*eV, 201)', unit: 'eV' },
+      { id: 'b3', kind: 'formula', name: 'b3', source: 'alpha_direct(b2, b, 4e9*eV/cm^2)', unit: '1/cm' },
+      { id: 'a3', kind: 'formula', name: 'a3', source: 'sum(a2)/nm' },
+      { id: 'c2', kind: 'formula', name: 'c2', source: 'c^2' },
+      { id: 'j', kind: 'formula', name: 'j', source: 'a3 + max(b3)*cm' },
+      { id: 'fit', kind: 'fit', name: 'fit', method: 'tauc', x: 'b2', y: 'b3', r: 0.5, from: 2.2, to: 2.8 },
+      { id: 'sw', kind: 'sweep', name: 'sw', parameter: 'c', from: 1, to: 2, steps: 3, outputs: ['c2'] },
+    ] as SheetCell[]
+    const engine = new SheetEngine()
+    engine.load(sheet, 'branches')
+    const current = sheet.map((c) => ({ ...c })) as SheetCell[]
+    const edit = (cellId: string, change: Record<string, unknown>): string[] => {
+      const i = current.findIndex((c) => c.id === cellId)
+      current[i] = { ...current[i], ...change } as SheetCell
+      return engine.update(cellId, current[i])
+    }
+    const full = (): unknown => new SheetEngine().load(current, 'branches').cells
+    expect(edit('c', { value: 4 })).toEqual(['c', 'c2'])
+    expect(engine.results().cells).toEqual(full())
+    expect(edit('a', { value: 2 })).toEqual(['a', 'a2', 'a3', 'j'])
+    expect(engine.results().cells).toEqual(full())
+    expect(edit('b', { value: 1.6 })).toEqual(['b', 'b3', 'j', 'fit'])
+    expect(engine.results().cells).toEqual(full())
+    expect(edit('b2', { source: 'grid(1.1*eV, 3*eV, 201)' })).toEqual(['b2', 'b3', 'j', 'fit'])
+    expect(engine.results().cells).toEqual(full())
+    expect(edit('c2', { source: 'c^3' })).toEqual(['c2', 'sw'])
+    expect(engine.results().cells).toEqual(full())
+    expect(edit('a3', { source: 'sum(a2)/nm + c' }).sort()).toEqual(['a3', 'j'])
+    expect(engine.results().cells).toEqual(full())
+  })
+
   it('update of a formula that starts reading another cell rewires the graph', () => {
     const { engine, cells, id } = engineWith(base)
     engine.update(id('other'), { ...cells[4], source: 'k * c / nm' } as SheetCell)
