@@ -10,6 +10,7 @@ import { mapToCell, type CellMap } from '../../shared/doc/sheetDoc'
 import type { SheetCell } from '../../shared/schema/sheet'
 import type { FromWorker, ToWorker } from '@/workers/protocol'
 import { dependentsOf } from '@/components/sheet/references'
+import { unpackResults } from '@/workers/pack'
 import type { useSheetStore } from '@/stores/sheet'
 
 type SheetStore = ReturnType<typeof useSheetStore>
@@ -79,7 +80,7 @@ export function useEvaluator(cells: Y.Array<CellMap>, store: SheetStore, title: 
         break
       case 'results': {
         restarts = 0
-        store.applyResults(message.results, message.complete)
+        store.applyResults(unpackResults(message.results), message.complete)
         for (const id of message.recomputed) store.setProgress(id, null)
         const cleared: string[] = []
         for (const [id, until] of staleUntil) {

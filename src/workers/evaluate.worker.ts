@@ -9,6 +9,7 @@ import type { SheetCell } from '../../shared/schema/sheet'
 import type { CellResult } from '../../shared/schema/result'
 import type { FromWorker, ToWorker } from './protocol'
 import { EngineMirror } from './mirror'
+import { packResults } from './pack'
 
 const scope = self as unknown as DedicatedWorkerGlobalScope
 
@@ -19,6 +20,12 @@ let currentSeq = 0
 const lastProgress = new Map<string, number>()
 
 function post(message: FromWorker): void {
+  if (message.type === 'results') {
+    // long arrays travel as transferred buffers (see pack.ts)
+    const { results, transfer } = packResults(message.results)
+    scope.postMessage({ ...message, results }, transfer)
+    return
+  }
   scope.postMessage(message)
 }
 

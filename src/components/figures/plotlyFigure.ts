@@ -67,7 +67,29 @@ function range(r: [number, number] | undefined, log: boolean): [number, number] 
   return [Math.log10(r[0]), Math.log10(r[1])]
 }
 
-function axis(theme: Theme, title: string, scale: 'linear' | 'log', r: [number, number] | undefined) {
+/**
+ * How tick numbers are written: plain (1000, 2000, 0.25) on a linear axis whose numbers are of everyday size, powers
+ * of ten otherwise (2×10¹⁵, and 10, 10², 10³ on log axes). Plotly's power format on a linear 0–10 000 axis would write
+ * a shared exponent into every tick ("0.1×10⁴"), which reads badly.
+ */
+export function tickExponentFormat(scale: 'linear' | 'log', largest: number): 'none' | 'power' {
+  if (scale === 'log') return 'power'
+  if (!(largest > 0) || !Number.isFinite(largest)) return 'none'
+  return largest >= 1e5 || largest < 1e-3 ? 'power' : 'none'
+}
+
+/** The largest finite |value| in some lists of numbers (0 when there is none). */
+function largestMagnitude(lists: readonly (readonly number[])[]): number {
+  let m = 0
+  for (const list of lists)
+    for (const v of list) {
+      const a = Math.abs(v)
+      if (Number.isFinite(a) && a > m) m = a
+    }
+  return m
+}
+
+function axis(theme: Theme, title: string, scale: 'linear' | 'log', r: [number, number] | undefined, largest = 0) {
   return {
     title: { text: title, font: { size: 12.5, color: theme.ink }, standoff: 8 },
     type: scale,
@@ -85,7 +107,7 @@ function axis(theme: Theme, title: string, scale: 'linear' | 'log', r: [number, 
     gridcolor: theme.line,
     gridwidth: 1,
     zeroline: false,
-    exponentformat: 'power' as const,
+    exponentformat: tickExponentFormat(scale, r ? Math.max(Math.abs(r[0]), Math.abs(r[1])) : largest),
     automargin: true,
   }
 }
@@ -173,7 +195,7 @@ export function figureToPlotly(model: FigureModel, theme: Theme = DEFAULT_THEME,
       y: gaps(m.y),
       z: m.z.map(gaps),
       colorscale: rampScale(),
-      colorbar: colorbarSpec(theme, model.sweep.zTitle, false, 0, 0),
+      colorbar: colorbarSpec(theme, model.sweep.zTitle, false, 0, largestMagnitude(m.z)),
       hovertemplate: `%{x:.5~g}${xu ? ` ${xu}` : ''}<br>%{y:.5~g}${yu ? ` ${yu}` : ''}<br><b>%{z:.4~g}</b>${model.sweep.zUnit ? ` ${escapeHtml(prettyUnit(model.sweep.zUnit))}` : ''}<extra></extra>`,
     })
   }
@@ -322,8 +344,8 @@ export function figureToPlotly(model: FigureModel, theme: Theme = DEFAULT_THEME,
       ? { text: escapeHtml(title), x: 0.01, xanchor: 'left', yref: 'container', y: 1, yanchor: 'top', pad: { t: 12 }, font: { size: 14, color: theme.night } }
       : undefined,
     margin: { l: 64, r: colorbarTitle || model.sweep?.view === 'map' ? 24 : 18, t: (title ? 40 : 12) + (legendShown ? 24 * legendLines(data, opts.width) : 0), b: 50, pad: 0 },
-    xaxis: axis(theme, model.x.title, model.x.scale, model.x.range),
-    yaxis: axis(theme, model.y.title, model.y.scale, model.y.range),
+    xaxis: axis(theme, model.x.title, model.x.scale, model.x.range, largestMagnitude(axisValues(model, 'x'))),
+    yaxis: axis(theme, model.y.title, model.y.scale, model.y.range, largestMagnitude(axisValues(model, 'y'))),
     showlegend: legendShown,
     legend: {
       orientation: 'h',
@@ -371,6 +393,14 @@ function legendLines(data: Data[], width = 0): number {
 
 const MARK_DASHES = ['dash', 'dot', 'dashdot', 'longdash'] as const
 
+/** The numbers drawn along one axis: series, sweep curves, and a map's columns (x) or parameter rows (y). */
+function axisValues(model: FigureModel, which: 'x' | 'y'): number[][] {
+  const out: number[][] = model.series.map((s) => s[which])
+  if (model.sweep?.view === 'curves') for (const c of model.sweep.family.curves) out.push(c[which])
+  if (model.sweep?.view === 'map') out.push(which === 'x' ? model.sweep.map.x : model.sweep.map.y)
+  return out
+}
+
 /** The x extent of everything drawn (series and sweeps), or null when nothing finite is drawn. */
 function dataExtent(model: FigureModel): [number, number] | null {
   let lo = Infinity
@@ -395,6 +425,7 @@ function colorbarSpec(theme: Theme, title: string, log: boolean, lo: number, hi:
     outlinecolor: theme.night,
     outlinewidth: 1,
     tickfont: { family: theme.fontMono, size: 10.5, color: theme.ink },
+    exponentformat: tickExponentFormat('linear', Math.max(Math.abs(lo), Math.abs(hi))),
   }
   if (log && lo > 0 && hi > 0) {
     const ticks: number[] = []
