@@ -1,7 +1,7 @@
 /** Request validation with the shared zod schemas: a failure is a 400 listing every problem by path. */
 import type { ZodType } from 'zod'
 import { badRequest } from '../errors'
-import { formatPath } from '../../shared/schema/sheet'
+import { toSchemaIssues } from '../../shared/schema/sheet'
 import type { ApiIssue } from '../../shared/schema/api'
 
 export function issuesSummary(prefix: string, issues: ApiIssue[]): string {
@@ -14,8 +14,10 @@ export function issuesSummary(prefix: string, issues: ApiIssue[]): string {
 
 /** Parses a value with a schema or throws a 400 whose `issues` name each field. */
 export function parse<T>(schema: ZodType<T>, value: unknown, prefix = 'The request was not accepted'): T {
-  const parsed = schema.safeParse(value ?? {})
+  const input = value ?? {}
+  const parsed = schema.safeParse(input)
   if (parsed.success) return parsed.data
-  const issues = parsed.error.issues.map((i) => ({ path: formatPath(i.path), message: i.message }))
+  // the sheet schema's wording (and its "required" / "must be a string, not a number" from the value given)
+  const issues = toSchemaIssues(parsed.error, input)
   throw badRequest(issuesSummary(prefix, issues), issues)
 }

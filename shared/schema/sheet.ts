@@ -256,6 +256,10 @@ function article(type: string): string {
   return /^[aeiou]/.test(type) ? `an ${type}` : `a ${type}`
 }
 
+function typeName(value: unknown): string {
+  return value === null ? 'null' : Array.isArray(value) ? 'an array' : article(typeof value)
+}
+
 function valueAt(input: unknown, path: readonly PropertyKey[]): unknown {
   let at: unknown = input
   for (const key of path) {
@@ -271,6 +275,9 @@ function describe(issue: z.core.$ZodIssue, path: readonly PropertyKey[], input?:
   if (issue.code === 'invalid_type' && /received undefined/.test(issue.message)) message = 'required'
   // a missing field of a literal or enum type (format, version, method, scale …) is missing, not of the wrong value
   else if (absent && (issue.code === 'invalid_value' || issue.code === 'invalid_type')) message = 'required'
+  // a schema's own message ("required") also fires for a value of the wrong type: say what was wrong instead
+  else if (issue.code === 'invalid_type' && input !== undefined && path.length > 0 && !ZOD_DEFAULT.test(issue.message))
+    message = `must be ${article(issue.expected)}, not ${typeName(valueAt(input, path))}`
   else if (issue.code === 'invalid_union' && 'note' in issue && issue.note === 'No matching discriminator')
     message =
       input !== undefined && valueAt(input, path) === undefined

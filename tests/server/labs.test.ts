@@ -16,6 +16,14 @@ describe('POST /api/labs', () => {
     expect((await call(t, other.cookie).get('/api/labs')).body.labs).toEqual([])
   })
 
+  it('answers 400 saying what is wrong with a name of the wrong type', async () => {
+    const t = makeTestApp()
+    const u = await createTestUser(t)
+    const res = await call(t, u.cookie).post('/api/labs', { name: 42 })
+    expect(res.status).toBe(400)
+    expect(res.body).toEqual({ error: 'The request was not accepted: name must be a string, not a number.', issues: [{ path: 'name', message: 'must be a string, not a number' }] })
+  })
+
   it('answers 400 with the field for an empty name', async () => {
     const t = makeTestApp()
     const u = await createTestUser(t)
