@@ -7,7 +7,7 @@
  * Option `--pretty` indents the JSON.
  */
 import { readFileSync } from 'node:fs'
-import { evaluateSheet } from '../../shared/engine/index'
+import { evaluateSheet, type EvaluationResult } from '../../shared/engine/index'
 import { parseSheetFileText } from '../../shared/schema/sheet'
 
 const USAGE = 'usage: npm run --silent evaluate -- [--pretty] <file.penumbra.json | ->'
@@ -41,8 +41,36 @@ export function main(argv: readonly string[]): number {
     return 2
   }
   const result = evaluateSheet(parsed.value)
-  process.stdout.write(`${JSON.stringify(result, null, pretty ? 2 : undefined)}\n`)
+  writeJson(result, pretty)
   return 0
+}
+
+/**
+ * Writes the result object as JSON, one cell at a time: the text of a large sheet's whole result can be longer than
+ * one JavaScript string may be. The output is the same text JSON.stringify would give (indented with `--pretty`).
+ */
+function writeJson(result: EvaluationResult, pretty: boolean): void {
+  const indent = pretty ? 2 : undefined
+  const nl = pretty ? '\n' : ''
+  const pad = pretty ? '  ' : ''
+  const entries = Object.entries(result).filter(([, v]) => v !== undefined)
+  process.stdout.write(`{${nl}`)
+  entries.forEach(([key, value], k) => {
+    const sep = k < entries.length - 1 ? ',' : ''
+    const name = `${pad}${JSON.stringify(key)}:${pretty ? ' ' : ''}`
+    if (key !== 'cells' || !Array.isArray(value) || value.length === 0) {
+      const text = JSON.stringify(value, null, indent).replace(/\n/g, `\n${pad}`)
+      process.stdout.write(`${name}${text}${sep}${nl}`)
+      return
+    }
+    process.stdout.write(`${name}[${nl}`)
+    value.forEach((cell, i) => {
+      const text = JSON.stringify(cell, null, indent).replace(/\n/g, `\n${pad}${pad}`)
+      process.stdout.write(`${pad}${pad}${text}${i < value.length - 1 ? ',' : ''}${nl}`)
+    })
+    process.stdout.write(`${pad}]${sep}${nl}`)
+  })
+  process.stdout.write('}\n')
 }
 
 // a reader that stops early (`| head`) is not an error of the evaluator

@@ -7,16 +7,16 @@ import type { CellResult, EvaluationResult } from '../schema/result'
 import type { FitCell, SheetCell, SweepCell } from '../schema/sheet'
 import {
   evaluateFormula, evaluateParameter, evaluateSpectrum, formulaValue, prepareCell,
-  type CellState, type Env, type PreparedCell,
+  type CellState, type Env, type PreparedCell, type SweepTable,
 } from './cells'
 import { blockedMessage, CellError, cycleMessage, messageOf, unknownNamesMessage } from './errors'
 import { evaluateFit } from './fits'
 import { builtinFunction } from './functions/registry'
-import { Budget, DEFAULT_MAX_ELEMENTS, DEFAULT_TIME_BUDGET_MS } from './limits'
+import { Budget, DEFAULT_MAX_ELEMENTS, DEFAULT_MAX_SHEET_NUMBERS, DEFAULT_TIME_BUDGET_MS } from './limits'
 import { Graph } from './order'
 import { toCellJson, type CellJson } from './results'
 import { evaluateSweep } from './sweeps'
-import type { Value } from './values'
+import { RecordValue, type Value } from './values'
 
 export const ENGINE_VERSION = '1.0.0'
 
@@ -25,6 +25,8 @@ export interface EngineOptions {
   timeBudgetMs?: number
   /** Largest array one operation may produce. Default 1,000,000. */
   maxElements?: number
+  /** Most numbers the whole sheet may hold in its cells' values and tables. Default 10,000,000. */
+  maxSheetNumbers?: number
   /** Progress of long cells (sweeps, model fits), fraction 0–1. */
   onProgress?: (cellId: string, fraction: number) => void
 }
@@ -39,6 +41,9 @@ export class SheetEngine {
   private graph = new Graph([])
   private title = ''
   private readonly budget: Budget
+  /** Numbers each cell's state holds, and their sum: the sheet-wide memory limit. */
+  private readonly sizes = new Map<string, number>()
+  private held = 0
 
   constructor(private readonly options: EngineOptions = {}) {
     this.budget = new Budget(options.timeBudgetMs ?? DEFAULT_TIME_BUDGET_MS, options.maxElements ?? DEFAULT_MAX_ELEMENTS)
@@ -52,6 +57,8 @@ export class SheetEngine {
     for (const p of this.cells) this.byId.set(p.id, p)
     this.states.clear()
     this.json.clear()
+    this.sizes.clear()
+    this.held = 0
     this.graph = new Graph(this.cells)
     this.evaluate(this.graph.order)
     return this.results()
@@ -66,6 +73,8 @@ export class SheetEngine {
       this.byId.delete(cellId)
       this.states.delete(cellId)
       this.json.delete(cellId)
+      this.held -= this.sizes.get(cellId) ?? 0
+      this.sizes.delete(cellId)
       return this.rewire([])
     }
     const next = prepareCell({ ...cell, id: cellId } as SheetCell)
@@ -154,7 +163,22 @@ export class SheetEngine {
     for (const id of ids) {
       const p = this.byId.get(id)
       if (!p) continue
-      this.states.set(id, this.evaluateOne(p))
+      let state = this.evaluateOne(p)
+      let size = numbersIn(state)
+      const before = this.sizes.get(id) ?? 0
+      const limit = this.options.maxSheetNumbers ?? DEFAULT_MAX_SHEET_NUMBERS
+      if (size > 0 && this.held - before + size > limit) {
+        // many large cells together would exhaust the memory of the page, the server or the command line
+        const fmt = (n: number): string => n.toLocaleString('en-US')
+        state = {
+          status: 'error', dim: null, warnings: [],
+          error: `with this cell's ${fmt(size)} numbers the sheet would hold ${fmt(this.held - before + size)}; the limit for one sheet is ${fmt(limit)} (use shorter grids or fewer sweep steps)`,
+        }
+        size = 0
+      }
+      this.held += size - before
+      this.sizes.set(id, size)
+      this.states.set(id, state)
       this.json.delete(id)
     }
   }
@@ -249,6 +273,27 @@ export class SheetEngine {
       }
     }
   }
+}
+
+/** Numbers a cell's state holds: its value's elements, a record's fields, a sweep's table. */
+function numbersIn(s: CellState): number {
+  const count = (v: Value | undefined): number => {
+    if (v === undefined) return 0
+    if (typeof v === 'number') return 1
+    if (v instanceof RecordValue) {
+      let n = 0
+      for (const f of v.fields.values()) n += typeof f.value === 'number' ? 1 : f.value.length
+      return n
+    }
+    return v.length
+  }
+  let n = count(s.value)
+  const shown = s.shown as SweepTable | undefined
+  if (shown && Array.isArray(shown.parameter) && shown.outputs) {
+    n += shown.parameter.length
+    for (const rows of Object.values(shown.outputs)) for (const r of rows) n += typeof r === 'number' ? 1 : r.length
+  }
+  return n
 }
 
 function sameWiring(a: PreparedCell, b: PreparedCell): boolean {

@@ -6,6 +6,8 @@ import { CellError } from './errors'
 
 export const DEFAULT_MAX_ELEMENTS = 1_000_000
 export const DEFAULT_TIME_BUDGET_MS = 3000
+/** Most numbers one sheet may hold across its cells (80 MB of doubles; its JSON result stays printable). */
+export const DEFAULT_MAX_SHEET_NUMBERS = 10_000_000
 /** Longest formula source accepted, characters. */
 export const MAX_FORMULA_LENGTH = 5000
 /** Largest syntax tree accepted, nodes (bounds compile and evaluation recursion). */

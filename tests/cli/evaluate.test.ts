@@ -8,7 +8,7 @@ const example = join(root, 'examples/design-example.penumbra.json')
 
 function evaluate(args: string[], input?: string): { status: number | null; stdout: string; stderr: string } {
   const r = spawnSync(process.execPath, ['--import', 'tsx', 'server/cli/evaluate.ts', ...args], {
-    cwd: root, input, encoding: 'utf8', timeout: 60000,
+    cwd: root, input, encoding: 'utf8', timeout: 110000, maxBuffer: 1 << 30,
   })
   return { status: r.status, stdout: r.stdout, stderr: r.stderr }
 }
@@ -119,6 +119,22 @@ describe('command-line evaluator', () => {
     expect(r.status).toBe(2)
     expect(r.stderr).toBe(`${root}: cannot read: it is a directory\n`)
   })
+
+  it('evaluate --pretty prints the same result object, indented', () => {
+    const plain = evaluate([example])
+    const pretty = evaluate(['--pretty', example])
+    expect(pretty.status).toBe(0)
+    expect(pretty.stdout).toBe(`${JSON.stringify(JSON.parse(plain.stdout), null, 2)}\n`)
+  })
+
+  it('evaluate prints a sheet at the size limit (ten million numbers) as valid JSON', () => {
+    const cells = Array.from({ length: 11 }, (_, i) => ({ kind: 'formula', name: `g${i}`, source: 'grid(0, 1, 1000000)' }))
+    const r = evaluate(['-'], JSON.stringify({ format: 'penumbra.sheet', version: 1, title: 'large', cells }))
+    expect(r.status).toBe(0)
+    const out = JSON.parse(r.stdout)
+    expect(out.cells[9].value).toHaveLength(1000000)
+    expect(out.cells[10].status).toBe('error')
+  }, 120000)
 
   it('evaluate without a file prints the usage and exits 2', () => {
     const r = evaluate([])

@@ -1,4 +1,6 @@
 import { describe, expect, it } from 'vitest'
+import { SheetEngine } from '../../../shared/engine/index'
+import type { SheetCell } from '../../../shared/schema/sheet'
 import { formula, pick, run } from './helpers'
 import { MAX_FORMULA_LENGTH } from '../../../shared/engine/limits'
 
@@ -42,6 +44,30 @@ describe('evaluation limits', () => {
       { kind: 'sweep', name: 'sw', parameter: 'p', from: 1, to: 2, steps: 10000, outputs: ['y'] },
     ])
     expect(pick(res, 'sw').error).toBe('the sweep table would hold 1,000,000,000 numbers; the limit is 5,000,000 (use fewer steps or shorter arrays)')
+  })
+
+  it('a cell that would take the whole sheet past its limit of numbers is an error; the cells before it stay', () => {
+    const cells = [
+      { id: 'a', kind: 'formula', name: 'a', source: 'grid(0, 1, 400)' },
+      { id: 'b', kind: 'formula', name: 'b', source: 'grid(0, 1, 400)' },
+      { id: 'c', kind: 'formula', name: 'c', source: 'grid(0, 1, 400)' },
+      { id: 'd', kind: 'formula', name: 'd', source: 'sum(a)' },
+    ] as SheetCell[]
+    const engine = new SheetEngine({ maxSheetNumbers: 1000 })
+    const res = engine.load(cells)
+    expect(res.cells.map((c) => c.status)).toEqual(['ok', 'ok', 'error', 'ok'])
+    expect(res.cells[2].error).toBe("with this cell's 400 numbers the sheet would hold 1,200; the limit for one sheet is 1,000 (use shorter grids or fewer sweep steps)")
+    // removing a large cell frees its share for the others
+    engine.update('b', null)
+    engine.update('c', cells[2])
+    expect(engine.resultOf('c')?.status).toBe('ok')
+  })
+
+  it('of twelve formulas of a million numbers each, the eleventh and twelfth stop at the default sheet limit of 10,000,000', () => {
+    const cells = Array.from({ length: 12 }, (_, i) => ({ kind: 'formula', name: `g${i}`, source: 'grid(0, 1, 1000000)' }))
+    const res = run(cells)
+    expect(res.cells.filter((c) => c.status === 'ok')).toHaveLength(10)
+    expect(res.cells[10].error).toMatch(/the limit for one sheet is 10,000,000/)
   })
 
   it('a cell that runs past its time budget is stopped with an error; the rest of the sheet still evaluates', () => {
