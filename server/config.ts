@@ -33,8 +33,11 @@ export interface AppConfig {
   }
   /** Largest JSON body or uploaded file, bytes. */
   maxBodyBytes: number
-  /** POST /api/evaluate: the largest sheet file it takes, bytes, and the wall-clock budget for the whole sheet, ms. */
-  evaluate: { maxBytes: number; budgetMs: number }
+  /**
+   * POST /api/evaluate: the largest sheet file it takes and the largest result it sends, bytes, and the wall-clock
+   * budget for the whole sheet, ms.
+   */
+  evaluate: { maxBytes: number; maxResultBytes: number; budgetMs: number }
   /** Sender of outgoing mail. */
   mailFrom: string
   /** argon2id cost (OWASP's minimum recommendation by default: 19 MiB, 2 passes). */
@@ -58,7 +61,7 @@ export function defaultConfig(overrides: Partial<AppConfig> = {}): AppConfig {
     },
     ttl: { invitationMs: 7 * DAY, resetMs: 60 * MINUTE, signupMs: DAY, sessionSeconds: 7 * 24 * 3600 },
     maxBodyBytes: 10 * 1024 * 1024,
-    evaluate: { maxBytes: 5 * 1024 * 1024, budgetMs: 10_000 },
+    evaluate: { maxBytes: 5 * 1024 * 1024, maxResultBytes: 64 * 1024 * 1024, budgetMs: 10_000 },
     mailFrom: 'Penumbra <no-reply@penumbra.localhost>',
     argon2: { memoryCost: 19456, timeCost: 2 },
     ...overrides,

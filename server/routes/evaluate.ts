@@ -19,7 +19,7 @@ function formatSeconds(ms: number): string {
 }
 
 export function evaluateRoutes(config: AppConfig, evaluator: () => SheetEvaluator = sharedEvaluator): Router {
-  const { maxBytes, budgetMs } = config.evaluate
+  const { maxBytes, budgetMs, maxResultBytes } = config.evaluate
   const text = express.text({ type: () => true, limit: maxBytes })
   const readBody: RequestHandler = (req, res, next) => {
     text(req, res, (err?: unknown) => {
@@ -35,7 +35,12 @@ export function evaluateRoutes(config: AppConfig, evaluator: () => SheetEvaluato
     if (body.trim() === '') throw badRequest('Send a sheet file as the request body.', [{ path: '', message: 'required' }])
     const outcome = await evaluator().evaluate(body, budgetMs)
     if (outcome.ok) {
-      res.type('application/json').send(outcome.json)
+      const { json } = outcome
+      if (json.byteLength > maxResultBytes)
+        throw new HttpError(422, `The sheet's results come to ${sizeLabel(json.byteLength)}, more than POST /api/evaluate sends (${sizeLabel(maxResultBytes)}). Evaluate it with the command-line evaluator (npm run evaluate) instead.`)
+      // written as is: res.send would copy the body and hash it for an ETag on the main thread
+      res.status(200).type('application/json').set('Content-Length', String(json.byteLength))
+      res.end(Buffer.from(json.buffer, json.byteOffset, json.byteLength))
       return
     }
     switch (outcome.reason) {

@@ -14,12 +14,13 @@ export interface WorkerRequest {
 
 export type WorkerReply =
   | { id: number; kind: 'ready' }
-  | { id: number; kind: 'result'; json: string }
+  /** The result object's JSON, UTF-8, exactly as the command-line evaluator prints it (without its newline). */
+  | { id: number; kind: 'result'; bytes: Uint8Array }
   | { id: number; kind: 'invalid'; issues: SchemaIssue[] }
   | { id: number; kind: 'failed'; message: string }
 
 export type EvaluationOutcome =
-  | { ok: true; json: string }
+  | { ok: true; json: Uint8Array }
   | { ok: false; reason: 'invalid'; issues: SchemaIssue[] }
   /** The whole sheet took longer than its budget. */
   | { ok: false; reason: 'timeout'; budgetMs: number }
@@ -113,7 +114,7 @@ class Slot {
         if (reply.kind === 'ready') return resolve()
         const job = this.job
         if (!job || reply.id !== job.id) return
-        if (reply.kind === 'result') this.finish(job, { ok: true, json: reply.json })
+        if (reply.kind === 'result') this.finish(job, { ok: true, json: reply.bytes })
         else if (reply.kind === 'invalid') this.finish(job, { ok: false, reason: 'invalid', issues: reply.issues })
         else this.finish(job, { ok: false, reason: 'failed', message: reply.message })
       })

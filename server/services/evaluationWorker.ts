@@ -11,13 +11,19 @@ import type { WorkerReply, WorkerRequest } from './evaluation'
 if (!parentPort) throw new Error('evaluationWorker.ts runs only as a worker thread')
 const port = parentPort
 
+const encoder = new TextEncoder()
+
 port.on('message', (request: WorkerRequest) => {
   let reply: WorkerReply
   try {
     const parsed = parseSheetFileText(request.text)
-    reply = parsed.ok
-      ? { id: request.id, kind: 'result', json: JSON.stringify(evaluateSheet(parsed.value)) }
-      : { id: request.id, kind: 'invalid', issues: parsed.issues }
+    if (parsed.ok) {
+      // encoded here and handed over without a copy, so the main thread does no work proportional to the result
+      const bytes = encoder.encode(JSON.stringify(evaluateSheet(parsed.value)))
+      port.postMessage({ id: request.id, kind: 'result', bytes } satisfies WorkerReply, [bytes.buffer])
+      return
+    }
+    reply = { id: request.id, kind: 'invalid', issues: parsed.issues }
   } catch (err) {
     // the engine turns every cell failure into a value; this is a bug or a resource limit
     reply = { id: request.id, kind: 'failed', message: err instanceof Error ? err.message : String(err) }

@@ -284,7 +284,8 @@ export type RenameSheetBody = z.infer<typeof renameSheetBody>
  * (shared/schema/result.ts), byte for byte what the command-line evaluator prints. It runs on a worker thread with a
  * budget for the whole sheet (10 s by default, besides the engine's own budget per cell). Errors: 400 with `issues`
  * for malformed JSON or a file with problems; 413 for a file over the evaluate limit (5 MB by default); 422 when the
- * sheet took longer than its budget or more memory than one evaluation may use; 503 (with Retry-After) when the
+ * sheet took longer than its budget, more memory than one evaluation may use, or its results would be larger than
+ * the route sends (64 MB by default); 503 (with Retry-After) when the
  * server is busy evaluating other sheets.
  */
 export const cellResultSchema = z

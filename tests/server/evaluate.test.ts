@@ -25,7 +25,7 @@ function post(t: ReturnType<typeof makeTestApp>, cookie: string, body: string, t
 }
 
 describe('POST /api/evaluate', () => {
-  const t = makeTestApp({ config: { evaluate: { maxBytes: 64 * 1024, budgetMs: 600 } } })
+  const t = makeTestApp({ config: { evaluate: { maxBytes: 64 * 1024, maxResultBytes: 256 * 1024, budgetMs: 600 } } })
   const roomy = makeTestApp()
   let lab: SeededLab
   let roomyLab: SeededLab
@@ -80,6 +80,12 @@ describe('POST /api/evaluate', () => {
     expect(res.body).toEqual({ error: 'The sheet file is larger than 64 KB, the most POST /api/evaluate accepts. Evaluate it with the command-line evaluator (npm run evaluate) instead.' })
   })
 
+  it('answers 422 when the results would be larger than it sends', async () => {
+    const res = await call(t, lab.users.viewer.cookie).post('/api/evaluate', { format: 'penumbra.sheet', version: 1, title: 'Long grid', cells: [{ kind: 'formula', name: 'x', source: 'grid(0, 1, 100000)' }] })
+    expect(res.status).toBe(422)
+    expect(res.body.error).toMatch(/^The sheet's results come to \d+(\.\d)? MB, more than POST \/api\/evaluate sends \(256 KB\)\./)
+  })
+
   it('answers 400 for malformed JSON, an empty body and a file with problems, each with issues', async () => {
     const cookie = lab.users.viewer.cookie
     const malformed = await post(t, cookie, '{"format": "penumbra.sheet",')
@@ -117,7 +123,7 @@ describe('SheetEvaluator', () => {
       expect(await first).toEqual({ ok: false, reason: 'timeout', budgetMs: 800 })
       const done = await second
       expect(done.ok).toBe(true)
-      if (done.ok) expect(JSON.parse(done.json).cells[0]).toMatchObject({ name: 'a', value: 2 })
+      if (done.ok) expect(JSON.parse(new TextDecoder().decode(done.json)).cells[0]).toMatchObject({ name: 'a', value: 2 })
     } finally {
       evaluator.close()
     }
