@@ -8,7 +8,7 @@ import type { AppDeps } from '../deps'
 import { requireUser } from '../middleware/auth'
 import { allowRoles, loadLab, loadSheet } from '../middleware/roles'
 import { issuesSummary, parse } from '../middleware/validate'
-import { blankSheetFile, canDeleteSheet, createSheet, deleteSheet, downloadName, exportSheet, listSheets, renameSheet, sheetReply } from '../services/sheets'
+import { blankSheetFile, canDeleteSheet, contentDisposition, createSheet, deleteSheet, downloadName, exportSheet, listSheets, renameSheet, sheetReply } from '../services/sheets'
 import { WRITE_ROLES } from '../services/access'
 import { badRequest, forbidden } from '../errors'
 import { parseSheetFile, parseSheetFileText, SHEET_MEDIA_TYPE, type ParseResult, type SheetFile } from '../../shared/schema/sheet'
@@ -71,10 +71,8 @@ export function sheetRoutes(deps: AppDeps): { labSheets: Router; sheets: Router 
   })
   sheets.get('/:sheetId/file', sheet, (req, res) => {
     const file = exportSheet(deps, req.sheet!)
-    const name = downloadName(req.sheet!.title)
-    const ascii = name.replace(/[^\x20-\x7e]/g, '_')
     res.set('Content-Type', `${SHEET_MEDIA_TYPE}; charset=utf-8`)
-    res.set('Content-Disposition', `attachment; filename="${ascii}"; filename*=UTF-8''${encodeURIComponent(name)}`)
+    res.set('Content-Disposition', contentDisposition(downloadName(req.sheet!.title)))
     res.set('Cache-Control', 'no-store')
     res.send(JSON.stringify(file, null, 2))
   })

@@ -85,9 +85,18 @@ export function exportSheet(deps: Pick<AppDeps, 'db'>, row: SheetRow): SheetFile
   return loadSheetFile(deps.db, row.id, row.title)
 }
 
-/** `Film H-17: edge model` → `Film H-17 edge model.penumbra.json` (safe in a Content-Disposition header and on disk). */
+/**
+ * `<title>.penumbra.json`: the title as it is, but for control characters and path separators (`Film B: edge/model`
+ * → `Film B: edge model.penumbra.json`); browsers adapt the rest to the file system they save on.
+ */
 export function downloadName(title: string): string {
-  const base = title.replace(/[\\/:*?"<>|\u0000-\u001f\u007f]+/g, ' ').replace(/\s+/g, ' ').trim().slice(0, 150) || 'sheet'
+  const base = title.replace(/[\\/\u0000-\u001f\u007f]+/g, ' ').replace(/\s+/g, ' ').trim().slice(0, 150) || 'sheet'
   return `${base}.penumbra.json`
 }
 
+/** `attachment; filename="<ASCII fallback>"; filename*=UTF-8''<RFC 5987 encoding>` for a download name. */
+export function contentDisposition(name: string): string {
+  const ascii = name.replace(/[^\x20-\x7e]/g, '_').replace(/["\\]/g, "'")
+  const encoded = encodeURIComponent(name).replace(/['()*!]/g, (c) => `%${c.charCodeAt(0).toString(16).toUpperCase()}`)
+  return `attachment; filename="${ascii}"; filename*=UTF-8''${encoded}`
+}

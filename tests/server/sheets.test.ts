@@ -199,7 +199,7 @@ describe('GET /api/sheets/:sheetId/file', () => {
     const res = await call(t, lab.users.viewer.cookie).get(`/api/sheets/${created.body.id}/file`)
     expect(res.status).toBe(200)
     expect(res.headers['content-type']).toBe('application/vnd.penumbra.sheet+json; charset=utf-8')
-    expect(res.headers['content-disposition']).toBe(`attachment; filename="Film B edge model.penumbra.json"; filename*=UTF-8''Film%20B%20edge%20model.penumbra.json`)
+    expect(res.headers['content-disposition']).toBe(`attachment; filename="Film B: edge model.penumbra.json"; filename*=UTF-8''Film%20B%3A%20edge%20model.penumbra.json`)
     const exported = JSON.parse(res.text)
     expect(exported.title).toBe('Film B: edge/model')
     const ids = exported.cells.map((c: { id: string }) => c.id)
@@ -208,6 +208,21 @@ describe('GET /api/sheets/:sheetId/file', () => {
     const again = await call(t, lab.users.owner.cookie).post(`/api/labs/${lab.labId}/sheets`, exported)
     expect(again.status).toBe(201)
     expect(loadSheetFile(t.db, again.body.id).cells).toEqual(exported.cells)
+  })
+
+  it('names the download <title>.penumbra.json, with an ASCII fallback and the exact title in UTF-8', async () => {
+    const t = makeTestApp()
+    const lab = await seedLab(t)
+    const cases: [string, string][] = [
+      ['Film H-17 (annealed): band-edge model', `attachment; filename="Film H-17 (annealed): band-edge model.penumbra.json"; filename*=UTF-8''Film%20H-17%20%28annealed%29%3A%20band-edge%20model.penumbra.json`],
+      ["Tomás's \"best\" film", `attachment; filename="Tom_s's 'best' film.penumbra.json"; filename*=UTF-8''Tom%C3%A1s%27s%20%22best%22%20film.penumbra.json`],
+    ]
+    for (const [title, header] of cases) {
+      const created = await call(t, lab.users.editor.cookie).post(`/api/labs/${lab.labId}/sheets`, { title })
+      const res = await call(t, lab.users.editor.cookie).get(`/api/sheets/${created.body.id}/file`)
+      expect(res.headers['content-disposition']).toBe(header)
+      expect(JSON.parse(res.text).title).toBe(title)
+    }
   })
 
   it('exports the demo example unchanged apart from ids', async () => {
