@@ -67,8 +67,9 @@ const unitCache = new Map<string, UnitParse>()
 
 /**
  * Parses a display unit into its SI factor and dimension. Accepts products and quotients of units with optional
- * integer or decimal powers and parentheses: `1/cm`, `cm^-1`, `mA/cm^2`, `W/m^2/nm` (= W·m⁻²·nm⁻¹), `eV/cm^2`,
- * `1/(m^2*s*nm)`, `%`. The empty string is dimensionless with factor 1.
+ * integer, decimal or parenthesised fractional powers and parentheses: `1/cm`, `cm^-1`, `cm^(-1/2)`, `mA/cm^2`,
+ * `W/m^2/nm` (= W·m⁻²·nm⁻¹), `eV/cm^2`, `1/(m^2*s*nm)`, `%`. The empty string is dimensionless with factor 1.
+ * `cm^-1/2` is refused as ambiguous rather than read as (cm^-1)/2.
  * Example: parseUnit('mA/cm^2') → { ok: true, factor: 10, dim: current density }.
  */
 export function parseUnit(text: string): UnitParse {
@@ -121,6 +122,10 @@ class UnitParser {
         acc = { factor: acc.factor * r.factor, dim: dimMul(acc.dim, r.dim) }
       } else if (c === '/') {
         this.pos++
+        this.space()
+        // `cm^-1/2` reads as (cm^-1)/2 by precedence but is almost always meant as cm^(-1/2): refuse to guess
+        if (/[0-9]/.test(this.text[this.pos] ?? '') && /\^\s*[-+]?\d+(\.\d+)?\s*$/.test(this.text.slice(0, this.pos - 1)))
+          throw new Error(`a number after "/" following a power is ambiguous: write the power in parentheses, e.g. cm^(-1/2)`)
         const r = this.power()
         acc = { factor: acc.factor / r.factor, dim: dimDiv(acc.dim, r.dim) }
       } else return acc
@@ -133,10 +138,12 @@ class UnitParser {
     if (this.text[this.pos] !== '^') return base
     this.pos++
     this.space()
-    const m = /^[-+]?\d+(\.\d+)?/.exec(this.text.slice(this.pos))
-    if (!m) throw new Error('expected a number after ^')
+    // a power is a number, or a fraction in parentheses: cm^2, cm^-1, cm^0.5, cm^(1/2), cm^(-1/2)
+    const m = /^[-+]?\d+(\.\d+)?/.exec(this.text.slice(this.pos)) ?? /^\(\s*([-+]?\d+)\s*\/\s*(\d+)\s*\)/.exec(this.text.slice(this.pos))
+    if (!m) throw new Error('expected a number after ^, or a fraction in parentheses such as ^(1/2)')
     this.pos += m[0].length
-    const p = Number(m[0])
+    const p = m[0].startsWith('(') ? Number(m[1]) / Number(m[2]) : Number(m[0])
+    if (!Number.isFinite(p)) throw new Error(`the power ${m[0]} is not a number`)
     return { factor: p < 0 ? 1 / base.factor ** -p : base.factor ** p, dim: dimPow(base.dim, p) }
   }
 

@@ -34,6 +34,14 @@ describe('parseUnit', () => {
     expect(unit('')).toEqual({ factor: 1, dimension: 'dimensionless' })
   })
 
+  it('parseUnit reads fractional powers in parentheses and refuses the ambiguous cm^-1/2', () => {
+    expect(unit('cm^(-1/2)')).toEqual({ factor: 10, dimension: 'm^-0.5' })
+    expect(unit('cm^0.5')).toEqual({ factor: 0.1, dimension: 'm^0.5' })
+    const bad = parseUnit('cm^-1/2')
+    expect(bad.ok).toBe(false)
+    if (!bad.ok) expect(bad.error).toMatch(/ambiguous: write the power in parentheses, e\.g\. cm\^\(-1\/2\)/)
+  })
+
   it('parseUnit refuses unknown units, offset temperature scales and non-physical units with a reason', () => {
     const bad = (t: string): string => {
       const u = parseUnit(t)
