@@ -33,6 +33,12 @@ const DIMENSIONLESS_BASES = new Set(['<1>', '<radian>', '<steradian>'])
 /** Temperature scales with an offset: a value in °C is not a factor times kelvin. */
 const OFFSET_SCALES = new Set(['<celsius>', '<fahrenheit>', '<rankine>', '<temp-K>', '<temp-C>', '<temp-F>', '<temp-R>'])
 
+/**
+ * Spellings of arbitrary units (detector counts, intensities in a.u.): dimensionless, factor 1. Without this, `au`
+ * would read as atto-(atomic mass unit) and `a.u.` not at all.
+ */
+const ARBITRARY = new Set(['a.u.', 'au', 'arb', 'arb.', 'arb. u.', 'arb.u.', 'arb. units', 'arbitrary units', 'counts', 'cts'])
+
 const atomCache = new Map<string, UnitParse>()
 
 function atom(name: string): UnitParse {
@@ -69,7 +75,7 @@ const unitCache = new Map<string, UnitParse>()
  * Parses a display unit into its SI factor and dimension. Accepts products and quotients of units with optional
  * integer, decimal or parenthesised fractional powers and parentheses: `1/cm`, `cm^-1`, `cm^(-1/2)`, `mA/cm^2`,
  * `W/m^2/nm` (= W·m⁻²·nm⁻¹), `eV/cm^2`, `1/(m^2*s*nm)`, `%`. The empty string is dimensionless with factor 1.
- * `cm^-1/2` is refused as ambiguous rather than read as (cm^-1)/2.
+ * `cm^-1/2` is refused as ambiguous rather than read as (cm^-1)/2; `a.u.`, `arb. u.` and `counts` are dimensionless.
  * Example: parseUnit('mA/cm^2') → { ok: true, factor: 10, dim: current density }.
  */
 export function parseUnit(text: string): UnitParse {
@@ -77,7 +83,7 @@ export function parseUnit(text: string): UnitParse {
   if (cached) return cached
   let result: UnitParse
   try {
-    result = new UnitParser(text).parse()
+    result = ARBITRARY.has(text.trim().toLowerCase()) ? { ok: true, factor: 1, dim: DIMENSIONLESS } : new UnitParser(text).parse()
     if (result.ok) result = { ...result, factor: snap(result.factor) }
   } catch (err) {
     result = { ok: false, error: `unit "${text}": ${(err as Error).message}` }

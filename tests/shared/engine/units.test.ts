@@ -42,6 +42,10 @@ describe('parseUnit', () => {
     if (!bad.ok) expect(bad.error).toMatch(/ambiguous: write the power in parentheses, e\.g\. cm\^\(-1\/2\)/)
   })
 
+  it('parseUnit reads arbitrary units (a.u., au, counts) as dimensionless numbers', () => {
+    for (const t of ['a.u.', 'au', 'arb. u.', 'counts']) expect(unit(t), t).toEqual({ factor: 1, dimension: 'dimensionless' })
+  })
+
   it('parseUnit refuses unknown units, offset temperature scales and non-physical units with a reason', () => {
     const bad = (t: string): string => {
       const u = parseUnit(t)
