@@ -3,6 +3,7 @@ import { describe, expect, it } from 'vitest'
 import { safeNext } from '../../../src/lib/navigation'
 import { formatAgo, plural } from '../../../src/lib/format'
 import { spectrumGradient, wavelengthToRgb } from '../../../src/lib/spectrum'
+import { visibleBand } from '../../../shared/plot/visible'
 import { canDeleteSheet, canEditSheets, canManageMembers } from '../../../src/lib/roles'
 
 describe('safeNext(next)', () => {
@@ -33,26 +34,20 @@ describe('formatAgo(ms, now) and plural(n, word)', () => {
   })
 })
 
-describe('wavelengthToRgb(nm)', () => {
-  // Expected values follow from the piecewise-linear approximation itself (ramps, roll-off, gamma 0.8), worked by
-  // hand: 550 nm → R = (550 − 510)/70 = 0.5714, 255·0.5714^0.8 = 162.9 → 163, G = 255.
-  it('wavelengthToRgb(550) gives green-yellow [163, 255, 0]', () => {
-    expect(wavelengthToRgb(550)).toEqual([163, 255, 0])
-  })
-  it('wavelengthToRgb(380) is a dim violet and wavelengthToRgb(750) a dim red (the eye’s roll-off)', () => {
-    // 380 nm: R = B = 1, intensity 0.3 → 255·0.3^0.8 = 97.3 → 97
-    expect(wavelengthToRgb(380)).toEqual([97, 0, 97])
-    // 750 nm: R = 1, intensity 0.3 + 0.7·30/80 = 0.5625 → 255·0.5625^0.8 = 160.9 → 161
-    expect(wavelengthToRgb(750)).toEqual([161, 0, 0])
-  })
-  it('wavelengthToRgb(nm) is black outside 380–780 nm', () => {
-    expect(wavelengthToRgb(300)).toEqual([0, 0, 0])
-    expect(wavelengthToRgb(900)).toEqual([0, 0, 0])
-  })
-  it('spectrumGradient() runs from 0% at 380 nm to 100% at 750 nm', () => {
+describe('spectrumGradient (the brand strip)', () => {
+  it('spectrumGradient() runs from 0% at 380 nm to 100% at 750 nm in the figures’ colours', () => {
     const css = spectrumGradient()
-    expect(css.startsWith('linear-gradient(to right, rgb(97 0 97) 0.00%')).toBe(true)
-    expect(css.endsWith('rgb(161 0 0) 100.00%)')).toBe(true)
+    const [r0, g0, b0] = wavelengthToRgb(380)
+    const [r1, g1, b1] = wavelengthToRgb(750)
+    expect(css.startsWith(`linear-gradient(to right, rgb(${r0} ${g0} ${b0}) 0.00%`)).toBe(true)
+    expect(css.endsWith(`rgb(${r1} ${g1} ${b1}) 100.00%)`)).toBe(true)
+  })
+  it('spectrumGradient() colours 595 nm as the figures’ visible band does', () => {
+    // the band's 590–600 nm segment takes the colour of its centre, 595 nm; the strip from 385 nm has a stop there
+    const segment = visibleBand('nm', 10)!.find((s) => s.from === 590)!
+    const [r, g, b] = wavelengthToRgb(595)
+    expect(segment.color).toBe(`rgb(${r}, ${g}, ${b})`)
+    expect(spectrumGradient(385, 745, 10)).toContain(`rgb(${r} ${g} ${b}) ${((210 / 360) * 100).toFixed(2)}%`)
   })
 })
 
