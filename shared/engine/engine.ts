@@ -200,7 +200,8 @@ export class SheetEngine {
     if (unknown) {
       // a library function named without its arguments reads as an unknown name: say how to call it
       const fns = unknown.map((n) => builtinFunction(n)).filter((f) => f !== undefined)
-      const hint = fns.length ? `; ${fns.map((f) => `${f.name} is a function: call it as ${f.signature}`).join('; ')}` : ''
+      let hint = fns.length ? `; ${fns.map((f) => `${f.name} is a function: call it as ${f.signature}`).join('; ')}` : ''
+      if (unknown.includes('π')) hint += '; write π as pi'
       return fail(unknownNamesMessage(unknown) + hint)
     }
     for (const d of this.graph.deps.get(p.id) ?? []) {

@@ -101,6 +101,12 @@ export function parseFormula(source: string): Node {
 /** JavaScript and expr-eval words a formula might try; after them the parser only says it expected the end. */
 const JS_WORDS = /\b(in|instanceof|typeof|new|void|delete|function|return|let|var|const|await|yield)\b\s*[^\s(,)]/
 
+/** The parser's token types in words, for its "Expected TNAME" messages. */
+const TOKEN_WORDS: Record<string, string> = {
+  NAME: 'a name', NUMBER: 'a number', STRING: 'a value', PAREN: 'a parenthesis', COMMA: 'a comma', OP: 'an operator',
+  BRACKET: 'a bracket', SEMICOLON: 'the end of the formula',
+}
+
 const CHARACTER_HINTS: Record<string, string> = {
   '=': 'assignments are not allowed: each cell defines one name (compare with ==)',
   '%': '"%" is not an operator in formulas; write percent as /100 or *percent',
@@ -112,7 +118,13 @@ function syntaxMessage(raw: string): string {
   const c = /Unknown character "(.)"/.exec(raw)
   if (c && Object.hasOwn(CHARACTER_HINTS, c[1])) return CHARACTER_HINTS[c[1]]
   const m = /^parse error \[(\d+):(\d+)\]: (.*)$/.exec(raw)
-  if (m) return `syntax error at column ${m[2]}: ${m[3].replace('Expected EOF', 'expected the end of the formula').replace('Expected ', 'expected ')}`
+  if (m) {
+    const what = m[3]
+      .replace('Expected EOF', 'expected the end of the formula')
+      .replace('Expected ', 'expected ')
+      .replace(/\bT(NAME|NUMBER|STRING|PAREN|COMMA|OP|BRACKET|SEMICOLON)\b/, (_all, t: string) => TOKEN_WORDS[t] ?? t.toLowerCase())
+    return `syntax error at column ${m[2]}: ${what}`
+  }
   if (/unexpected TEOF/.test(raw)) return 'syntax error: the formula ends too early'
   const u = /unexpected (T\w+): (.*)/.exec(raw)
   if (u) return `syntax error: unexpected "${u[2]}"`

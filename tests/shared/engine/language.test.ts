@@ -186,6 +186,8 @@ describe('formula language: syntax', () => {
   it('a syntax error says where', () => {
     expect(formula('(1 + 2').error).toMatch(/^syntax error at column \d+: expected \)/)
     expect(formula('1 +').error).toBe('syntax error: the formula ends too early')
+    expect(formula('x.', undefined, [{ kind: 'parameter', name: 'x', value: 1 }]).error).toBe('syntax error at column 3: expected a name')
+    expect(formula('π*2').error).toBe('unknown name: π; write π as pi')
   })
 
   it('an empty formula is an error', () => {
