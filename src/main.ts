@@ -4,6 +4,7 @@ import '@fontsource/fira-sans/latin-500.css'
 import '@fontsource/fira-sans/latin-600.css'
 import '@fontsource/fira-mono/latin-400.css'
 import '@fontsource/fira-mono/latin-500.css'
+import './assets/fonts-greek.css'
 import 'element-plus/dist/index.css'
 import './assets/theme.css'
 

@@ -43,6 +43,12 @@ const baseTheme = EditorView.theme({
   '.cm-tooltip.cm-tooltip-autocomplete > ul': { fontFamily: 'var(--pn-font-mono)', maxHeight: '16em' },
   '.cm-completionInfo': { fontFamily: 'var(--pn-font-sans)', maxWidth: '28em', whiteSpace: 'normal' },
   '.cm-completionDetail': { color: 'var(--pn-muted)', fontStyle: 'normal', marginLeft: '0.75em' },
+  '.cm-tooltip': { border: '1px solid var(--pn-line)', backgroundColor: 'var(--pn-surface)', borderRadius: '6px', boxShadow: 'var(--pn-shadow)' },
+  '.cm-tooltip.cm-tooltip-autocomplete > ul > li': { padding: '2px 8px' },
+  '.cm-tooltip.cm-tooltip-autocomplete > ul > li[aria-selected]': { backgroundColor: 'var(--pn-night)', color: '#fff' },
+  '.cm-tooltip.cm-tooltip-autocomplete > ul > li[aria-selected] .cm-completionDetail': { color: 'rgba(255, 255, 255, 0.78)' },
+  '.cm-completionMatchedText': { textDecoration: 'none', fontWeight: '600' },
+  '.cm-tooltip.cm-completionInfo': { padding: '4px 8px', color: 'var(--pn-ink)' },
   '.cm-ySelectionInfo': { fontFamily: 'var(--pn-font-sans)', opacity: 1, borderRadius: '3px', padding: '0 4px' },
 })
 

@@ -4,7 +4,7 @@
  * and autocompletion. The vocabulary is a plain object the page refreshes as cells and the engine's catalog change.
  */
 import { Decoration, MatchDecorator, ViewPlugin, type DecorationSet, type EditorView, type ViewUpdate } from '@codemirror/view'
-import type { Completion, CompletionContext, CompletionResult, CompletionSource } from '@codemirror/autocomplete'
+import { insertBracket, type Completion, type CompletionContext, type CompletionResult, type CompletionSource } from '@codemirror/autocomplete'
 import type { LibraryCatalog, LibraryFunction } from '@/workers/protocol'
 import type { SheetCell } from '../../../shared/schema/sheet'
 import type { CellResult } from '../../../shared/schema/result'
@@ -128,6 +128,23 @@ export function formulaHighlighter(vocab: () => FormulaVocabulary) {
 
 // --- completion --------------------------------------------------------------------------------------------------
 
+/**
+ * Completing a function writes `name()` with the caret between the brackets (or only the name, with the caret
+ * after an opening bracket that is already there), so the formula never ends up with an unclosed call.
+ */
+export function applyCall(name: string) {
+  return (view: EditorView, _completion: Completion, from: number, to: number): void => {
+    view.dispatch({ changes: { from, to, insert: name }, selection: { anchor: from + name.length }, userEvent: 'input.complete' })
+    const head = view.state.selection.main.head
+    if (view.state.sliceDoc(head, head + 1) === '(') {
+      view.dispatch({ selection: { anchor: head + 1 } })
+      return
+    }
+    // through the bracket-closing extension, so typing ")" later steps over the one written here
+    view.dispatch(insertBracket(view.state, '(') ?? { changes: { from: head, insert: '()' }, selection: { anchor: head + 1 }, userEvent: 'input.complete' })
+  }
+}
+
 /** Autocompletion of cell names, `cell.member`, functions (with signature and doc), units and constants. */
 export function formulaCompletion(vocab: () => FormulaVocabulary, ownName: () => string | undefined): CompletionSource {
   return (context: CompletionContext): CompletionResult | null => {
@@ -164,7 +181,7 @@ export function formulaCompletion(vocab: () => FormulaVocabulary, ownName: () =>
         type: 'function',
         detail: f.signature.startsWith(f.name) ? f.signature.slice(f.name.length) : f.signature,
         info: f.doc ? `${f.doc}${f.group ? ` (${f.group})` : ''}` : f.group,
-        apply: `${f.name}(`,
+        apply: applyCall(f.name),
         boost: 1,
       })
     }

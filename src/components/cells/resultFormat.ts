@@ -48,10 +48,16 @@ export function blockedInput(result: CellResult): string | null {
   return m ? m[1] : null
 }
 
-/** Makes an engine message read as a sentence: capital first letter, a full stop at the end. */
+/**
+ * Makes an engine message read as a sentence: capital first letter, a full stop at the end. A message that starts
+ * with a name from the sheet or the library keeps it as written, since names are case-sensitive:
+ * "photon_wavelength: E should be an energy" stays so, "unknown name: x" → "Unknown name: x.".
+ */
 export function sentence(text: string | undefined): string {
   const t = (text ?? '').trim()
   if (!t) return ''
-  const capital = t[0].toUpperCase() + t.slice(1)
+  const lead = /^([A-Za-z][A-Za-z0-9_]*)([:(.[]?)/.exec(t)
+  const isName = !!lead && (/[_\d]/.test(lead[1]) || lead[2] !== '')
+  const capital = isName ? t : t[0].toUpperCase() + t.slice(1)
   return /[.!?]$/.test(capital) ? capital : `${capital}.`
 }

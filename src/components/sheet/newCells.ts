@@ -81,7 +81,19 @@ export function newCell(kind: CellKind, cells: readonly SheetCell[], above: read
     case 'sweep': {
       const parameter = lastOf('parameter') ?? 'd'
       const output = arrays[0]?.name ?? 'A'
-      return { kind, name, parameter, from: 0, to: 1, steps: 11, outputs: [output] }
+      // the parameter's own slider range and unit make a working start
+      const p = above.find((c) => c.kind === 'parameter' && c.name === parameter)
+      const ranged = p?.kind === 'parameter' && p.min !== undefined && p.max !== undefined && p.max > p.min
+      return {
+        kind,
+        name,
+        parameter,
+        from: ranged ? p.min! : 0,
+        to: ranged ? p.max! : 1,
+        steps: 11,
+        ...(p?.kind === 'parameter' && p.unit ? { unit: p.unit } : {}),
+        outputs: [output],
+      }
     }
     case 'figure': {
       const y = arrays[0]?.name

@@ -1,8 +1,8 @@
 import { describe, expect, it } from 'vitest'
 import { dependentsOf, referencedNames } from '../../../src/components/sheet/references'
-import { copyName, freeName } from '../../../src/components/sheet/newCells'
+import { copyName, freeName, newCell } from '../../../src/components/sheet/newCells'
 import { fitCautions, fitRows, valueWithError } from '../../../src/components/cells/fitReport'
-import { blockedInput, summarizeArray } from '../../../src/components/cells/resultFormat'
+import { blockedInput, sentence, summarizeArray } from '../../../src/components/cells/resultFormat'
 import type { FitCell, SheetCell } from '../../../shared/schema/sheet'
 import type { CellResult } from '../../../shared/schema/result'
 
@@ -39,6 +39,16 @@ describe('new cell names', () => {
   })
 })
 
+describe('newCell', () => {
+  it('newCell("sweep") varies the last parameter above over its slider range, in its unit', () => {
+    const above: SheetCell[] = [
+      { id: 'd', kind: 'parameter', name: 'd', value: 900, unit: 'nm', min: 100, max: 3000 },
+      { id: 'a', kind: 'formula', name: 'A1', source: 'absorbed_fraction(alpha, d)', unit: '%' },
+    ]
+    expect(newCell('sweep', above, above)).toEqual({ kind: 'sweep', name: 'sweep1', parameter: 'd', from: 100, to: 3000, steps: 11, unit: 'nm', outputs: ['A1'] })
+  })
+})
+
 describe('result formatting', () => {
   it('summarizeArray([1, null, 3, NaN]) counts finite values and gives their range', () => {
     const s = summarizeArray([1, null, 3, NaN])
@@ -47,6 +57,13 @@ describe('result formatting', () => {
 
   it('blockedInput reads the failed input from the engine message', () => {
     expect(blockedInput({ index: 0, kind: 'formula', status: 'blocked', error: 'blocked: input u failed' })).toBe('u')
+  })
+
+  it('sentence(message) capitalises plain words but keeps a leading cell or function name as written', () => {
+    expect(sentence('unknown name: nope')).toBe('Unknown name: nope.')
+    expect(sentence('photon_wavelength: E should be an energy, not a length')).toBe('photon_wavelength: E should be an energy, not a length.')
+    expect(sentence('alpha: the result is not finite.')).toBe('alpha: the result is not finite.')
+    expect(sentence('')).toBe('')
   })
 
   it('valueWithError(6.7238e-6, 9.5e-9) shares one power of ten', () => {
