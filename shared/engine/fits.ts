@@ -132,11 +132,11 @@ export function evaluateFit(p: PreparedCell, env: Env): CellState {
     warnings.push(`ln α is not straight in this window (r² = ${f.r2.toFixed(4)}): an Urbach tail is exponential only below the gap`)
   const fields = new Map<string, Field>([
     ['Eu', field(f.Eu, ENERGY)], ['Eu_err', field(f.Eu_err, ENERGY)], ['alpha0', field(f.alpha0, INV_LENGTH)],
-    ['r2', field(f.r2, DIMENSIONLESS)], ['n', field(f.n, DIMENSIONLESS)],
+    ['E0', field(f.E0, ENERGY)], ['r2', field(f.r2, DIMENSIONLESS)], ['n', field(f.n, DIMENSIONLESS)],
   ])
   return {
     status: 'ok', value: new RecordValue('fit', cell.name, fields), dim: null, warnings,
-    shown: { Eu: clean(f.Eu / e.factor), Eu_err: clean(f.Eu_err / e.factor), alpha0: f.alpha0, r2: f.r2, n: f.n },
+    shown: { Eu: clean(f.Eu / e.factor), Eu_err: clean(f.Eu_err / e.factor), alpha0: f.alpha0, E0: clean(f.E0 / e.factor), r2: f.r2, n: f.n },
     unit: e.unit,
   }
 }

@@ -23,8 +23,10 @@ export interface UrbachFit {
   /** Urbach energy 1/slope of ln α, J. */
   Eu: number
   Eu_err: number
-  /** α at E = 0 of the fitted line, 1/m: alphaUrbach(E, alpha0, 0, Eu) reproduces the fit. */
+  /** α of the fitted line at E0, 1/m: alphaUrbach(E, alpha0, E0, Eu) reproduces the fit. */
   alpha0: number
+  /** Reference energy of alpha0, J: the top of the data inside the window (where the tail meets the edge). */
+  E0: number
   r2: number
   n: number
 }
@@ -97,10 +99,12 @@ export function taucFit(E: ArrayLike<number>, alpha: ArrayLike<number>, r: numbe
 
 /**
  * Urbach fit: linear regression of ln α on E inside the window; Eu = 1/slope, Eu_err = slopeErr/slope²,
- * alpha0 = exp(intercept) (α extrapolated to E = 0, so alphaUrbach(E, alpha0, 0, Eu) is the fitted line).
+ * E0 = the highest photon energy inside the window and alpha0 = α of the fitted line there, so
+ * alphaUrbach(E, alpha0, E0, Eu) is the fitted line (the usual form α = α0·exp((E − E0)/Eu), with α0 a measurable
+ * size rather than the vanishing value extrapolated to E = 0).
  *
  * - `E`: photon energies, J; `alpha`: α, 1/m (> 0 inside the window); `from`, `to`: window limits, J (inclusive)
- * - result: { Eu (J), Eu_err (J), alpha0 (1/m), r2, n }
+ * - result: { Eu (J), Eu_err (J), alpha0 (1/m), E0 (J), r2, n }
  *
  * Source: F. Urbach, Phys. Rev. 92, 1324 (1953); regression errors as in Draper & Smith (1998), ch. 1.
  *
@@ -126,5 +130,7 @@ export function urbachFit(E: ArrayLike<number>, alpha: ArrayLike<number>, from: 
     throw new FitError('ln α does not rise with energy inside the window, so it gives no Urbach energy.')
   }
   const s = fit.slope
-  return { Eu: 1 / s, Eu_err: fit.slopeErr / (s * s), alpha0: Math.exp(fit.intercept), r2: fit.r2, n: fit.n }
+  let E0 = -Infinity
+  for (let j = 0; j < x.length; j++) if (x[j] > E0) E0 = x[j]
+  return { Eu: 1 / s, Eu_err: fit.slopeErr / (s * s), alpha0: Math.exp(fit.intercept + s * E0), E0, r2: fit.r2, n: fit.n }
 }

@@ -117,8 +117,11 @@ describe('fit cells: urbach', () => {
     const v = pick(res, 'tail').value as Record<string, number>
     expect(rel(v.Eu, 20)).toBeLessThan(1e-9)
     expect(v.r2).toBeCloseTo(1, 12)
-    // alpha0 is α extrapolated to E = 0, in SI: 1e7 /m · exp(−1.5 eV / 20 meV)
-    expect(rel(v.alpha0, 1e7 * Math.exp(-75))).toBeLessThan(1e-6)
+    // E0 is the top of the data in the window (shown in meV) and alpha0 the tail's α there, in SI:
+    // α = 1e7 /m · exp((E0 − 1.5 eV) / 20 meV), the form alpha_urbach(E, alpha0, E0, Eu) (Urbach 1953)
+    expect(v.E0).toBeLessThanOrEqual(1450 + 1e-9)
+    expect(v.E0).toBeGreaterThan(1400)
+    expect(rel(v.alpha0, 1e7 * Math.exp((v.E0 - 1500) / 20))).toBeLessThan(1e-6)
   })
 
   it('an urbach fit over a window with zero absorption is a clear error', () => {

@@ -80,13 +80,15 @@ describe('taucFit(E, alpha, r, from, to)', () => {
 })
 
 describe('urbachFit(E, alpha, from, to)', () => {
-  it('urbachFit recovers Eu of a noise-free tail exactly, and alpha0 reproduces the line with E0 = 0', () => {
+  it('urbachFit recovers Eu of a noise-free tail exactly, and alpha0 at E0 (the top of the window) reproduces the line', () => {
     const E = grid(1.2, 1.5, 301)
     const alpha = alphaUrbach(E, 1e5, 1.5 * eV, 0.02 * eV) as Float64Array
     const f = urbachFit(E, alpha, 1.3 * eV, 1.45 * eV)
     expectRel(f.Eu, 0.02 * eV, 1e-12)
     expect(f.Eu_err).toBeLessThan(1e-10 * f.Eu)
-    expectRel(alphaUrbach(1.4 * eV, f.alpha0, 0, f.Eu) as number, alphaUrbach(1.4 * eV, 1e5, 1.5 * eV, 0.02 * eV) as number, 1e-9)
+    expectRel(f.E0, 1.45 * eV, 1e-9)
+    expectRel(f.alpha0, alphaUrbach(f.E0, 1e5, 1.5 * eV, 0.02 * eV) as number, 1e-9)
+    expectRel(alphaUrbach(1.35 * eV, f.alpha0, f.E0, f.Eu) as number, alphaUrbach(1.35 * eV, 1e5, 1.5 * eV, 0.02 * eV) as number, 1e-9)
   })
   it('urbachFit of the tail of alphaEdge returns the Urbach energy it was built with', () => {
     const E = grid(1.2, 1.6, 401)
