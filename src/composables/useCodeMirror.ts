@@ -126,8 +126,12 @@ export function useCodeMirror(options: CodeMirrorOptions) {
     })
   }
 
-  function focus(): void {
-    view.value?.focus()
+  /** Focuses the editor; `atEnd` puts the caret after the last character (opening a text to add to it). */
+  function focus(atEnd = false): void {
+    const v = view.value
+    if (!v) return
+    if (atEnd) v.dispatch({ selection: { anchor: v.state.doc.length }, scrollIntoView: true })
+    v.focus()
   }
 
   onScopeDispose(destroy)

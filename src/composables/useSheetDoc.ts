@@ -155,6 +155,19 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     return true
   }
 
+  /**
+   * A change to the list of cells (add, move, duplicate, delete, import) is one undo step of its own: without this,
+   * edits within the undo manager's capture window (half a second) would merge, and undoing a delete made right
+   * after a duplicate would undo both.
+   */
+  function transactStep(change: () => void): boolean {
+    if (readonly) return false
+    undoManager.stopCapturing()
+    doc.transact(change, origin)
+    undoManager.stopCapturing()
+    return true
+  }
+
   function indexOf(id: string): number {
     const arr = cells.toArray()
     return arr.findIndex((m) => m.get('id') === id)
@@ -184,14 +197,14 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
   /** Inserts a new cell at `index` (end when omitted); returns its id. */
   function insertCell(cell: Cell, index = cells.length): string | null {
     const id = newCellId()
-    const ok = transact(() => cells.insert(Math.max(0, Math.min(index, cells.length)), [cellToMap({ ...cell, id }, id)]))
+    const ok = transactStep(() => cells.insert(Math.max(0, Math.min(index, cells.length)), [cellToMap({ ...cell, id }, id)]))
     return ok ? id : null
   }
 
   function deleteCell(id: string): boolean {
     const i = indexOf(id)
     if (i < 0) return false
-    return transact(() => cells.delete(i, 1))
+    return transactStep(() => cells.delete(i, 1))
   }
 
   /** Moves a cell to position `to` (clamped). The card is rebuilt, so its editors re-bind. */
@@ -201,7 +214,7 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     const target = Math.max(0, Math.min(to, cells.length - 1))
     if (target === from) return false
     const map = cells.get(from)
-    return transact(() => {
+    return transactStep(() => {
       const copy = copyMap(map, id)
       cells.delete(from, 1)
       cells.insert(target, [copy])
@@ -215,13 +228,13 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     const newId = newCellId()
     const copy = copyMap(cells.get(i), newId)
     if (name !== undefined) copy.set('name', name)
-    const ok = transact(() => cells.insert(i + 1, [copy]))
+    const ok = transactStep(() => cells.insert(i + 1, [copy]))
     return ok ? newId : null
   }
 
   /** Replaces every cell (import "replace"). */
   function replaceCells(next: SheetCell[]): boolean {
-    return transact(() => {
+    return transactStep(() => {
       cells.delete(0, cells.length)
       cells.push(next.map((c) => cellToMap(c, c.id)))
     })
@@ -229,7 +242,7 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
 
   /** Appends cells at the end (import "append"); they must already have fresh ids. */
   function appendCells(next: SheetCell[]): boolean {
-    return transact(() => cells.push(next.map((c) => cellToMap(c, c.id))))
+    return transactStep(() => cells.push(next.map((c) => cellToMap(c, c.id))))
   }
 
   function undo(): void {
