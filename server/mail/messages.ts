@@ -95,12 +95,17 @@ export function confirmSignUpMail(o: { name: string; link: string; expiresAt: nu
     'Open this link to confirm your e-mail address and finish creating your Penumbra account:',
     o.link,
     '',
+    'You will be asked for the password you chose when you signed up.',
+    '',
     `The link works once and expires on ${when(o.expiresAt)}.`,
     'If you did not sign up, ignore this mail and no account is created.',
   ].join('\n')
   const html = layout({
     heading: 'Confirm your account',
-    paragraphs: [`Hello ${escapeHtml(o.name)},`, 'Confirm your e-mail address to finish creating your Penumbra account.'],
+    paragraphs: [
+      `Hello ${escapeHtml(o.name)},`,
+      'Confirm your e-mail address to finish creating your Penumbra account. You will be asked for the password you chose when you signed up.',
+    ],
     action: { label: 'Confirm and sign in', href: o.link },
     footer: `The link works once and expires on ${escapeHtml(when(o.expiresAt))}. If you did not sign up, ignore this mail and no account is created.`,
   })

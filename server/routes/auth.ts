@@ -32,8 +32,8 @@ export function authRoutes(deps: AppDeps): Router {
   })
 
   r.post('/confirm', tokenLimit, async (req, res) => {
-    const { token } = parse(confirmSignUpBody, req.body)
-    const user = confirmSignUp(deps, token)
+    const { token, password } = parse(confirmSignUpBody, req.body)
+    const user = await confirmSignUp(deps, token, password)
     await startSession(deps, res, user.id)
     res.json({ user: publicUser(user) })
   })

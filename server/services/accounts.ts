@@ -67,11 +67,18 @@ export async function requestSignUp(deps: AppDeps, body: SignUpBody): Promise<vo
 }
 
 /** Opens a confirmation link: creates the account. */
-export function confirmSignUp(deps: AppDeps, token: string): UserRow {
+/**
+ * Finishes a sign-up from its mailed link. The password chosen at sign-up must be given again: the link alone is
+ * not enough, so an account can't be created for an address by someone who doesn't read its mail, nor handed to
+ * its owner with a stranger's password. A wrong password leaves the link usable.
+ */
+export async function confirmSignUp(deps: AppDeps, token: string, password: string): Promise<UserRow> {
   const row = deps.db.select().from(pendingSignups).where(eq(pendingSignups.tokenHash, hashToken(token))).get()
   if (!row) throw notFound('This confirmation link is not valid. Sign up again to get a new one.')
   if (row.usedAt != null) throw gone('This confirmation link has already been used. Sign in with your e-mail and password.')
   if (row.expiresAt <= Date.now()) throw gone('This confirmation link has expired. Sign up again to get a new one.')
+  if (!(await verifyPassword(row.passwordHash, password)))
+    throw forbidden('That is not the password chosen when signing up. If you did not sign up for Penumbra yourself, ignore the e-mail: no account is made.')
   return deps.db.transaction(() => {
     deps.db.update(pendingSignups).set({ usedAt: Date.now() }).where(eq(pendingSignups.id, row.id)).run()
     if (userByEmail(deps, row.email)) throw conflict('An account with this e-mail address already exists. Sign in instead.')

@@ -101,7 +101,14 @@ export const signUpBody = z.object({ email: emailSchema, name: personNameSchema,
 export type SignUpBody = z.infer<typeof signUpBody>
 
 /** POST /api/auth/confirm → 200 UserReply + session cookie (404 unknown link, 410 expired or used, 409 account exists). */
-export const confirmSignUpBody = z.object({ token: tokenSchema })
+/**
+ * The password chosen at sign-up is asked again when the link is opened: only the person who signed up can finish,
+ * so a stranger cannot sign up with someone else's address and wait for them to click a link they never asked for.
+ */
+export const confirmSignUpBody = z.object({
+  token: tokenSchema,
+  password: z.string({ message: 'required' }).min(1, 'required').max(PASSWORD_MAX_LENGTH),
+})
 export type ConfirmSignUpBody = z.infer<typeof confirmSignUpBody>
 
 /**

@@ -31,9 +31,9 @@ export async function signUp(body: SignUpBody): Promise<string> {
   return (await api.post('/api/auth/sign-up', body, messageReply)).message
 }
 
-/** Opens the mailed confirmation link: creates the account and signs it in. */
-export async function confirmSignUp(token: string): Promise<User> {
-  return (await api.post('/api/auth/confirm', { token }, userReply)).user
+/** Opens the mailed confirmation link with the password chosen at sign-up: creates the account and signs it in. */
+export async function confirmSignUp(token: string, password: string): Promise<User> {
+  return (await api.post('/api/auth/confirm', { token, password }, userReply)).user
 }
 
 export async function signOut(): Promise<void> {

@@ -22,12 +22,12 @@ describe('POST /api/auth/sign-up', () => {
     expect(mail.text).toContain('http://penumbra.test/confirm/')
     expect(mail.html).toContain('Confirm and sign in')
     const token = t.mailer.tokenFor('ada@example.org', '/confirm/')
-    const confirmed = await call(t).post('/api/auth/confirm', { token })
+    const confirmed = await call(t).post('/api/auth/confirm', { token, password: 'ten chars!!' })
     expect(confirmed.status).toBe(200)
     expect(confirmed.body.user).toMatchObject({ email: 'ada@example.org', name: 'Ada Quell' })
     const me = await call(t, cookieFrom(confirmed)).get('/api/auth/me')
     expect(me.body.user.email).toBe('ada@example.org')
-    const again = await call(t).post('/api/auth/confirm', { token })
+    const again = await call(t).post('/api/auth/confirm', { token, password: 'ten chars!!' })
     expect(again.status).toBe(410)
   })
 
@@ -43,7 +43,7 @@ describe('POST /api/auth/sign-up', () => {
     expect(early.status).toBe(401)
     expect(early.body).toEqual(nobody.body)
     expect(early.body.error).toMatch(/open the link we mailed you first/)
-    const confirmed = await call(t).post('/api/auth/confirm', { token: t.mailer.tokenFor(body.email, '/confirm/') })
+    const confirmed = await call(t).post('/api/auth/confirm', { token: t.mailer.tokenFor(body.email, '/confirm/'), password: body.password })
     expect(confirmed.status).toBe(200)
     expect((await call(t, cookieFrom(confirmed)).post('/api/auth/sign-out')).status).toBe(204)
     const later = await call(t).post('/api/auth/sign-in', { email: 'Ines@Okafor-Lab.example', password: body.password })
@@ -81,8 +81,25 @@ describe('POST /api/auth/sign-up', () => {
     await call(t).post('/api/auth/sign-up', { email: 'late@example.org', name: 'Late', password: 'long enough one' })
     const token = t.mailer.tokenFor('late@example.org', '/confirm/')
     t.db.update(pendingSignups).set({ expiresAt: Date.now() - 1 }).run()
-    expect((await call(t).post('/api/auth/confirm', { token })).status).toBe(410)
-    expect((await call(t).post('/api/auth/confirm', { token: 'x'.repeat(43) })).status).toBe(404)
+    expect((await call(t).post('/api/auth/confirm', { token, password: 'whatever it was' })).status).toBe(410)
+    expect((await call(t).post('/api/auth/confirm', { token: 'x'.repeat(43), password: 'whatever it was' })).status).toBe(404)
+  })
+
+  it('POST /api/auth/confirm needs the password chosen at sign-up: a stranger\'s sign-up cannot be finished by the address\'s owner clicking the link', async () => {
+    const t = makeTestApp()
+    // someone signs up with another person's address and a password of their own choosing
+    await call(t).post('/api/auth/sign-up', { email: 'victim@example.org', name: 'Not Me', password: 'attacker chosen pw' })
+    const token = t.mailer.tokenFor('victim@example.org', '/confirm/')
+    // the address's owner opens the link they never asked for: without that password, no account is made
+    const clicked = await call(t).post('/api/auth/confirm', { token, password: 'what the owner guesses' })
+    expect(clicked.status).toBe(403)
+    expect(clicked.body.error).toMatch(/not the password chosen when signing up/)
+    expect(clicked.headers['set-cookie']).toBeUndefined()
+    expect(t.db.select().from(users).all()).toHaveLength(0)
+    expect((await call(t).post('/api/auth/confirm', { token })).status).toBe(400)
+    // a wrong password does not spend the link: the person who did sign up can still finish
+    const right = await call(t).post('/api/auth/confirm', { token, password: 'attacker chosen pw' })
+    expect(right.status).toBe(200)
   })
 
   it('stores an argon2id hash, never the password', async () => {

@@ -151,7 +151,7 @@ export async function signUp(t: TestApp, o: { email: string; name: string; passw
   const res = await call(t).post('/api/auth/sign-up', o)
   if (res.status !== 201) throw new Error(`sign-up failed: ${res.status} ${JSON.stringify(res.body)}`)
   const token = t.mailer.tokenFor(o.email.toLowerCase(), '/confirm/')
-  const confirmed = await call(t).post('/api/auth/confirm', { token })
+  const confirmed = await call(t).post('/api/auth/confirm', { token, password: o.password })
   if (confirmed.status !== 200) throw new Error(`confirm failed: ${confirmed.status} ${JSON.stringify(confirmed.body)}`)
   return { user: confirmed.body.user, cookie: cookieFrom(confirmed) }
 }
