@@ -93,6 +93,9 @@ export function useCodeMirror(options: CodeMirrorOptions) {
           return false
         },
         blur: () => {
+          // y-codemirror only clears this person's caret on the next editor update, which leaving an editor does
+          // not always bring: without this, others keep seeing a caret in a formula this person has left
+          if ((options.awareness.getLocalState() as { cursor?: unknown } | null)?.cursor != null) options.awareness.setLocalStateField('cursor', null)
           options.onBlur?.()
           return false
         },
