@@ -150,27 +150,29 @@ export function fitCautions(cell: FitCell, result: CellResult | undefined, cells
   const r2 = typeof value.r2 === 'number' ? value.r2 : undefined
   const n = typeof value.n === 'number' ? value.n : undefined
   const fmt = (v: number) => `${formatNumber(v, 4)} ${fitUnit}`
+  // the engine's own warnings show on the card already; a caution saying the same thing again is left out
+  const engineSays = (pattern: RegExp) => (result?.warnings ?? []).some((w) => pattern.test(w))
 
   if (n !== undefined && n < 5) out.push(`Only ${n} points lie in the window; a line through so few points says little. Widen the window.`)
 
   if (cell.method === 'tauc' && typeof value.Eg === 'number') {
     const Eg = value.Eg
-    if (r2 !== undefined && r2 < 0.98)
+    if (r2 !== undefined && r2 < 0.98 && !engineSays(/tauc plot is not straight/i))
       out.push(`The Tauc plot is not straight in this window (R² = ${r2.toFixed(3)}), so the gap depends on where the window sits. Move it onto the straight part just above the edge.`)
-    if (win && win[0] < Eg)
+    if (win && win[0] < Eg && !engineSays(/gap lies inside the window/i))
       out.push(`The window starts at ${fmt(win[0])}, below the fitted gap (${fmt(Eg)}). Points below the gap belong to the tail and bend the Tauc line; start the window above the gap.`)
     const EgEv = toEv(Eg, fitUnit)
     const topEv = win ? toEv(win[1], fitUnit) : null
     if (EgEv !== null && topEv !== null && topEv - EgEv > 0.5)
       out.push(`The window reaches ${formatNumber(topEv - EgEv, 2)} eV above the gap. The Tauc form assumes parabolic bands and holds only near the edge; keep the window within a few tenths of an eV of it.`)
-    if (cell.r === undefined) out.push('No Tauc exponent is set; the fit assumes r = 1/2 (direct allowed). Choose the transition type that fits the material.')
+    if (cell.r === undefined && !engineSays(/r is not given/i)) out.push('No Tauc exponent is set; the fit assumes r = 1/2 (direct allowed). Choose the transition type that fits the material.')
   }
 
   if (cell.method === 'urbach' && typeof value.Eu === 'number') {
     const EuEv = toEv(value.Eu, fitUnit)
     if (EuEv !== null && (EuEv < 0.005 || EuEv > 0.2))
       out.push(`An Urbach energy of ${formatNumber(EuEv * 1000, 3)} meV is unusual (films typically show about 10–100 meV). Check that the window lies on the exponential tail.`)
-    if (r2 !== undefined && r2 < 0.98)
+    if (r2 !== undefined && r2 < 0.98 && !engineSays(/ln α is not straight/i))
       out.push(`ln α is not straight in this window (R² = ${r2.toFixed(3)}): the tail is not a single exponential there.`)
     // a gap to compare with: a Tauc fit of the same data, else a parameter named Eg
     const tauc = cells.find((c) => c.kind === 'fit' && c.method === 'tauc' && c.y === cell.y)

@@ -100,6 +100,17 @@ describe('fit report', () => {
     expect(notes.join(' ')).toMatch(/below the fitted gap/)
   })
 
+  it('fitCautions(tauc) leaves out what the engine’s warnings on the same card already say', () => {
+    const result = {
+      ...ok({ Eg: 1.7, r2: 0.95, n: 30 }),
+      warnings: [
+        'the Tauc plot is not straight in this window (r² = 0.9500): move the window onto the linear part of the edge',
+        'the fitted gap lies inside the window: the window probably reaches into the tail below the gap',
+      ],
+    }
+    expect(fitCautions(fit, result, cells, {})).toEqual([])
+  })
+
   it('fitCautions(urbach) warns when the window reaches above the gap of the Tauc fit on the same data', () => {
     const tail: FitCell & { id: string } = { id: 't', kind: 'fit', name: 'tail', method: 'urbach', x: 'E', y: 'alpha', from: 1.4, to: 1.6, unit: 'meV' }
     const results: Record<string, CellResult> = { f: ok({ Eg: 1.5, r2: 0.999, n: 30 }) }
