@@ -56,6 +56,13 @@ export interface RunningServer {
   dataDir: string
   /** Everything the server printed so far (stdout and stderr). */
   output(): string
+  /**
+   * Stops the server (SIGTERM, or SIGKILL when `hard`) and keeps its data directory, so `start()` brings it back on
+   * the same port with everything it stored: for tests of what people see while the server is away.
+   */
+  halt(options?: { hard?: boolean }): Promise<void>
+  /** Starts a halted server again (same port, same data directory) and resolves once it is running. */
+  start(): Promise<void>
   /** SIGTERM, then SIGKILL after a grace period; removes the data directory. */
   stop(): Promise<void>
 }
@@ -93,63 +100,87 @@ export async function startServer(options: { env?: Record<string, string>; timeo
     throw new Error('dist/index.html is missing: build the client first (npm run test:e2e runs `vite build` before the tests)')
   const port = await freePort()
   const dataDir = mkdtempSync(path.join(tmpdir(), 'penumbra-e2e-data-'))
-  const child = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], {
-    cwd: ROOT,
-    env: { ...process.env, NODE_ENV: 'test', PORT: String(port), DATA_DIR: dataDir, ...options.env },
-    stdio: ['ignore', 'pipe', 'pipe'],
-  })
   let log = ''
   const append = (chunk: Buffer) => {
     log += chunk.toString()
     if (log.length > 200_000) log = log.slice(-100_000)
   }
-  child.stdout!.on('data', append)
-  child.stderr!.on('data', append)
+  let child: ChildProcess | null = null
+
+  /** Spawns the server and resolves with its URL once it says it is running. */
+  const launch = (): Promise<string> => {
+    const proc = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], {
+      cwd: ROOT,
+      env: { ...process.env, NODE_ENV: 'test', PORT: String(port), DATA_DIR: dataDir, ...options.env },
+      stdio: ['ignore', 'pipe', 'pipe'],
+    })
+    child = proc
+    const from = log.length
+    proc.stdout!.on('data', append)
+    proc.stderr!.on('data', append)
+    return new Promise<string>((resolve, reject) => {
+      const timeoutMs = options.timeoutMs ?? 60_000
+      const timer = setTimeout(() => {
+        cleanup()
+        reject(new Error(`the server did not report that it is running within ${timeoutMs} ms; it printed:\n${log.slice(from)}`))
+      }, timeoutMs)
+      const onData = () => {
+        const match = /Penumbra is running at (http:\/\/localhost:(\d+))/.exec(log.slice(from))
+        if (match) {
+          cleanup()
+          resolve(match[1]!)
+        }
+      }
+      const onExit = (code: number | null, signal: string | null) => {
+        cleanup()
+        reject(new Error(`the server exited (code ${code}, signal ${signal}) before it was running; it printed:\n${log.slice(from)}`))
+      }
+      function cleanup() {
+        clearTimeout(timer)
+        proc.stdout!.off('data', onData)
+        proc.stderr!.off('data', onData)
+        proc.off('exit', onExit)
+      }
+      proc.stdout!.on('data', onData)
+      proc.stderr!.on('data', onData)
+      proc.on('exit', onExit)
+      onData()
+    })
+  }
+
+  const halt = async (haltOptions: { hard?: boolean } = {}) => {
+    const proc = child
+    if (!proc || proc.exitCode !== null || proc.signalCode !== null) return
+    proc.kill(haltOptions.hard ? 'SIGKILL' : 'SIGTERM')
+    if (!(await waitForExit(proc, 10_000))) {
+      proc.kill('SIGKILL')
+      await waitForExit(proc, 5_000)
+    }
+  }
 
   const stop = async () => {
-    if (child.exitCode === null && child.signalCode === null) {
-      child.kill('SIGTERM')
-      if (!(await waitForExit(child, 10_000))) {
-        child.kill('SIGKILL')
-        await waitForExit(child, 5_000)
-      }
-    }
+    await halt()
     rmSync(dataDir, { recursive: true, force: true })
   }
 
-  const url = await new Promise<string>((resolve, reject) => {
-    const timeoutMs = options.timeoutMs ?? 60_000
-    const timer = setTimeout(() => {
-      cleanup()
-      reject(new Error(`the server did not report that it is running within ${timeoutMs} ms; it printed:\n${log}`))
-    }, timeoutMs)
-    const onData = () => {
-      const match = /Penumbra is running at (http:\/\/localhost:(\d+))/.exec(log)
-      if (match) {
-        cleanup()
-        resolve(match[1]!)
-      }
-    }
-    const onExit = (code: number | null, signal: string | null) => {
-      cleanup()
-      reject(new Error(`the server exited (code ${code}, signal ${signal}) before it was running; it printed:\n${log}`))
-    }
-    function cleanup() {
-      clearTimeout(timer)
-      child.stdout!.off('data', onData)
-      child.stderr!.off('data', onData)
-      child.off('exit', onExit)
-    }
-    child.stdout!.on('data', onData)
-    child.stderr!.on('data', onData)
-    child.on('exit', onExit)
-    onData()
-  }).catch(async (err: unknown) => {
+  const url = await launch().catch(async (err: unknown) => {
     await stop()
     throw err
   })
 
-  return { url, port: Number(new URL(url).port), dataDir, output: () => log, stop }
+  return {
+    url,
+    port: Number(new URL(url).port),
+    dataDir,
+    output: () => log,
+    halt,
+    async start() {
+      const proc = child
+      if (proc && proc.exitCode === null && proc.signalCode === null) return
+      await launch()
+    },
+    stop,
+  }
 }
 
 export interface BrowserSession {
