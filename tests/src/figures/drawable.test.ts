@@ -4,7 +4,7 @@ import { tickExponentFormat } from '../../../src/components/figures/plotlyFigure
 import { buildFigure } from '../../../shared/plot/figure'
 import type { CellResult } from '../../../shared/schema/result'
 
-const grid = (n: number, f: (i: number) => number) => Array.from({ length: n }, (_, i) => f(i))
+const grid = <T,>(n: number, f: (i: number) => T): T[] => Array.from({ length: n }, (_, i) => f(i))
 
 function sweep(steps: number, width: number): CellResult {
   return {

@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest'
 import { packResults, unpackResults } from '../../../src/workers/pack'
 import type { CellResult } from '../../../shared/schema/result'
 
-const grid = (n: number, f: (i: number) => number) => Array.from({ length: n }, (_, i) => f(i))
+const grid = <T,>(n: number, f: (i: number) => T): T[] => Array.from({ length: n }, (_, i) => f(i))
 
 describe('packResults and unpackResults', () => {
   it('packResults(results) moves long arrays and sweep tables into transferable buffers, and unpackResults gives the same results back', () => {
