@@ -16,7 +16,7 @@ export interface FitRow {
   unit: string
 }
 
-const ENERGY_KEYS = new Set(['Eg', 'Eu'])
+const ENERGY_KEYS = new Set(['Eg', 'Eu', 'E0'])
 
 /**
  * A value with its standard error, the error to two significant figures; very large or small values share one
@@ -39,7 +39,8 @@ const MEANING: Record<string, string> = {
   Eg: 'band gap (intercept of the Tauc line)',
   B: 'slope of the Tauc line (SI)',
   Eu: 'Urbach energy (width of the exponential tail)',
-  alpha0: 'tail prefactor',
+  alpha0: 'α of the tail at E0',
+  E0: 'reference energy of α₀ (top of the window)',
   r2: 'coefficient of determination',
   n: 'points in the window',
   chi2: 'sum of squared residuals',
@@ -52,7 +53,7 @@ function isRecord(v: unknown): v is Record<string, unknown> {
 }
 
 /**
- * Rows for a fit result. Energies (Eg, Eu and errors) are in the fit's unit; alpha0 is SI (1/m) and shown in 1/cm;
+ * Rows for a fit result. Energies (Eg, Eu, E0 and errors) are in the fit's unit; alpha0 is SI (1/m) and shown in 1/cm;
  * for model fits, `<name>` with `<name>_err`, or `params`/`errors` records, become one row per free parameter.
  */
 export function fitRows(cell: FitCell, result: CellResult | undefined, unitOf: (name: string) => string | undefined): FitRow[] {
@@ -79,7 +80,7 @@ export function fitRows(cell: FitCell, result: CellResult | undefined, unitOf: (
     used.add('params').add('parameters').add('errors').add('stderr')
   }
 
-  const order = ['Eg', 'Eu', 'B', 'alpha0']
+  const order = ['Eg', 'Eu', 'B', 'alpha0', 'E0']
   const keys = [...order.filter((k) => k in value), ...Object.keys(value).filter((k) => !order.includes(k))]
   for (const key of keys) {
     if (used.has(key) || key.endsWith('_err')) continue

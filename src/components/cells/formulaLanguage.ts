@@ -29,7 +29,7 @@ export const KEYWORDS = new Set(['and', 'or', 'not', 'in'])
 /** Fit outputs by method, used before the fit has a result. */
 const FIT_OUTPUTS: Record<string, string[]> = {
   tauc: ['Eg', 'Eg_err', 'B', 'r2', 'n'],
-  urbach: ['Eu', 'Eu_err', 'alpha0', 'r2', 'n'],
+  urbach: ['Eu', 'Eu_err', 'alpha0', 'E0', 'r2', 'n'],
   model: ['chi2'],
 }
 
