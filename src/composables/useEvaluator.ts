@@ -75,6 +75,15 @@ export function useEvaluator(cells: Y.Array<CellMap>, store: SheetStore, title: 
         store.catalog = message.catalog
         store.engineVersion = message.engine
         break
+      case 'partial': {
+        // cells done before a long sweep or fit of the batch in flight: shown now, no longer stale
+        const results = unpackResults(message.results)
+        store.applyResults(results, false)
+        const done = results.map((r) => r.id).filter((id): id is string => !!id && (staleUntil.get(id) ?? 0) <= message.seq)
+        for (const id of done) staleUntil.delete(id)
+        store.clearStale(done)
+        break
+      }
       case 'progress':
         store.setProgress(message.id, message.fraction)
         break

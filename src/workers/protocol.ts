@@ -36,6 +36,11 @@ export type FromWorker =
    * page drops results of cells that are gone; otherwise `results` holds only the recomputed cells.
    */
   | { type: 'results'; seq: number; complete: boolean; results: CellResult[]; recomputed: string[]; ms: number }
+  /**
+   * Early results of a batch that is still running: the cells computed before a long sweep or fit started. Only the
+   * cells listed are done; the rest of the batch follows in `results`.
+   */
+  | { type: 'partial'; seq: number; results: CellResult[] }
   /** A long sweep or fit reporting how far it is (0–1). */
   | { type: 'progress'; seq: number; id: string; fraction: number }
   /** The engine itself failed (a bug, not a cell error): the page reloads the worker and says so. */

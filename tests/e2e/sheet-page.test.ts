@@ -93,6 +93,43 @@ describe('the sheet page', () => {
     expect((await plottedNames(page, 'gaps')).filter((n) => n.startsWith('Eg = '))).toHaveLength(60)
   })
 
+  it('shows an edited formula’s new result while a 2,000-step sweep that reads it is still computing', async () => {
+    const editor = await e2e.newBrowser({ label: 'editor' })
+    const page = editor.page
+    await signIn(page, e2e.server.url, DEMO.editor)
+    await openLive(page, await createSheet(page, 'Formula above a long sweep', [
+      { kind: 'parameter', name: 'Eg', value: 1.5, unit: 'eV', min: 1, max: 2 },
+      { kind: 'formula', name: 'Ebig', source: 'grid(1*eV, 3*eV, 20000)', unit: 'eV' },
+      { kind: 'formula', name: 'k', source: '2' },
+      { kind: 'formula', name: 'S', source: 'k * integrate(alpha_direct(Ebig, Eg, 1e4/cm/sqrt(eV)), Ebig) / eV' },
+      { kind: 'sweep', name: 'long', parameter: 'Eg', from: 1, to: 2, steps: 2000, unit: 'eV', outputs: ['S'] },
+    ]))
+    const result = (name: string) => card(page, name).locator('.result').innerText()
+    await expect.poll(() => result('long'), { timeout: 60_000 }).not.toMatch(/computing|Not computed/)
+    const before = await result('S')
+    // watch, in the page, for the moment S shows its new value while the sweep still shows its progress
+    await page.evaluate(() => {
+      const w = window as unknown as { early?: boolean }
+      w.early = false
+      const first = document.querySelector('.pn-cell[data-cell-name="S"] .result')?.textContent
+      const timer = setInterval(() => {
+        const s = document.querySelector('.pn-cell[data-cell-name="S"] .result')?.textContent
+        const running = !!document.querySelector('.pn-cell[data-cell-name="long"] .progress')
+        if (s !== first && s?.includes('=') && !s.includes('recomputing') && running) {
+          w.early = true
+          clearInterval(timer)
+        }
+      }, 5)
+    })
+    await card(page, 'k').locator('.cm-content').click()
+    await page.keyboard.press('End')
+    await page.keyboard.press('Backspace')
+    await page.keyboard.type('4')
+    await expect.poll(() => result('S'), { timeout: 30_000 }).not.toBe(before)
+    await expect.poll(() => result('long'), { timeout: 60_000 }).not.toMatch(/computing/)
+    expect(await page.evaluate(() => (window as unknown as { early?: boolean }).early)).toBe(true)
+  })
+
   it('writes plain tick numbers on a linear axis of a log-spaced thickness sweep (1000, 2000 …, not 0.1×10⁴)', async () => {
     const editor = await e2e.newBrowser({ label: 'editor' })
     const page = editor.page
