@@ -105,7 +105,9 @@ export function useCodeMirror(options: CodeMirrorOptions) {
       extensions.push(EditorState.readOnly.of(true), EditorView.editable.of(false))
     } else {
       extensions.push(closeBrackets())
-      if (options.completion) extensions.push(autocompletion({ override: [options.completion], icons: false, activateOnTyping: true }))
+      // interactionDelay 0: Enter right after the list changed still takes the highlighted name (the default ignores
+      // it for 75 ms and inserts a line break into the formula instead)
+      if (options.completion) extensions.push(autocompletion({ override: [options.completion], icons: false, activateOnTyping: true, interactionDelay: 0 }))
       if (options.placeholder) extensions.push(placeholderExt(options.placeholder))
     }
     view.value = new EditorView({

@@ -84,6 +84,7 @@ describe('two editors on one sheet', () => {
 
     // Mira leaves the editor: her caret leaves Tomás's screen
     await mira.page.keyboard.press('Escape')
+    await expect.poll(() => mira.page.evaluate(() => !!document.activeElement?.closest('.cm-editor')), { timeout: 10_000 }).toBe(false)
     await expect.poll(() => card(tomas.page, 'f').locator('.cm-ySelectionCaret').count(), { timeout: 10_000 }).toBe(0)
     await tomas.page.keyboard.press('Escape')
 

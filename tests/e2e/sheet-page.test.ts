@@ -106,6 +106,8 @@ describe('the sheet page', () => {
     ]))
     const result = (name: string) => card(page, name).locator('.result').innerText()
     await expect.poll(() => result('long'), { timeout: 60_000 }).not.toMatch(/computing|Not computed/)
+    // the charting library has loaded (its first load keeps the page busy for a moment)
+    await expect.poll(() => card(page, 'long').locator('.js-plotly-plot').count(), { timeout: 30_000 }).toBe(1)
     const before = await result('S')
     // watch, in the page, for the moment S shows its new value while the sweep still shows its progress
     await page.evaluate(() => {
