@@ -90,7 +90,7 @@ describe('two editors on one sheet', () => {
           await mira.page.keyboard.press('Escape')
           return mira.page.evaluate(() => !!document.activeElement?.closest('.cm-editor'))
         },
-        { timeout: 10_000, intervals: [300] },
+        { timeout: 10_000, interval: 300 },
       )
       .toBe(false)
     await expect.poll(() => card(tomas.page, 'f').locator('.cm-ySelectionCaret').count(), { timeout: 10_000 }).toBe(0)
