@@ -3,9 +3,11 @@
  *   - the real collaboration server (cookie-checked upgrade, decoding and role checks, write-before-relay into SQLite
  *     with WAL and the default durability — synchronous NORMAL, safe against a killed process — compaction), and
  *   - a bare relay (the @y/websocket-server utilities: no auth, no persistence),
- * each in its own child process, alternating twice in the same run. Latency is measured per (update, receiving
- * editor) pair from the send to its arrival; p50, p99 and the ratio real / bare are printed. Target: p99 ≤ 1.25× bare.
- * Loopback only; every loop is bounded (50 editors × 40 updates per round).
+ * each in its own child process: one unmeasured warm-up round of each, then five alternating pairs of rounds in the same
+ * run, all on one seeded typing schedule. Latency is measured per (update, receiving editor) pair from the send to its
+ * arrival; p50, p99 (pooled over the measured rounds) and the ratio real / bare are printed, with each round's p99.
+ * Target: p99 ≤ 1.25× bare. COLLAB_BENCH_PROFILE=<dir> writes a CPU profile of every child server there.
+ * Loopback only; every loop is bounded (50 editors × 30 updates per round).
  *
  * The same file is the child server when started with COLLAB_BENCH_SERVER=real|bare.
  */
@@ -30,9 +32,11 @@ import { printBench, printTarget } from '../harness'
 import type { SheetFile } from '../../shared/schema/sheet'
 
 const EDITORS = 50
-const UPDATES_PER_EDITOR = 40
+const UPDATES_PER_EDITOR = 30
 const WARMUP_UPDATES = 5
 const INTERVAL_MS = 200
+/** Rounds per server (each a fresh child process). */
+const PAIRS = 5
 const SECRET_HEX = '70656e756d6272612d62656e63682d7365637265742d30313233343536373839'
 
 export interface LatencySummary {
@@ -83,6 +87,18 @@ function commitMs(file: string): number {
     return times.sort((a, b) => a - b)[100]
   } finally {
     probe.close()
+  }
+}
+
+/** mulberry32: a small seeded generator, so every run types on the same schedule. */
+function seededRandom(seed: number): () => number {
+  let a = seed >>> 0
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0
+    let t = a
+    t = Math.imul(t ^ (t >>> 15), t | 1)
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
   }
 }
 
@@ -147,7 +163,9 @@ interface Child {
 
 function startChild(kind: Kind, env: Record<string, string>): Promise<Child> {
   const self = fileURLToPath(import.meta.url)
-  const child = spawn(process.execPath, ['--import', 'tsx', self], {
+  // A V8 CPU profile of each child server when asked for (open it in Chrome's DevTools).
+  const profile = process.env.COLLAB_BENCH_PROFILE ? ['--cpu-prof', `--cpu-prof-dir=${process.env.COLLAB_BENCH_PROFILE}`] : []
+  const child = spawn(process.execPath, [...profile, '--import', 'tsx', self], {
     env: { ...process.env, ...env, COLLAB_BENCH_SERVER: kind },
     stdio: ['ignore', 'pipe', 'inherit'],
   })
@@ -217,7 +235,7 @@ interface Round {
   cpuMs: number
 }
 
-async function runRound(kind: Kind, env: Record<string, string>, sheetId: string, tokens: string[], seed: Uint8Array): Promise<Round> {
+async function runRound(kind: Kind, env: Record<string, string>, sheetId: string, tokens: string[], seed: Uint8Array, offsets: readonly number[]): Promise<Round> {
   const { child, port, cpuMs } = await startChild(kind, env)
   const sent = new Map<string, number>()
   const latencies: number[] = []
@@ -250,7 +268,7 @@ async function runRound(kind: Kind, env: Record<string, string>, sheetId: string
             if (seq < UPDATES_PER_EDITOR) setTimeout(tick, INTERVAL_MS)
             else resolve()
           }
-          setTimeout(tick, Math.random() * INTERVAL_MS)
+          setTimeout(tick, offsets[i])
         }),
     ),
   )
@@ -284,7 +302,7 @@ export default async function collabLatency(): Promise<LatencyReport> {
     const now = Date.now()
     const secret = Buffer.from(SECRET_HEX, 'hex')
     const labId = randomUUID()
-    const sheetIds = [randomUUID(), randomUUID(), randomUUID()]
+    const sheetIds = Array.from({ length: PAIRS + 2 }, () => randomUUID())
     const sheetId = sheetIds[0]
     const tokens: string[] = []
     for (let i = 0; i < EDITORS; i++) {
@@ -314,11 +332,20 @@ export default async function collabLatency(): Promise<LatencyReport> {
     const bare: Round[] = []
     const real: Round[] = []
     const full: Round[] = []
-    for (let round = 0; round < 2; round++) {
-      bare.push(await runRound('bare', env, sheetId, tokens, seedBytes))
-      real.push(await runRound('real', env, sheetIds[round], tokens, seedBytes))
+    // Every round types on the same schedule (each editor's start offset within the first interval, from a seeded
+    // generator), and the pairs alternate which server goes first, so a slow spell of the machine falls on both.
+    const random = seededRandom(20261202)
+    const offsets = Array.from({ length: EDITORS }, () => random() * INTERVAL_MS)
+    // One unmeasured round of each first: the first round of a run pays for cold caches, JIT and a growing database file.
+    await runRound('bare', env, sheetId, tokens, seedBytes, offsets)
+    await runRound('real', env, sheetIds[PAIRS + 1], tokens, seedBytes, offsets)
+    for (let pair = 0; pair < PAIRS; pair++) {
+      const runBare = async () => bare.push(await runRound('bare', env, sheetId, tokens, seedBytes, offsets))
+      const runReal = async () => real.push(await runRound('real', env, sheetIds[pair], tokens, seedBytes, offsets))
+      if (pair % 2 === 0) await runBare().then(runReal)
+      else await runReal().then(runBare)
     }
-    full.push(await runRound('real-full', env, sheetIds[2], tokens, seedBytes))
+    full.push(await runRound('real-full', env, sheetIds[PAIRS], tokens, seedBytes, offsets))
     const b = summarise(bare)
     const r = summarise(real)
     const n = summarise(full)
@@ -342,6 +369,8 @@ export default async function collabLatency(): Promise<LatencyReport> {
       `  ${EDITORS} editors, ${report.updatesPerSecond} updates/s in all, ${r.samples} deliveries per server (missing: bare ${b.missing}, Penumbra ${r.missing}); ` +
         `load average ${os.loadavg()[0].toFixed(1)}; one synchronous commit ${fsyncMs.toFixed(2)} ms`,
     )
+    const roundP99 = (rounds: Round[]) => rounds.map((r) => percentile(Float64Array.from(r.latencies).sort(), 99).toFixed(2)).join(', ')
+    console.log(`  p99 per round (ms): bare ${roundP99(bare)}; Penumbra ${roundP99(real)}`)
     console.log(`  server CPU per 1000 updates: bare ${b.cpuMsPer1000Updates.toFixed(0)} ms, Penumbra ${r.cpuMsPer1000Updates.toFixed(0)} ms`)
     console.log(`  Penumbra with an fsync per commit (PENUMBRA_SQLITE_SYNC=FULL), for reference: p50 ${ms(n.p50)}, p99 ${ms(n.p99)}`)
     console.log(`  ratio to the bare relay: p50 ${report.ratioP50.toFixed(2)}x, p99 ${report.ratioP99.toFixed(2)}x`)

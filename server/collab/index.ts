@@ -193,6 +193,9 @@ export function createCollab(options: CollabOptions): Collab {
         return
       }
       const conn = new CollabConnection(ws, admission, entry, registry, connCounters, limit, (c) => connections.delete(c))
+      // The first recheck falls between half and all of `recheckMs` from now, so a lab reconnecting together after a
+      // restart is not rechecked in one burst.
+      conn.lastRecheck = Date.now() - Math.random() * (recheckMs / 2)
       connections.add(conn)
     })
   }

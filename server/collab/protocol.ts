@@ -174,11 +174,16 @@ export function encodeSyncStep2(doc: Y.Doc, stateVector?: Uint8Array): Uint8Arra
   return encoding.toUint8Array(encoder)
 }
 
-export function encodeUpdateMessage(update: Uint8Array): Uint8Array {
+/**
+ * A relayed update, as a Buffer over the encoded bytes: one frame goes to every peer of the sheet, and `ws` sends a
+ * Buffer as it is (a plain Uint8Array would be wrapped once per peer).
+ */
+export function encodeUpdateMessage(update: Uint8Array): Buffer {
   const encoder = encoding.createEncoder()
   encoding.writeVarUint(encoder, MESSAGE_SYNC)
   syncProtocol.writeUpdate(encoder, update)
-  return encoding.toUint8Array(encoder)
+  const bytes = encoding.toUint8Array(encoder)
+  return Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength)
 }
 
 export function encodeAwarenessMessage(awareness: awarenessProtocol.Awareness, clients: number[]): Uint8Array {

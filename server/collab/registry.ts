@@ -66,11 +66,8 @@ interface QueuedRow {
   entry: DocEntry
   row: PendingRow
 }
-interface QueuedSend {
-  entry: DocEntry
-  peer: RegistryPeer
-  frame: Uint8Array
-}
+/** A frame for one peer, or for every peer of the document but one (`except`, the sender of a relayed update). */
+type QueuedSend = { entry: DocEntry; frame: Uint8Array } & ({ peer: RegistryPeer } | { peer: null; except: unknown })
 
 export interface RegistryCounters {
   documentsLoaded: number
@@ -250,10 +247,20 @@ export class DocumentRegistry {
     this.sends = []
     if (rows.length > 0 || sends.length > 0) this.counters.flushes++
     const stored = this.commit(rows)
-    for (const { entry, frame, peer } of sends) {
-      if (entry.broken || !entry.peers.has(peer)) continue
-      peer.send(frame)
-      this.counters.messagesRelayed++
+    for (const send of sends) {
+      const { entry, frame, peer } = send
+      if (entry.broken) continue
+      if (peer === null) {
+        const except = 'except' in send ? send.except : undefined
+        for (const other of entry.peers.keys())
+          if (other !== except) {
+            other.send(frame)
+            this.counters.messagesRelayed++
+          }
+      } else if (entry.peers.has(peer)) {
+        peer.send(frame)
+        this.counters.messagesRelayed++
+      }
     }
     for (const entry of stored) if (entry.seqs.length >= this.options.compactEvery) this.compact(entry)
     for (const entry of this.entries.values())
@@ -360,8 +367,8 @@ export class DocumentRegistry {
       const userId = origin && typeof origin === 'object' && 'userId' in origin ? ((origin as { userId: string | null }).userId ?? null) : null
       this.queueRow(entry, update, userId)
     }
-    const frame = encodeUpdateMessage(update)
-    for (const peer of entry.peers.keys()) if (peer !== origin) this.queueSend(entry, peer, frame)
+    this.sends.push({ entry, frame: encodeUpdateMessage(update), peer: null, except: origin })
+    this.scheduleFlush()
   }
 
   private onAwarenessUpdate(entry: DocEntry, changes: { added: number[]; updated: number[]; removed: number[] }, origin: unknown): void {
@@ -369,7 +376,8 @@ export class DocumentRegistry {
     if (clients.length === 0) return
     const frame = encodeAwarenessMessage(entry.awareness, clients)
     // Everyone, the sender included: a reader's own echo is what keeps its otherwise silent link alive.
-    for (const peer of entry.peers.keys()) this.queueSend(entry, peer, frame)
+    this.sends.push({ entry, frame, peer: null, except: null })
+    this.scheduleFlush()
     if (origin !== BUS_ORIGIN && !entry.broken)
       this.options.bus.publish(this.options.instanceId, {
         type: 'awareness',

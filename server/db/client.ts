@@ -6,7 +6,7 @@ import { fileURLToPath } from 'node:url'
 import path from 'node:path'
 import * as schema from './schema'
 
-export type Db = BetterSQLite3Database<typeof schema>
+export type Db = BetterSQLite3Database<typeof schema> & { $client: Database.Database }
 export interface DbHandle {
   db: Db
   sqlite: Database.Database
