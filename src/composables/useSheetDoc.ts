@@ -6,7 +6,10 @@
  * step 1 and does not forward local updates, and every editing operation here refuses to run. The server drops
  * reader updates anyway; the client simply never tries.
  *
- * Edits made while offline stay in the document and reach the server in the sync exchange after reconnecting.
+ * The document is also kept in this browser (src/lib/localCopy.ts, one IndexedDB database per signed-in person and
+ * sheet) and loaded from there before connecting: edits made while the server is away survive a reload or a closed
+ * tab and reach the server in the sync exchange after reconnecting. `pending` counts those edits for the connection
+ * badge. For readers the kept copy is only a cache of what the server sent (see localCopy.ts).
  */
 import { onScopeDispose, ref, shallowRef } from 'vue'
 import * as Y from 'yjs'
@@ -18,13 +21,21 @@ import * as decoding from 'lib0/decoding'
 import * as encoding from 'lib0/encoding'
 import { cellToMap, cellsOf, mapToCell, metaOf, newCellId, type CellMap } from '../../shared/doc/sheetDoc'
 import type { Cell, SheetCell } from '../../shared/schema/sheet'
+import { keepPageForOffline, openLocalCopy } from '@/lib/localCopy'
+import { NO_PENDING_EDITS, noteChange, noteSent, restoredPending, type PendingEdits } from '@/lib/localCopyPending'
+import { useSessionStore } from '@/stores/session'
 
 export type ConnectionState = 'connecting' | 'online' | 'offline'
 
 export interface SheetDocOptions {
   /** True for reviewers and viewers. */
   readonly: boolean
+  /** Whose copy to keep in this browser; the signed-in person when omitted (no copy when nobody is signed in). */
+  userId?: string
 }
+
+/** How long to wait for the kept copy before connecting anyway (a browser whose storage hangs still gets the sheet). */
+const LOCAL_COPY_WAIT_MS = 3000
 
 /** The handler signature of y-websocket's message table. */
 type MessageHandler = (encoder: encoding.Encoder, decoder: decoding.Decoder, provider: WebsocketProvider, emitSynced: boolean, messageType: number) => void
@@ -86,6 +97,10 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
   const canUndo = ref(false)
   const canRedo = ref(false)
   const provider = shallowRef<WebsocketProvider | null>(null)
+  /** True once the sheet is kept in this browser (IndexedDB works and the copy is open). */
+  const keptOnDevice = ref(false)
+  /** Edits made here that have not been sent to the server yet (always none for readers). */
+  const pending = shallowRef<PendingEdits>(NO_PENDING_EDITS)
 
   const p = new WebsocketProvider(collabBase(), encodeURIComponent(sheetId), doc, {
     awareness,
@@ -111,6 +126,12 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
   })
   p.on('closed', ({ code, reason }) => {
     connection.value = 'offline'
+    if (code === 4403 || code === 4404) {
+      // the sheet is gone or no longer ours to see: its copy must not stay on this device
+      void localCopy?.clear()
+      keptOnDevice.value = false
+      pending.value = NO_PENDING_EDITS
+    }
     closedReason.value =
       reason ||
       (code === 4401
@@ -121,8 +142,58 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
             ? 'This sheet no longer exists.'
             : `The server closed the live connection (code ${code}).`)
   })
-  p.connect()
   provider.value = p
+
+  // --- the copy kept in this browser, loaded before connecting ---
+  const userId = options.userId ?? useSessionStore().user?.id ?? ''
+  const localCopy = userId ? openLocalCopy(doc, userId, sheetId, readonly ? 'read' : 'edit') : null
+  let disposed = false
+  let started = false
+  const start = () => {
+    if (started || disposed) return
+    started = true
+    if (!closedReason.value) p.connect()
+  }
+  if (localCopy) {
+    const waited = setTimeout(start, LOCAL_COPY_WAIT_MS)
+    void localCopy.ready.then(({ available, pending: stored }) => {
+      clearTimeout(waited)
+      if (disposed) return
+      keptOnDevice.value = available
+      if (available && !readonly) {
+        const restored = restoredPending(stored)
+        if (restored.count > 0) setPending({ ...pending.value, count: pending.value.count + restored.count })
+      }
+      start()
+    })
+    localCopy.onGone(() => {
+      keptOnDevice.value = false
+    })
+    keepPageForOffline()
+  } else start()
+
+  function setPending(next: PendingEdits): void {
+    const before = pending.value
+    if (next === before) return
+    pending.value = next
+    if (next.count !== before.count) localCopy?.setPending(next.count)
+  }
+  /** This person's changes while not live are kept edits; the server's and the stored copy's updates are not. */
+  doc.on('update', (_update: Uint8Array, updateOrigin: unknown) => {
+    if (readonly || updateOrigin === p || (localCopy && updateOrigin === localCopy.origin())) return
+    setPending(noteChange(pending.value, Date.now(), p.wsconnected && p.synced))
+  })
+  /** After the sync exchange the kept edits are on their way; once the socket has written them out they count as sent. */
+  let sentCheck: ReturnType<typeof setTimeout> | null = null
+  const checkSent = () => {
+    sentCheck = null
+    if (disposed || !p.wsconnected || !p.synced || pending.value.count === 0) return
+    if ((p.ws?.bufferedAmount ?? 0) > 0) sentCheck = setTimeout(checkSent, 100)
+    else setPending(noteSent(pending.value, Date.now()))
+  }
+  p.on('sync', (state: boolean) => {
+    if (state && !readonly && sentCheck === null) checkSent()
+  })
 
   const updateUndoState = () => {
     canUndo.value = undoManager.undoStack.length > 0
@@ -138,6 +209,9 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
   window.addEventListener('online', onOnline)
 
   onScopeDispose(() => {
+    disposed = true
+    if (sentCheck !== null) clearTimeout(sentCheck)
+    localCopy?.close()
     window.removeEventListener('online', onOnline)
     awarenessProtocol.removeAwarenessStates(awareness, [doc.clientID], 'left the sheet')
     undoManager.destroy()
@@ -261,6 +335,8 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     undoManager,
     provider,
     readonly,
+    keptOnDevice,
+    pending,
     connection,
     synced,
     closedReason,

@@ -3,6 +3,7 @@ import { computed, ref } from 'vue'
 import { defineStore } from 'pinia'
 import * as auth from '@/api/auth'
 import type { User } from '@/api/auth'
+import { forgetEverythingOnThisDevice, tidyLocalCopiesAtSignIn } from '@/lib/localCopyStore'
 
 export const useSessionStore = defineStore('session', () => {
   const user = ref<User | null>(null)
@@ -35,6 +36,8 @@ export const useSessionStore = defineStore('session', () => {
     const u = await auth.signIn({ email, password })
     user.value = u
     loaded.value = true
+    // sheet copies kept in this browser: drop those unused for 30 days (never blocks signing in)
+    void tidyLocalCopiesAtSignIn(u.id).catch(() => undefined)
     return u
   }
 
@@ -43,6 +46,8 @@ export const useSessionStore = defineStore('session', () => {
       await auth.signOut()
     } finally {
       user.value = null
+      // a shared lab computer: nothing of any sheet stays in this browser after signing out
+      await forgetEverythingOnThisDevice().catch(() => undefined)
     }
   }
 

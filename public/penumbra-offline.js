@@ -1,0 +1,98 @@
+/**
+ * Penumbra's offline page keeper (a service worker, registered by the sheet page through src/lib/localCopy.ts).
+ *
+ * It only helps while the server cannot be reached; whenever the server answers, its answer is used:
+ * - pages: the server's page, else the last page kept (the app is one page; the router picks the view);
+ * - /assets/… (hashed, never change): kept the first time they are fetched, then served from here;
+ * - GET /api/auth/me and GET /api/sheets/<id>: the server's answer, else the last successful answer kept, so a sheet
+ *   page reloaded while the server is away knows who is signed in and which sheet it is, and opens the sheet from the
+ *   copy kept in the browser. A 401, 403 or 404 from the server drops the kept answer.
+ * Nothing else is touched: edits travel over the websocket, other API calls fail as usual when the server is away.
+ * Signing out deletes the kept answers (cache `penumbra:answers`); the page cache holds no personal data.
+ */
+const PAGE_CACHE = 'penumbra:page'
+const ANSWERS_CACHE = 'penumbra:answers'
+const PAGE_KEY = '/'
+const REMEMBERED = /^\/api\/(auth\/me|sheets\/[^/]+)$/
+/** Addresses that are never the app's page (downloads, the developer mailbox, the websocket). */
+const NOT_PAGES = /^\/(api|dev|collab)(\/|$)/
+
+self.addEventListener('install', () => {
+  self.skipWaiting()
+})
+
+self.addEventListener('activate', (event) => {
+  event.waitUntil(self.clients.claim())
+})
+
+/** The page asks to keep the scripts it already loaded before this worker was running. */
+self.addEventListener('message', (event) => {
+  const data = event.data
+  if (!data || data.type !== 'penumbra-keep' || !Array.isArray(data.urls)) return
+  event.waitUntil(
+    (async () => {
+      const cache = await caches.open(PAGE_CACHE)
+      for (const raw of data.urls) {
+        if (typeof raw !== 'string') continue
+        const url = new URL(raw, self.location.origin)
+        if (url.origin !== self.location.origin) continue
+        const key = url.pathname === '/' ? PAGE_KEY : url.pathname
+        if (key !== PAGE_KEY && !key.startsWith('/assets/')) continue
+        if (key !== PAGE_KEY && (await cache.match(key))) continue
+        try {
+          const res = await fetch(key === PAGE_KEY ? new Request('/', { headers: { Accept: 'text/html' } }) : key)
+          if (res.ok) await cache.put(key, res)
+        } catch {
+          // the server went away meanwhile: kept next time
+        }
+      }
+    })(),
+  )
+})
+
+async function page(request) {
+  const cache = await caches.open(PAGE_CACHE)
+  try {
+    const res = await fetch(request)
+    if (res.ok && (res.headers.get('Content-Type') || '').includes('text/html')) await cache.put(PAGE_KEY, res.clone())
+    return res
+  } catch (err) {
+    const kept = await cache.match(PAGE_KEY)
+    if (kept) return kept
+    throw err
+  }
+}
+
+async function asset(request, path) {
+  const cache = await caches.open(PAGE_CACHE)
+  const kept = await cache.match(path)
+  if (kept) return kept
+  const res = await fetch(request)
+  if (res.ok) await cache.put(path, res.clone())
+  return res
+}
+
+async function answer(request, path) {
+  const cache = await caches.open(ANSWERS_CACHE)
+  try {
+    const res = await fetch(request)
+    if (res.ok) await cache.put(path, res.clone())
+    else if (res.status === 401 || res.status === 403 || res.status === 404) await cache.delete(path)
+    return res
+  } catch (err) {
+    const kept = await cache.match(path)
+    if (kept) return kept
+    throw err
+  }
+}
+
+self.addEventListener('fetch', (event) => {
+  const request = event.request
+  if (request.method !== 'GET') return
+  const url = new URL(request.url)
+  if (url.origin !== self.location.origin) return
+  if (request.mode === 'navigate') {
+    if (!NOT_PAGES.test(url.pathname)) event.respondWith(page(request))
+  } else if (url.pathname.startsWith('/assets/')) event.respondWith(asset(request, url.pathname))
+  else if (REMEMBERED.test(url.pathname)) event.respondWith(answer(request, url.pathname))
+})
