@@ -1,11 +1,12 @@
 // Two editors typing at once into one formula's Y.Text through the real server converge to one text, the server's
 // copy and the database agree, and the engine evaluates the same sheet for both.
-import { afterEach, beforeEach, describe, expect, it } from 'vitest'
+import { describe, expect, it } from 'vitest'
 import * as Y from 'yjs'
 import { cellsOf, docToSheetFile } from '../../shared/doc/sheetDoc'
 import { loadDocument } from '../../server/services/documents'
 import { evaluateSheet } from '../../shared/engine/index'
-import { connectClient, createLab, startCollabServer, until, type Client, type CollabServer, type Lab } from './support/fixture'
+import { until } from './support/fixture'
+import { useCollab } from './support/useCollab'
 
 function formulaText(doc: Y.Doc, name: string): Y.Text {
   const cell = cellsOf(doc)
@@ -16,23 +17,10 @@ function formulaText(doc: Y.Doc, name: string): Y.Text {
 }
 
 describe('collab: two editors in one formula', () => {
-  let lab: Lab
-  let server: CollabServer
-  const clients: Client[] = []
-
-  beforeEach(async () => {
-    lab = await createLab()
-    server = await startCollabServer(lab)
-  })
-  afterEach(async () => {
-    for (const c of clients.splice(0)) c.destroy()
-    await server.close()
-    lab.handle.close()
-  })
+  const t = useCollab()
 
   it('handleUpgrade() gives an editor the stored sheet on first sync', async () => {
-    const a = connectClient(server, lab.sheetId, lab.tokens.editor)
-    clients.push(a)
+    const a = t.connect('editor')
     await a.synced()
     const file = docToSheetFile(a.doc)
     expect(file.title).toBe('Edge model of film B')
@@ -41,9 +29,8 @@ describe('collab: two editors in one formula', () => {
   })
 
   it('concurrent typing from two editors converges to the same text, server copy and stored document', async () => {
-    const a = connectClient(server, lab.sheetId, lab.tokens.editor)
-    const b = connectClient(server, lab.sheetId, lab.tokens.editor2)
-    clients.push(a, b)
+    const a = t.connect('editor')
+    const b = t.connect('editor2')
     await Promise.all([a.synced(), b.synced()])
     const ta = formulaText(a.doc, 'x')
     const tb = formulaText(b.doc, 'x')
@@ -57,15 +44,14 @@ describe('collab: two editors in one formula', () => {
     await until(() => ta.length === expectedLength && tb.length === expectedLength, 'both editors to see every keystroke')
     expect(ta.toString()).toBe(tb.toString())
     expect(ta.toString()).toBe(' '.repeat(40) + 'Eg*2' + '+1'.repeat(40))
-    await server.collab.close()
-    const stored = loadDocument(lab.handle.db, lab.sheetId)
+    await t.server.collab.close()
+    const stored = loadDocument(t.lab.handle.db, t.lab.sheetId)
     expect(formulaText(stored, 'x').toString()).toBe(ta.toString())
   })
 
   it('concurrent edits of one formula give both editors the same evaluation results', async () => {
-    const a = connectClient(server, lab.sheetId, lab.tokens.editor)
-    const b = connectClient(server, lab.sheetId, lab.tokens.editor2)
-    clients.push(a, b)
+    const a = t.connect('editor')
+    const b = t.connect('editor2')
     await Promise.all([a.synced(), b.synced()])
     const ta = formulaText(a.doc, 'x')
     const tb = formulaText(b.doc, 'x')

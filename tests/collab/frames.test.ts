@@ -1,11 +1,12 @@
 // Bad frames close only the connection that sent them, with a close code and a reason; the server, the document
 // and everyone else carry on.
-import { afterEach, beforeEach, describe, expect, it } from 'vitest'
+import { beforeEach, describe, expect, it } from 'vitest'
 import * as Y from 'yjs'
 import { cellsOf } from '../../shared/doc/sheetDoc'
 import { loadDocument } from '../../server/services/documents'
 import { CLOSE } from '../../server/collab/index'
-import { connectClient, createLab, rawClient, startCollabServer, storedRows, until, type Client, type CollabServer, type Lab, type RawClient } from './support/fixture'
+import { storedRows, until, type Client } from './support/fixture'
+import { useCollab } from './support/useCollab'
 import { QUERY_AWARENESS_FRAME, appendToFormula, readServerFrame, syncFrame, syncStep1Frame } from './support/frames'
 
 function formula(doc: Y.Doc): string {
@@ -13,25 +14,14 @@ function formula(doc: Y.Doc): string {
 }
 
 describe('collab: malformed and oversize frames', () => {
-  let lab: Lab
-  let server: CollabServer
+  const t = useCollab({ rateLimit: { messageBurst: 50, messagesPerSecond: 10 } })
   let a: Client
   let b: Client
-  const raws: RawClient[] = []
 
   beforeEach(async () => {
-    lab = await createLab()
-    server = await startCollabServer(lab, { rateLimit: { messageBurst: 50, messagesPerSecond: 10 } })
-    a = connectClient(server, lab.sheetId, lab.tokens.editor)
-    b = connectClient(server, lab.sheetId, lab.tokens.editor2)
+    a = t.connect('editor')
+    b = t.connect('editor2')
     await Promise.all([a.synced(), b.synced()])
-  })
-  afterEach(async () => {
-    a.destroy()
-    b.destroy()
-    for (const r of raws.splice(0)) r.ws.terminate()
-    await server.close()
-    lab.handle.close()
   })
 
   /** After a bad frame: the two editors still exchange edits, and a fresh client still syncs. */
@@ -39,17 +29,15 @@ describe('collab: malformed and oversize frames', () => {
     const ta = cellsOf(a.doc).get(2).get('source') as Y.Text
     ta.insert(ta.length, tag)
     await until(() => formula(b.doc).endsWith(tag), `edit ${tag} to reach the other editor`)
-    const fresh = connectClient(server, lab.sheetId, lab.tokens.owner)
+    const fresh = t.connect('owner')
     await fresh.synced()
     expect(formula(fresh.doc)).toBe(formula(a.doc))
-    fresh.destroy()
     expect(a.closes).toEqual([])
     expect(b.closes).toEqual([])
   }
 
   async function sendAndClose(frame: Uint8Array | string, person: 'editor' | 'viewer' = 'editor') {
-    const raw = await rawClient(server, lab.sheetId, lab.tokens[person])
-    raws.push(raw)
+    const raw = await t.raw(person)
     raw.ws.send(frame)
     return raw.closed
   }
@@ -59,27 +47,27 @@ describe('collab: malformed and oversize frames', () => {
     const closed = await sendAndClose(new Uint8Array([0xff, 0xff, 0xff, 0xff, 0xff, 0xff, 0xff, 0xff, 0xff, 0xff, 0x13, 0x37]))
     expect(closed.code).toBe(CLOSE.malformed)
     expect(closed.reason).toMatch(/^malformed message: /)
-    expect(server.collab.stats().counters.malformedFrames).toBe(1)
+    expect(t.server.collab.stats().counters.malformedFrames).toBe(1)
     await othersCarryOn('+1')
   })
 
   it('closes a connection whose update is truncated, storing nothing from it', async () => {
-    const rows = storedRows(lab)
-    const full = syncFrame(2, appendToFormula(loadDocument(lab.handle.db, lab.sheetId), '*7'))
+    const rows = storedRows(t.lab)
+    const full = syncFrame(2, appendToFormula(loadDocument(t.lab.handle.db, t.lab.sheetId), '*7'))
     const closed = await sendAndClose(full.subarray(0, full.length - 5))
     expect(closed.code).toBe(CLOSE.malformed)
     expect(closed.reason).toMatch(/declares \d+ bytes but only \d+ follow/)
-    expect(storedRows(lab)).toBe(rows)
-    expect(formula(loadDocument(lab.handle.db, lab.sheetId))).toBe('Eg*2')
+    expect(storedRows(t.lab)).toBe(rows)
+    expect(formula(loadDocument(t.lab.handle.db, t.lab.sheetId))).toBe('Eg*2')
     await othersCarryOn('+2')
   })
 
   it('closes a connection whose well-framed update is not a Yjs update', async () => {
-    const rows = storedRows(lab)
+    const rows = storedRows(t.lab)
     const closed = await sendAndClose(syncFrame(2, new Uint8Array([5, 1, 200, 0x99, 7, 7, 7])))
     expect(closed.code).toBe(CLOSE.malformed)
     expect(closed.reason).toMatch(/malformed document update/)
-    expect(storedRows(lab)).toBe(rows)
+    expect(storedRows(t.lab)).toBe(rows)
     await othersCarryOn('+3')
   })
 
@@ -88,7 +76,7 @@ describe('collab: malformed and oversize frames', () => {
     expect((await sendAndClose(trailing)).reason).toMatch(/2 unexpected trailing bytes/)
     expect((await sendAndClose(new Uint8Array([9]))).reason).toMatch(/unknown message type 9/)
     expect((await sendAndClose(new Uint8Array([0, 5, 0]))).reason).toMatch(/unknown sync message type 5/)
-    expect(server.collab.stats().counters.malformedFrames).toBe(3)
+    expect(t.server.collab.stats().counters.malformedFrames).toBe(3)
     await othersCarryOn('+4')
   })
 
@@ -110,12 +98,12 @@ describe('collab: malformed and oversize frames', () => {
     big[0] = 0
     const closed = await sendAndClose(big)
     expect(closed.code).toBe(CLOSE.tooBig)
-    expect(server.collab.stats().counters.oversizeFrames).toBe(1)
+    expect(t.server.collab.stats().counters.oversizeFrames).toBe(1)
     await othersCarryOn('+7')
   })
 
   it('accepts an update just under the limit (a large dataset column) and relays it', async () => {
-    const doc = loadDocument(lab.handle.db, lab.sheetId)
+    const doc = loadDocument(t.lab.handle.db, t.lab.sheetId)
     const before = Y.encodeStateVector(doc)
     const values = Array.from({ length: 60_000 }, (_, i) => 300 + i * 0.01)
     const spectrum = new Y.Map<unknown>()
@@ -127,27 +115,24 @@ describe('collab: malformed and oversize frames', () => {
     const update = Y.encodeStateAsUpdate(doc, before)
     expect(update.length).toBeGreaterThan(500_000)
     expect(update.length).toBeLessThan(2 * 1024 * 1024)
-    const raw = await rawClient(server, lab.sheetId, lab.tokens.editor)
-    raws.push(raw)
+    const raw = await t.raw('editor')
     raw.ws.send(syncFrame(2, update))
     await until(() => cellsOf(b.doc).length === 5, 'the spectrum cell at the other editor', 10_000)
     expect(raw.isOpen()).toBe(true)
   })
 
   it('closes a connection that goes over its message rate with 1008, leaving the rest alone', async () => {
-    const raw = await rawClient(server, lab.sheetId, lab.tokens.viewer)
-    raws.push(raw)
+    const raw = await t.raw('viewer')
     for (let i = 0; i < 200; i++) raw.ws.send(QUERY_AWARENESS_FRAME)
     const closed = await raw.closed
     expect(closed.code).toBe(CLOSE.rateLimited)
     expect(closed.reason).toBe('too many messages; slow down')
-    expect(server.collab.stats().counters.rateLimited).toBe(1)
+    expect(t.server.collab.stats().counters.rateLimited).toBe(1)
     await othersCarryOn('+8')
   })
 
   it('answers ten sync requests in a burst and closes a connection that keeps asking (each answer is the whole document)', async () => {
-    const raw = await rawClient(server, lab.sheetId, lab.tokens.viewer)
-    raws.push(raw)
+    const raw = await t.raw('viewer')
     for (let i = 0; i < 10; i++) raw.ws.send(syncStep1Frame())
     await until(() => raw.frames.filter((f) => readServerFrame(f).type === 'sync-step2').length === 10, 'ten answers')
     expect(raw.isOpen()).toBe(true)

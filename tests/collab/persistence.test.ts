@@ -1,12 +1,13 @@
 // The update log: every accepted update is stored before it is relayed; the log is compacted as it grows and when a
 // sheet goes idle; a reload from the database gives the very same document; a refused store is never relayed.
-import { afterEach, beforeEach, describe, expect, it } from 'vitest'
+import { describe, expect, it } from 'vitest'
 import * as Y from 'yjs'
 import { cellsOf, docToSheetFile, sheetFileToDoc } from '../../shared/doc/sheetDoc'
 import { loadDocument, storedUpdates } from '../../server/services/documents'
 import { CLOSE, createMemoryBus } from '../../server/collab/index'
 import { buildDocument } from '../../server/collab/store'
-import { connectClient, createLab, DEMO_SHEET, startCollabServer, storedRows, until, type Client, type CollabServer, type Lab } from './support/fixture'
+import { DEMO_SHEET, storedRows, until } from './support/fixture'
+import { useCollab } from './support/useCollab'
 
 function formulaText(doc: Y.Doc): Y.Text {
   return cellsOf(doc).get(2).get('source') as Y.Text
@@ -22,23 +23,12 @@ function contains(a: Y.Doc, b: Y.Doc): boolean {
 }
 
 describe('collab: update log', () => {
-  let lab: Lab
-  let server: CollabServer
-  const clients: Client[] = []
-  beforeEach(async () => {
-    lab = await createLab()
-  })
-  afterEach(async () => {
-    for (const c of clients.splice(0)) c.destroy()
-    await server?.close()
-    lab.handle.close()
-  })
+  const t = useCollab({ start: false })
 
   it('compacts about every 500 rows while thousands of updates arrive, and a reload gives an identical document', async () => {
-    server = await startCollabServer(lab, { rateLimit: { messagesPerSecond: 1e6, messageBurst: 1e6 } })
-    const a = connectClient(server, lab.sheetId, lab.tokens.editor)
-    const b = connectClient(server, lab.sheetId, lab.tokens.editor2)
-    clients.push(a, b)
+    await t.start({ rateLimit: { messagesPerSecond: 1e6, messageBurst: 1e6 } })
+    const a = t.connect('editor')
+    const b = t.connect('editor2')
     await Promise.all([a.synced(), b.synced()])
     const ta = formulaText(a.doc)
     const tb = formulaText(b.doc)
@@ -51,22 +41,22 @@ describe('collab: update log', () => {
       if (i % 100 === 99) ta.delete(0, 1)
       if (i % 50 === 0) {
         await new Promise((r) => setTimeout(r, 0))
-        maxRows = Math.max(maxRows, storedRows(lab))
+        maxRows = Math.max(maxRows, storedRows(t.lab))
       }
     }
     const length = 'Eg*2'.length + N - N / 100
     await until(() => ta.length === length && tb.length === length, 'every keystroke at both editors', 20_000)
-    await until(() => server.collab.stats().counters.rowsStored >= N + N / 100, 'every update to be stored', 20_000)
+    await until(() => t.server.collab.stats().counters.rowsStored >= N + N / 100, 'every update to be stored', 20_000)
     expect(ta.toString()).toBe(tb.toString())
-    const stats = server.collab.stats()
+    const stats = t.server.collab.stats()
     expect(stats.counters.compactions).toBeGreaterThanOrEqual(5)
     // Never the whole history in the log: bounded by the compaction threshold plus one flush's batch.
     expect(maxRows).toBeLessThan(1000)
-    const stored = storedUpdates(lab.handle.db, lab.sheetId)
+    const stored = storedUpdates(t.lab.handle.db, t.lab.sheetId)
     expect(stored.uptoSeq).toBeGreaterThan(0)
     expect(stored.updates.length).toBeLessThan(500)
 
-    const reloaded = loadDocument(lab.handle.db, lab.sheetId)
+    const reloaded = loadDocument(t.lab.handle.db, t.lab.sheetId)
     expect(docToSheetFile(reloaded)).toEqual(docToSheetFile(a.doc))
     expect(Y.encodeStateVector(reloaded)).toEqual(Y.encodeStateVector(a.doc))
     expect(contains(reloaded, a.doc) && contains(a.doc, reloaded)).toBe(true)
@@ -74,42 +64,39 @@ describe('collab: update log', () => {
   })
 
   it('compacts an idle sheet, evicts it once nobody is connected, and loads it again on the next connection', async () => {
-    server = await startCollabServer(lab, { idleCompactMs: 40, evictAfterMs: 80, sweepMs: 10 })
-    const a = connectClient(server, lab.sheetId, lab.tokens.editor)
-    clients.push(a)
+    await t.start({ idleCompactMs: 40, evictAfterMs: 80, sweepMs: 10 })
+    const a = t.connect('editor')
     await a.synced()
     formulaText(a.doc).insert(0, '2*')
-    await until(() => storedRows(lab) === 1, 'the update row')
-    await until(() => storedRows(lab) === 0, 'the idle compaction')
-    expect(server.collab.stats().documents).toBe(1)
+    await until(() => storedRows(t.lab) === 1, 'the update row')
+    await until(() => storedRows(t.lab) === 0, 'the idle compaction')
+    expect(t.server.collab.stats().documents).toBe(1)
     a.destroy()
-    clients.length = 0
-    await until(() => server.collab.stats().documents === 0, 'the eviction')
-    expect(server.collab.stats().counters.evictions).toBe(1)
-    const again = connectClient(server, lab.sheetId, lab.tokens.viewer)
-    clients.push(again)
+    t.forget(a)
+    await until(() => t.server.collab.stats().documents === 0, 'the eviction')
+    expect(t.server.collab.stats().counters.evictions).toBe(1)
+    const again = t.connect('viewer')
     await again.synced()
     expect(formulaText(again.doc).toString()).toBe('2*Eg*2')
-    expect(server.collab.stats().counters.documentsLoaded).toBe(2)
+    expect(t.server.collab.stats().counters.documentsLoaded).toBe(2)
   })
 
   it('loads a sheet whose log was never compacted (10,000 rows) and compacts it right after the first answer', async () => {
     const doc = new Y.Doc()
-    Y.applyUpdate(doc, Y.encodeStateAsUpdate(loadDocument(lab.handle.db, lab.sheetId)))
+    Y.applyUpdate(doc, Y.encodeStateAsUpdate(loadDocument(t.lab.handle.db, t.lab.sheetId)))
     const rows: Uint8Array[] = []
     doc.on('update', (u: Uint8Array) => rows.push(u))
     const text = formulaText(doc)
     for (let i = 0; i < 10_000; i++) text.insert(text.length, String(i % 10))
-    const insert = lab.handle.sqlite.prepare('INSERT INTO sheet_updates (sheet_id, "update", user_id, created_at) VALUES (?, ?, NULL, 0)')
-    lab.handle.sqlite.transaction(() => rows.forEach((r) => insert.run(lab.sheetId, Buffer.from(r))))()
-    expect(storedRows(lab)).toBe(10_000)
-    server = await startCollabServer(lab)
-    const a = connectClient(server, lab.sheetId, lab.tokens.viewer)
-    clients.push(a)
+    const insert = t.lab.handle.sqlite.prepare('INSERT INTO sheet_updates (sheet_id, "update", user_id, created_at) VALUES (?, ?, NULL, 0)')
+    t.lab.handle.sqlite.transaction(() => rows.forEach((r) => insert.run(t.lab.sheetId, Buffer.from(r))))()
+    expect(storedRows(t.lab)).toBe(10_000)
+    await t.start()
+    const a = t.connect('viewer')
     await a.synced()
     expect(formulaText(a.doc).toString()).toBe(text.toString())
-    await until(() => storedRows(lab) === 0, 'the compaction of the long log')
-    expect(formulaText(loadDocument(lab.handle.db, lab.sheetId)).toString()).toBe(text.toString())
+    await until(() => storedRows(t.lab) === 0, 'the compaction of the long log')
+    expect(formulaText(loadDocument(t.lab.handle.db, t.lab.sheetId)).toString()).toBe(text.toString())
   })
 
   it('buildDocument() turns a state and a long log into the same document the edits made', () => {
@@ -126,65 +113,58 @@ describe('collab: update log', () => {
   })
 
   it('never relays an update the database refused: its sheet reloads, the clients resync, other sheets go on', async () => {
-    server = await startCollabServer(lab)
-    const other = lab.addSheet()
-    const a = connectClient(server, lab.sheetId, lab.tokens.editor)
-    const b = connectClient(server, lab.sheetId, lab.tokens.editor2)
-    const c = connectClient(server, other, lab.tokens.editor)
-    clients.push(a, b, c)
+    await t.start()
+    const other = t.lab.addSheet()
+    const a = t.connect('editor')
+    const b = t.connect('editor2')
+    const c = t.connect('editor', { sheetId: other })
     await Promise.all([a.synced(), b.synced(), c.synced()])
     // The sheet row vanishes under the live document (as if deleted without the hook): inserts now fail on the key.
-    lab.handle.sqlite.pragma('foreign_keys = ON')
-    lab.handle.sqlite.prepare('DELETE FROM sheets WHERE id = ?').run(lab.sheetId)
+    t.lab.handle.sqlite.pragma('foreign_keys = ON')
+    t.lab.handle.sqlite.prepare('DELETE FROM sheets WHERE id = ?').run(t.lab.sheetId)
     formulaText(a.doc).insert(0, 'LOST ')
     formulaText(c.doc).insert(0, 'kept ')
-    await until(() => server.collab.stats().counters.storeFailures === 1, 'the refused store')
+    await until(() => t.server.collab.stats().counters.storeFailures === 1, 'the refused store')
     await until(() => a.closes.length >= 1 && b.closes.length >= 1, 'the sheet connections to close')
     expect(a.closes[0]).toEqual({ code: CLOSE.saveFailed, reason: 'the change could not be saved; reconnecting' })
     expect(formulaText(b.doc).toString()).toBe('Eg*2')
-    await until(() => storedRows(lab, other) === 1, 'the other sheet stored')
+    await until(() => storedRows(t.lab, other) === 1, 'the other sheet stored')
     expect(c.closes).toEqual([])
   })
 
   it('changeDocument() stores a server-side change before returning and relays it to everyone connected', async () => {
-    server = await startCollabServer(lab)
-    const a = connectClient(server, lab.sheetId, lab.tokens.viewer)
-    clients.push(a)
+    await t.start()
+    const a = t.connect('viewer')
     await a.synced()
-    server.collab.changeDocument(lab.sheetId, (doc) => doc.getMap('meta').set('title', 'Edge model, annealed'), lab.userIds.owner)
-    expect(docToSheetFile(loadDocument(lab.handle.db, lab.sheetId)).title).toBe('Edge model, annealed')
-    const row = lab.handle.sqlite.prepare('SELECT user_id FROM sheet_updates WHERE sheet_id = ?').get(lab.sheetId) as { user_id: string }
-    expect(row.user_id).toBe(lab.userIds.owner)
+    t.server.collab.changeDocument(t.lab.sheetId, (doc) => doc.getMap('meta').set('title', 'Edge model, annealed'), t.lab.userIds.owner)
+    expect(docToSheetFile(loadDocument(t.lab.handle.db, t.lab.sheetId)).title).toBe('Edge model, annealed')
+    const row = t.lab.handle.sqlite.prepare('SELECT user_id FROM sheet_updates WHERE sheet_id = ?').get(t.lab.sheetId) as { user_id: string }
+    expect(row.user_id).toBe(t.lab.userIds.owner)
     await until(() => a.doc.getMap('meta').get('title') === 'Edge model, annealed', 'the change at the viewer')
   })
 
   it('two instances joined by a bus share one sheet: edits and presence cross over, each row is stored once', async () => {
     const bus = createMemoryBus()
-    server = await startCollabServer(lab, { bus, instanceId: 'one', compactEvery: 50 })
-    const second = await startCollabServer(lab, { bus, instanceId: 'two', compactEvery: 50 })
-    try {
-      const a = connectClient(server, lab.sheetId, lab.tokens.editor)
-      const b = connectClient(second, lab.sheetId, lab.tokens.editor2)
-      clients.push(a, b)
-      await Promise.all([a.synced(), b.synced()])
-      a.provider.awareness.setLocalStateField('cell', 'cx')
-      await until(() => b.provider.awareness.getStates().has(a.doc.clientID), 'presence across instances')
-      const ta = formulaText(a.doc)
-      const tb = formulaText(b.doc)
-      for (let i = 0; i < 120; i++) {
-        ta.insert(ta.length, 'a')
-        tb.insert(0, 'b')
-        if (i % 10 === 0) await new Promise((r) => setTimeout(r, 1))
-      }
-      await until(() => ta.length === 244 && tb.length === 244, 'both edits everywhere')
-      expect(ta.toString()).toBe(tb.toString())
-      const stored = server.collab.stats().counters.rowsStored + second.collab.stats().counters.rowsStored
-      expect(stored).toBe(240)
-      await second.close()
-      await server.close()
-      expect(formulaText(loadDocument(lab.handle.db, lab.sheetId)).toString()).toBe(ta.toString())
-    } finally {
-      await second.close()
+    await t.start({ bus, instanceId: 'one', compactEvery: 50 })
+    const second = await t.another({ bus, instanceId: 'two', compactEvery: 50 })
+    const a = t.connect('editor')
+    const b = t.connect('editor2', { server: second })
+    await Promise.all([a.synced(), b.synced()])
+    a.provider.awareness.setLocalStateField('cell', 'cx')
+    await until(() => b.provider.awareness.getStates().has(a.doc.clientID), 'presence across instances')
+    const ta = formulaText(a.doc)
+    const tb = formulaText(b.doc)
+    for (let i = 0; i < 120; i++) {
+      ta.insert(ta.length, 'a')
+      tb.insert(0, 'b')
+      if (i % 10 === 0) await new Promise((r) => setTimeout(r, 1))
     }
+    await until(() => ta.length === 244 && tb.length === 244, 'both edits everywhere')
+    expect(ta.toString()).toBe(tb.toString())
+    const stored = t.server.collab.stats().counters.rowsStored + second.collab.stats().counters.rowsStored
+    expect(stored).toBe(240)
+    await second.close()
+    await t.server.close()
+    expect(formulaText(loadDocument(t.lab.handle.db, t.lab.sheetId)).toString()).toBe(ta.toString())
   })
 })
