@@ -21,14 +21,20 @@ function varUint(n: number): number[] {
   return [...encoding.toUint8Array(e)]
 }
 
-/** A sync frame: message type 0 and a sync type, each optionally as a non-minimal varint, then the payload. */
-export function syncFrame(syncType: 0 | 1 | 2, payload: Uint8Array, opts: { typeBytes?: number; syncTypeBytes?: number } = {}): Uint8Array {
-  return new Uint8Array([
+/**
+ * A sync frame: message type 0, a sync type and the payload's length, each optionally as a non-minimal varint of
+ * that many bytes, then the payload.
+ */
+export function syncFrame(syncType: 0 | 1 | 2, payload: Uint8Array, opts: { typeBytes?: number; syncTypeBytes?: number; lengthBytes?: number } = {}): Uint8Array {
+  const head = [
     ...(opts.typeBytes ? nonMinimalVarUint(0, opts.typeBytes) : [0]),
     ...(opts.syncTypeBytes ? nonMinimalVarUint(syncType, opts.syncTypeBytes) : [syncType]),
-    ...varUint(payload.length),
-    ...payload,
-  ])
+    ...(opts.lengthBytes ? nonMinimalVarUint(payload.length, opts.lengthBytes) : varUint(payload.length)),
+  ]
+  const out = new Uint8Array(head.length + payload.length)
+  out.set(head)
+  out.set(payload, head.length)
+  return out
 }
 
 export function syncStep1Frame(doc: Y.Doc = new Y.Doc()): Uint8Array {

@@ -1,0 +1,249 @@
+// Odd but possible frames, decoded as the numbers they encode (never by their bytes): non-minimal varints in every
+// field, message types that only look like known ones in their low bits, a reader whose first message is a sync step
+// 2, presence for somebody else's client id or too big to keep, frames of exactly the size limit and one byte more,
+// and a writer's burst past the rate limit — each handled on its own connection while the others go on.
+import { describe, expect, it } from 'vitest'
+import * as Y from 'yjs'
+import { cellsOf } from '../../shared/doc/sheetDoc'
+import { loadDocument } from '../../server/services/documents'
+import { CLOSE, MAX_PAYLOAD } from '../../server/collab/index'
+import { MAX_AWARENESS_STATE_CHARS } from '../../server/collab/protocol'
+import { roundTrip, storedRows, until, type RawClient } from './support/fixture'
+import { QUERY_AWARENESS_FRAME, appendToFormula, awarenessFrame, readServerFrame, syncFrame } from './support/frames'
+import { useCollab } from './support/useCollab'
+
+function formula(doc: Y.Doc): string {
+  const cell = cellsOf(doc)
+    .toArray()
+    .find((m) => m.get('name') === 'x')
+  return (cell?.get('source') as Y.Text | undefined)?.toString() ?? ''
+}
+
+const received = (raw: RawClient) => raw.frames.map(readServerFrame)
+
+describe('collab: varints decoded as numbers', () => {
+  const t = useCollab()
+
+  it('answers a reader’s sync step 1 written with non-minimal varints in type, sync type and length', async () => {
+    const viewer = await t.raw('viewer')
+    const sv = Y.encodeStateVector(new Y.Doc())
+    viewer.ws.send(syncFrame(0, sv, { typeBytes: 4, syncTypeBytes: 3, lengthBytes: 5 }))
+    await until(() => received(viewer).some((f) => f.type === 'sync-step2'), 'the answer to the odd sync step 1')
+    const answer = received(viewer).find((f) => f.type === 'sync-step2') as { payload: Uint8Array }
+    const doc = new Y.Doc()
+    Y.applyUpdate(doc, answer.payload)
+    expect(formula(doc)).toBe('Eg*2')
+    expect(viewer.isOpen()).toBe(true)
+  })
+
+  it('applies an editor update whose length is a non-minimal varint, and drops the same frame from a reviewer', async () => {
+    const watcher = t.connect('editor2')
+    await watcher.synced()
+    const base = loadDocument(t.lab.handle.db, t.lab.sheetId)
+    const reviewer = await t.raw('reviewer')
+    reviewer.ws.send(syncFrame(2, appendToFormula(base, '*9'), { lengthBytes: 4, syncTypeBytes: 2 }))
+    await roundTrip(reviewer)
+    expect(t.server.collab.stats().counters.deniedUpdates).toBe(1)
+    expect(received(reviewer).filter((f) => f.type === 'denied').length).toBe(1)
+    expect(storedRows(t.lab)).toBe(0)
+    const editor = await t.raw('editor')
+    editor.ws.send(syncFrame(2, appendToFormula(base, '*3'), { lengthBytes: 4 }))
+    await until(() => formula(watcher.doc) === 'Eg*2*3', 'the editor update at the watcher')
+    expect(formula(loadDocument(t.lab.handle.db, t.lab.sheetId))).toBe('Eg*2*3')
+    expect(reviewer.isOpen() && editor.isOpen()).toBe(true)
+  })
+
+  it('closes a connection whose message type is 2^32 (0 in its low 32 bits), storing nothing', async () => {
+    const base = loadDocument(t.lab.handle.db, t.lab.sheetId)
+    const update = appendToFormula(base, '+7')
+    for (const person of ['editor', 'viewer'] as const) {
+      const raw = await t.raw(person)
+      const inner = syncFrame(2, update)
+      raw.ws.send(new Uint8Array([0x80, 0x80, 0x80, 0x80, 0x10, ...inner.subarray(1)]))
+      const closed = await raw.closed
+      expect(closed.code).toBe(CLOSE.malformed)
+      expect(closed.reason).toMatch(/unknown message type 4294967296/)
+    }
+    // Sync type 2^32 + 2 is not an update either.
+    const raw = await t.raw('editor')
+    raw.ws.send(new Uint8Array([0, 0x82, 0x80, 0x80, 0x80, 0x10, ...syncFrame(2, update).subarray(2)]))
+    expect((await raw.closed).reason).toMatch(/unknown sync message type 4294967298/)
+    expect(storedRows(t.lab)).toBe(0)
+    expect(t.server.collab.stats().counters.deniedUpdates).toBe(0)
+  })
+
+  it('closes a connection that sends an empty frame or a varint that never ends', async () => {
+    const empty = await t.raw('viewer')
+    empty.ws.send(new Uint8Array(0))
+    expect((await empty.closed).code).toBe(CLOSE.malformed)
+    const endless = await t.raw('editor')
+    endless.ws.send(new Uint8Array(Array.from({ length: 12 }, () => 0x80)))
+    expect((await endless.closed).code).toBe(CLOSE.malformed)
+    const ok = t.connect('editor2')
+    await ok.synced()
+    expect(formula(ok.doc)).toBe('Eg*2')
+  })
+})
+
+describe('collab: readers on the wire', () => {
+  const t = useCollab()
+
+  it('drops a reader’s sync step 2 sent as its very first message, answers it once, and keeps the reader', async () => {
+    const watcher = t.connect('editor')
+    await watcher.synced()
+    const base = loadDocument(t.lab.handle.db, t.lab.sheetId)
+    const viewer = await t.raw('viewer')
+    viewer.ws.send(syncFrame(1, appendToFormula(base, ' first')))
+    viewer.ws.send(syncFrame(1, appendToFormula(base, ' second')))
+    await roundTrip(viewer)
+    expect(received(viewer).filter((f) => f.type === 'denied')).toEqual([{ type: 'denied', reason: 'your role (viewer) may read this sheet but not change it' }])
+    expect(t.server.collab.stats().counters.deniedUpdates).toBe(2)
+    expect(storedRows(t.lab)).toBe(0)
+    expect(formula(watcher.doc)).toBe('Eg*2')
+    // The sync step 2 the reader got back carries the document without its change.
+    const answer = received(viewer).find((f) => f.type === 'sync-step2') as { payload: Uint8Array }
+    const doc = new Y.Doc()
+    Y.applyUpdate(doc, answer.payload)
+    expect(formula(doc)).toBe('Eg*2')
+    expect(viewer.isOpen()).toBe(true)
+  })
+
+  it('echoes a reader’s own presence back to it (what keeps a silent reader’s link alive), renewals included', async () => {
+    const viewer = await t.raw('viewer')
+    viewer.ws.send(awarenessFrame([{ clientId: 5151, clock: 1, state: { cell: 'cx' } }]))
+    await until(() => received(viewer).some((f) => f.type === 'awareness' && f.clients.some((c) => c.clientId === 5151 && c.clock === 1)), 'the echo')
+    // The stock client renews the same state every 15 s with a higher clock.
+    viewer.ws.send(awarenessFrame([{ clientId: 5151, clock: 2, state: { cell: 'cx' } }]))
+    await until(() => received(viewer).some((f) => f.type === 'awareness' && f.clients.some((c) => c.clientId === 5151 && c.clock === 2)), 'the renewal echo')
+    expect(viewer.isOpen()).toBe(true)
+  })
+
+  it('lets a reader speak only for the first client id it announced: a second id, even a free one, is refused', async () => {
+    const editor = t.connect('editor')
+    // A state at clock 0 (the stock client's initial {}) is ignored by y-protocols everywhere: set one at clock 1.
+    editor.provider.awareness.setLocalStateField('cell', 'cx')
+    await editor.synced()
+    const viewer = await t.raw('viewer')
+    viewer.ws.send(awarenessFrame([{ clientId: 7001, clock: 1, state: { cell: 'cd' } }]))
+    await until(() => editor.provider.awareness.getStates().has(7001), 'the reader presence at the editor')
+    viewer.ws.send(awarenessFrame([{ clientId: 7002, clock: 1, state: { cell: 'cEg' } }]))
+    // Removing somebody else's presence is refused too.
+    viewer.ws.send(awarenessFrame([{ clientId: editor.doc.clientID, clock: 1_000_000, state: null }]))
+    await roundTrip(viewer)
+    expect(t.server.collab.stats().counters.awarenessRefused).toBe(2)
+    expect(editor.provider.awareness.getStates().has(7002)).toBe(false)
+    viewer.ws.send(QUERY_AWARENESS_FRAME)
+    await until(
+      () => received(viewer).some((f) => f.type === 'awareness' && f.clients.some((c) => c.clientId === editor.doc.clientID && c.state !== null)),
+      'the editor presence, still there',
+    )
+    expect(viewer.isOpen()).toBe(true)
+  })
+
+  it('closes a connection whose presence is too big or not a JSON object, and only that one', async () => {
+    const editor = t.connect('editor')
+    await editor.synced()
+    const big = await t.raw('viewer')
+    big.ws.send(awarenessFrame([{ clientId: 8001, clock: 1, state: { note: 'x'.repeat(MAX_AWARENESS_STATE_CHARS) } }]))
+    const bigClosed = await big.closed
+    expect(bigClosed.code).toBe(CLOSE.malformed)
+    expect(bigClosed.reason).toMatch(/awareness state of \d+ characters/)
+
+    const notJson = await t.raw('reviewer')
+    const inner = [1, 0x81, 0x3f, 1, 3, ...new TextEncoder().encode('{x:')]
+    notJson.ws.send(new Uint8Array([1, inner.length, ...inner]))
+    expect((await notJson.closed).reason).toMatch(/not JSON/)
+
+    const list = await t.raw('viewer')
+    list.ws.send(awarenessFrame([{ clientId: 8003, clock: 1, state: [1, 2] }]))
+    expect((await list.closed).reason).toMatch(/object or null/)
+
+    expect(editor.provider.awareness.getStates().has(8001)).toBe(false)
+    expect(editor.closes).toEqual([])
+    ;(cellsOf(editor.doc).get(2).get('source') as Y.Text).insert(0, '2*')
+    await until(() => storedRows(t.lab) === 1, 'the editor to go on')
+  })
+})
+
+/** A document update that, framed as a sync update message, is exactly `size` bytes long. */
+function updateFramedAs(size: number): Uint8Array {
+  let pad = size - 64
+  for (let i = 0; i < 8; i++) {
+    const doc = new Y.Doc()
+    doc.getMap('meta').set('pad', 'p'.repeat(pad))
+    const frame = syncFrame(2, Y.encodeStateAsUpdate(doc))
+    if (frame.length === size) return frame
+    pad += size - frame.length
+  }
+  throw new Error(`could not build a frame of ${size} bytes`)
+}
+
+describe('collab: the size limit', () => {
+  const t = useCollab()
+
+  it(`accepts an update framed in exactly maxPayload (${MAX_PAYLOAD} bytes), stores and relays it`, async () => {
+    const watcher = t.connect('editor2')
+    await watcher.synced()
+    const editor = await t.raw('editor')
+    const frame = updateFramedAs(MAX_PAYLOAD)
+    expect(frame.length).toBe(MAX_PAYLOAD)
+    editor.ws.send(frame)
+    await until(() => typeof watcher.doc.getMap('meta').get('pad') === 'string', 'the padded update at the watcher', 15_000)
+    expect((watcher.doc.getMap('meta').get('pad') as string).length).toBeGreaterThan(MAX_PAYLOAD - 64)
+    expect(storedRows(t.lab)).toBe(1)
+    expect(editor.isOpen()).toBe(true)
+  })
+
+  it('closes with 1009 a frame of maxPayload + 1 bytes, stores nothing, and the others go on', async () => {
+    const watcher = t.connect('editor2')
+    await watcher.synced()
+    const editor = await t.raw('editor')
+    editor.ws.send(updateFramedAs(MAX_PAYLOAD + 1))
+    const closed = await editor.closed
+    expect(closed.code).toBe(CLOSE.tooBig)
+    expect(t.server.collab.stats().counters.oversizeFrames).toBe(1)
+    expect(storedRows(t.lab)).toBe(0)
+    ;(cellsOf(watcher.doc).get(2).get('source') as Y.Text).insert(0, '2*')
+    await until(() => storedRows(t.lab) === 1, 'the watcher edit stored')
+    expect(watcher.closes).toEqual([])
+  })
+
+  it('closes with 1009 a message sent in fragments that add up to more than maxPayload', async () => {
+    const editor = await t.raw('editor')
+    const part = new Uint8Array(MAX_PAYLOAD / 2)
+    editor.ws.send(part, { fin: false })
+    editor.ws.send(part, { fin: false })
+    editor.ws.send(new Uint8Array(16), { fin: true })
+    expect((await editor.closed).code).toBe(CLOSE.tooBig)
+    const other = t.connect('viewer')
+    await other.synced()
+  })
+})
+
+describe('collab: a writer over its rate limit', () => {
+  const t = useCollab({ rateLimit: { messageBurst: 20, messagesPerSecond: 0.5 } })
+
+  it('stores and relays exactly the updates before the limit, closes the writer with 1008, and a reload matches', async () => {
+    const watcher = t.connect('editor2')
+    await watcher.synced()
+    const editor = await t.raw('editor')
+    // One local document typing 40 keystrokes, each sent as its own update the moment it is made.
+    const local = loadDocument(t.lab.handle.db, t.lab.sheetId)
+    const frames: Uint8Array[] = []
+    local.on('update', (u: Uint8Array) => frames.push(syncFrame(2, u)))
+    const text = cellsOf(local).get(2).get('source') as Y.Text
+    for (let i = 0; i < 40; i++) text.insert(text.length, String.fromCharCode(97 + (i % 26)))
+    for (const f of frames) editor.ws.send(f)
+    const closed = await editor.closed
+    expect(closed).toEqual({ code: CLOSE.rateLimited, reason: 'too many messages; slow down' })
+    // The burst allows 20 messages (a little refill at 0.5/s while they arrive may add one).
+    await until(() => formula(watcher.doc).length >= 'Eg*2'.length + 20, 'the accepted keystrokes at the watcher')
+    const accepted = formula(watcher.doc).length - 'Eg*2'.length
+    expect(accepted).toBeGreaterThanOrEqual(20)
+    expect(accepted).toBeLessThanOrEqual(21)
+    expect(formula(watcher.doc)).toBe('Eg*2' + 'abcdefghijklmnopqrstuvwxyzabcdefghijklmn'.slice(0, accepted))
+    expect(storedRows(t.lab)).toBe(accepted)
+    expect(formula(loadDocument(t.lab.handle.db, t.lab.sheetId))).toBe(formula(watcher.doc))
+    expect(watcher.closes).toEqual([])
+  })
+})
