@@ -18,6 +18,9 @@ export interface FitRow {
 
 const ENERGY_KEYS = new Set(['Eg', 'Eu', 'E0'])
 
+/** A standard error below this fraction of the value is floating-point noise of an exact fit. */
+const EXACT_RELATIVE = 1e-9
+
 /**
  * A value with its standard error, the error to two significant figures; very large or small values share one
  * power of ten: `(6.724 ± 0.0095)e-6` reads better than a row of zeros.
@@ -25,6 +28,8 @@ const ENERGY_KEYS = new Set(['Eg', 'Eu', 'E0'])
 export function valueWithError(x: number, err: number | undefined): string {
   if (err === undefined || !Number.isFinite(err) || err <= 0 || !Number.isFinite(x)) return formatNumber(x, 5)
   const a = Math.abs(x)
+  // data that lie exactly on the model (a sheet fitting its own formula): the error is rounding noise, not a spread
+  if (err < a * EXACT_RELATIVE) return `${formatNumber(x, 6)} ± 0 (exact fit)`
   if (a !== 0 && (a >= 1e5 || a < 1e-3)) {
     const exp = Math.floor(Math.log10(a))
     const m = x / 10 ** exp
@@ -35,9 +40,33 @@ export function valueWithError(x: number, err: number | undefined): string {
   return formatWithError(x, err)
 }
 
+const SUPERSCRIPT: Record<string, string> = { '-': '⁻', '0': '⁰', '1': '¹', '2': '²', '3': '³', '4': '⁴', '5': '⁵', '6': '⁶', '7': '⁷', '8': '⁸', '9': '⁹' }
+
+/** `m`, -2 → "m⁻²"; `J`, -0.5 → "J^(−1/2)"; a power of 1 is the bare unit, a power of 0 nothing. */
+function power(unit: string, p: number): string {
+  if (p === 0) return ''
+  if (p === 1) return unit
+  if (Number.isInteger(p)) return unit + [...String(p)].map((ch) => SUPERSCRIPT[ch] ?? ch).join('')
+  for (let den = 2; den <= 12; den++) {
+    const num = Math.round(p * den)
+    if (Math.abs(num / den - p) < 1e-9) return `${unit}^(${num < 0 ? '−' : ''}${Math.abs(num)}/${den})`
+  }
+  return `${unit}^${p}`
+}
+
+/**
+ * The SI unit of a Tauc slope B, from (αE)^(1/r) = B·(E − Eg) with α in 1/m and E in J: J^(1/r − 1)·m^(−1/r).
+ * r = 1/2 (direct allowed) gives "J·m⁻²", r = 2 (indirect allowed) "J^(−1/2)·m^(−1/2)".
+ */
+export function taucSlopeUnit(r: number): string {
+  if (!Number.isFinite(r) || r <= 0) return ''
+  const inv = 1 / r
+  return [power('J', inv - 1), power('m', -inv)].filter(Boolean).join('·')
+}
+
 const MEANING: Record<string, string> = {
   Eg: 'band gap (intercept of the Tauc line)',
-  B: 'slope of the Tauc line (SI)',
+  B: 'slope of the Tauc line, with α in 1/m and E in J',
   Eu: 'Urbach energy (width of the exponential tail)',
   alpha0: 'α of the tail at E0',
   E0: 'reference energy of α₀ (top of the window)',
@@ -102,7 +131,7 @@ export function fitRows(cell: FitCell, result: CellResult | undefined, unitOf: (
     } else if (key === 'chi2' || key === 'reducedChi2') {
       rows.push({ quantity: key === 'chi2' ? 'χ²' : 'reduced χ²', meaning: MEANING[key], value: formatNumber(v), unit: '' })
     } else {
-      push(key, v, err, key === 'B' ? 'SI' : '')
+      push(key, v, err, key === 'B' && cell.method === 'tauc' ? taucSlopeUnit(cell.r ?? 0.5) : '')
     }
   }
   if (typeof value.converged === 'boolean' && !value.converged) {

@@ -1,9 +1,17 @@
 /** How results read on a card: a number with its unit, an array as length and range, a blocked input by name. */
 import { formatNumber, formatWithError } from '../../../shared/plot/format'
-import { prettyUnit } from '../../../shared/plot/units'
+import { prettyUnit as plotUnit } from '../../../shared/plot/units'
 import type { CellResult } from '../../../shared/schema/result'
 
-export { formatNumber, formatWithError, prettyUnit }
+export { formatNumber, formatWithError }
+
+/**
+ * A unit as a card shows it: the figures' pretty form (`1/cm` → "cm⁻¹", `um` → "µm"), and a product written with a
+ * centred dot, as in print: the SI unit `1/(m^3*s)` of a cell without a display unit → "1/(m³·s)".
+ */
+export function prettyUnit(unit: string | undefined): string {
+  return plotUnit(unit).replace(/\s*\*\s*/g, '·')
+}
 
 export interface ArraySummary {
   length: number

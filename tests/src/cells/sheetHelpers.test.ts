@@ -1,8 +1,8 @@
 import { describe, expect, it } from 'vitest'
 import { dependentsOf, referencedNames } from '../../../src/components/sheet/references'
 import { copyName, freeName, newCell } from '../../../src/components/sheet/newCells'
-import { fitCautions, fitRows, valueWithError } from '../../../src/components/cells/fitReport'
-import { blockedInput, sentence, summarizeArray } from '../../../src/components/cells/resultFormat'
+import { fitCautions, fitRows, taucSlopeUnit, valueWithError } from '../../../src/components/cells/fitReport'
+import { blockedInput, prettyUnit, sentence, summarizeArray } from '../../../src/components/cells/resultFormat'
 import type { FitCell, SheetCell } from '../../../shared/schema/sheet'
 import type { CellResult } from '../../../shared/schema/result'
 
@@ -70,6 +70,11 @@ describe('result formatting', () => {
     expect(valueWithError(6.7238e-6, 9.5e-9)).toBe('(6.7238 ± 0.0095)e-6')
   })
 
+  it('valueWithError(x, err) says "exact fit" when the error is rounding noise below 1e-9 of the value', () => {
+    expect(valueWithError(7.49490371e15, 2e-3)).toBe('7.4949e15 ± 0 (exact fit)')
+    expect(valueWithError(1.5, 3.5e-17)).toBe('1.5 ± 0 (exact fit)')
+  })
+
   it('valueWithError(1.48137, 0.00213) rounds to the error’s two significant figures', () => {
     expect(valueWithError(1.48137, 0.00213)).toBe('1.4814 ± 0.0021')
   })
@@ -83,10 +88,26 @@ describe('fit report', () => {
     const rows = fitRows(fit, ok({ Eg: 1.48137, Eg_err: 0.00213, B: 3.9e-6, r2: 0.9994, n: 40 }), () => undefined)
     expect(rows.map((r) => [r.quantity, r.value, r.unit])).toEqual([
       ['Eg', '1.4814 ± 0.0021', 'eV'],
-      ['B', '3.9e-6', 'SI'],
+      ['B', '3.9e-6', 'J·m⁻²'],
       ['R²', '0.99940', ''],
       ['points', '40', ''],
     ])
+  })
+
+  it('taucSlopeUnit(r) gives the SI unit J^(1/r − 1)·m^(−1/r) of the Tauc slope for each usual exponent', () => {
+    // (αE)^(1/r) = B·(E − Eg), α in 1/m and E in J: B carries (J/m)^(1/r) per joule
+    expect(taucSlopeUnit(0.5)).toBe('J·m⁻²')
+    expect(taucSlopeUnit(2)).toBe('J^(−1/2)·m^(−1/2)')
+    expect(taucSlopeUnit(1.5)).toBe('J^(−1/3)·m^(−2/3)')
+    expect(taucSlopeUnit(3)).toBe('J^(−2/3)·m^(−1/3)')
+    expect(taucSlopeUnit(1)).toBe('m⁻¹')
+    expect(taucSlopeUnit(0)).toBe('')
+  })
+
+  it('fitRows(tauc, r = 2) shows B in the indirect slope’s unit', () => {
+    const indirect = { ...fit, r: 2 }
+    const rows = fitRows(indirect, ok({ Eg: 1.1, Eg_err: 0.01, B: 120, r2: 0.99, n: 20 }), () => undefined)
+    expect(rows.find((r) => r.quantity === 'B')?.unit).toBe('J^(−1/2)·m^(−1/2)')
   })
 
   it('fitCautions(tauc) is silent for a straight line in a window just above the gap', () => {
@@ -117,5 +138,17 @@ describe('fit report', () => {
     const notes = fitCautions(tail, { index: 7, kind: 'fit', status: 'ok', value: { Eu: 25, r2: 0.999, n: 20 } }, [...cells, tail], results)
     expect(notes).toHaveLength(1)
     expect(notes[0]).toMatch(/above the gap/)
+  })
+})
+
+describe('prettyUnit on cards', () => {
+  it('prettyUnit("1/(m^3*s)") writes the product with a centred dot and the power as a superscript', () => {
+    expect(prettyUnit('1/(m^3*s)')).toBe('1/(m³·s)')
+  })
+
+  it('prettyUnit("1/cm") and prettyUnit("mA/cm^2") read as the figures write them', () => {
+    expect(prettyUnit('1/cm')).toBe('cm⁻¹')
+    expect(prettyUnit('mA/cm^2')).toBe('mA/cm²')
+    expect(prettyUnit(undefined)).toBe('')
   })
 })
