@@ -97,8 +97,8 @@ export interface CollabServer {
   close(): Promise<void>
 }
 
-/** An http server on 127.0.0.1:0 whose `/collab/` upgrades go to a fresh collaboration server. */
-export async function startCollabServer(lab: Lab, options: Partial<CollabOptions> = {}): Promise<CollabServer> {
+/** An http server on 127.0.0.1 (port 0: any free one) whose `/collab/` upgrades go to a fresh collaboration server. */
+export async function startCollabServer(lab: Lab, options: Partial<CollabOptions> = {}, listenPort = 0): Promise<CollabServer> {
   const collab = createCollab({ db: lab.handle.db, secret: SECRET, log: () => {}, ...options })
   const server = http.createServer((_req, res) => {
     res.statusCode = 404
@@ -108,7 +108,7 @@ export async function startCollabServer(lab: Lab, options: Partial<CollabOptions
     if (req.url?.startsWith('/collab/')) void collab.handleUpgrade(req, socket, head)
     else socket.destroy()
   })
-  await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', resolve))
+  await new Promise<void>((resolve) => server.listen(listenPort, '127.0.0.1', resolve))
   const port = (server.address() as AddressInfo).port
   return {
     collab,

@@ -34,8 +34,8 @@ export interface CollabHook {
   readonly server: CollabServer
   /** Starts the test's server (when the hook was made with `start: false`) with these options. */
   start(options?: Partial<CollabOptions>): Promise<CollabServer>
-  /** Another server over the same lab (a second instance, other limits), closed after the test. */
-  another(options?: Partial<CollabOptions>): Promise<CollabServer>
+  /** Another server over the same lab (a second instance, other limits, or a restart on `port`), closed after the test. */
+  another(options?: Partial<CollabOptions>, port?: number): Promise<CollabServer>
   /** A stock y-websocket client of `person` (token) on a sheet (default the seeded one) of a server (default the test's). */
   connect(person: Person | { token: string | null }, o?: { sheetId?: string; server?: { base: string } }): Client
   /** A raw websocket of `person`, open. */
@@ -79,8 +79,8 @@ export function useCollab(options: CollabHookOptions = {}): CollabHook {
       server = await startCollabServer(need(lab, 'lab'), { ...serverOptions, ...extra })
       return server
     },
-    async another(extra = {}) {
-      const s = await startCollabServer(need(lab, 'lab'), { ...serverOptions, ...extra })
+    async another(extra = {}, port = 0) {
+      const s = await startCollabServer(need(lab, 'lab'), { ...serverOptions, ...extra }, port)
       servers.push(s)
       return s
     },
