@@ -25,7 +25,7 @@ self.addEventListener('activate', (event) => {
   event.waitUntil(self.clients.claim())
 })
 
-/** The page asks to keep the scripts it already loaded before this worker was running. */
+/** The page asks to keep the scripts and answers it already loaded before this worker was running. */
 self.addEventListener('message', (event) => {
   const data = event.data
   if (!data || data.type !== 'penumbra-keep' || !Array.isArray(data.urls)) return
@@ -44,6 +44,16 @@ self.addEventListener('message', (event) => {
           if (res.ok) await cache.put(key, res)
         } catch {
           // the server went away meanwhile: kept next time
+        }
+      }
+      const answers = await caches.open(ANSWERS_CACHE)
+      for (const path of Array.isArray(data.answers) ? data.answers : []) {
+        if (typeof path !== 'string' || !REMEMBERED.test(path)) continue
+        try {
+          const res = await fetch(path, { credentials: 'same-origin', headers: { Accept: 'application/json' } })
+          if (res.ok) await answers.put(path, res)
+        } catch {
+          // kept the next time the page asks
         }
       }
     })(),

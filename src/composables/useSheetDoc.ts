@@ -124,6 +124,10 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
   p.on('sync', (state) => {
     synced.value = state
   })
+  // an attempt that never got through (the server is away when the page opens) says "offline", not "connecting"
+  p.on('connection-close', () => {
+    if (!p.wsconnected) connection.value = 'offline'
+  })
   p.on('closed', ({ code, reason }) => {
     connection.value = 'offline'
     if (code === 4403 || code === 4404) {
@@ -169,7 +173,7 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     localCopy.onGone(() => {
       keptOnDevice.value = false
     })
-    keepPageForOffline()
+    keepPageForOffline([`/api/sheets/${encodeURIComponent(sheetId)}`])
   } else start()
 
   function setPending(next: PendingEdits): void {

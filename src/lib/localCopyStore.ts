@@ -144,9 +144,10 @@ export async function penumbraDatabases(): Promise<string[]> {
 
 /**
  * Registers the service worker that keeps the app's page and scripts in this browser, so a reload while the server is
- * away still opens the sheet from its local copy. The scripts this page already loaded are handed to it at once.
+ * away still opens the sheet from its local copy. The scripts this page already loaded, and the answers it needs
+ * again offline (who is signed in, plus `answers`, e.g. `/api/sheets/<id>`), are handed to it at once.
  */
-export function keepPageForOffline(): void {
+export function keepPageForOffline(answers: readonly string[] = []): void {
   if (typeof navigator === 'undefined' || !('serviceWorker' in navigator) || !window.isSecureContext) return
   navigator.serviceWorker
     .register(SERVICE_WORKER_URL, { scope: '/' })
@@ -157,7 +158,7 @@ export function keepPageForOffline(): void {
         .getEntriesByType('resource')
         .map((e) => e.name)
         .filter((u) => u.startsWith(`${origin}/assets/`))
-      registration.active?.postMessage({ type: 'penumbra-keep', urls: ['/', ...new Set(urls)] })
+      registration.active?.postMessage({ type: 'penumbra-keep', urls: ['/', ...new Set(urls)], answers: ['/api/auth/me', ...answers] })
     })
     .catch((err: unknown) => console.warn('Penumbra could not keep its page for offline use:', err))
 }
