@@ -11,4 +11,15 @@ describe('collab: SIGKILL during a stream of updates', () => {
     expect(r.storedAfterRestart).toBeGreaterThanOrEqual(r.relayed)
     expect(r.convergedAfterReconnect).toBe(true)
   }, 60_000)
+
+  it.each([
+    ['compacting every 25 rows', { compactEvery: 25 }],
+    ['with a viewer observing', { observer: 'viewer' as const }],
+  ])('killTrial() %s: every relayed update survives the kill', async (_label, extra) => {
+    const r = await killTrial({ typed: 400, killAfter: 150, ...extra })
+    expect(r.relayed).toBeGreaterThanOrEqual(150)
+    expect(r.lostRelayed).toBe(0)
+    expect(r.storedAfterRestart).toBeGreaterThanOrEqual(r.relayed)
+    expect(r.convergedAfterReconnect).toBe(true)
+  }, 60_000)
 })

@@ -1,6 +1,7 @@
 /**
  * A collaboration server in its own process, for kill -9 trials: opens the database file in COLLAB_DB, listens on
- * 127.0.0.1:COLLAB_PORT (0 = any) and prints `listening <port>` once ready. It installs no signal handlers: SIGKILL
+ * 127.0.0.1:COLLAB_PORT (0 = any), compacts every COLLAB_COMPACT_EVERY rows when set, and prints `listening <port>` once
+ * ready. It installs no signal handlers: SIGKILL
  * is the point.
  */
 import http from 'node:http'
@@ -20,6 +21,8 @@ const collab = createCollab({
   secret: SECRET,
   // Durability is under test here, not the rate limit: the writer types as fast as the loop allows.
   rateLimit: { messagesPerSecond: 1e6, messageBurst: 1e6 },
+  // COLLAB_COMPACT_EVERY: compact this often, so a kill can land during or between compactions.
+  ...(process.env.COLLAB_COMPACT_EVERY ? { compactEvery: Number(process.env.COLLAB_COMPACT_EVERY) } : {}),
   log: (m) => console.error(m),
 })
 const server = http.createServer((_req, res) => res.writeHead(404).end())

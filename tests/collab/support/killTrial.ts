@@ -31,9 +31,9 @@ export interface KillTrialResult {
   convergedAfterReconnect: boolean
 }
 
-function startChild(dbFile: string, port: number): Promise<{ child: ChildProcess; port: number }> {
+function startChild(dbFile: string, port: number, compactEvery?: number): Promise<{ child: ChildProcess; port: number }> {
   const child = spawn(process.execPath, ['--import', 'tsx', CHILD], {
-    env: { ...process.env, COLLAB_DB: dbFile, COLLAB_PORT: String(port) },
+    env: { ...process.env, COLLAB_DB: dbFile, COLLAB_PORT: String(port), ...(compactEvery ? { COLLAB_COMPACT_EVERY: String(compactEvery) } : {}) },
     stdio: ['ignore', 'pipe', 'pipe'],
   })
   return new Promise((resolve, reject) => {
@@ -64,7 +64,16 @@ function keystrokes(text: string): number {
   return text.startsWith('Eg*2') ? text.length - 4 : -1
 }
 
-export async function killTrial(options: { typed?: number; killAfter?: number } = {}): Promise<KillTrialResult> {
+export interface KillTrialOptions {
+  typed?: number
+  killAfter?: number
+  /** Compaction threshold of the child server (default the server's own, 500). */
+  compactEvery?: number
+  /** Who watches the relayed updates (default a second editor; a viewer gets the same relays). */
+  observer?: 'editor2' | 'viewer'
+}
+
+export async function killTrial(options: KillTrialOptions = {}): Promise<KillTrialResult> {
   const typed = options.typed ?? 400
   const killAfter = options.killAfter ?? Math.floor(typed / 2)
   const dir = mkdtempSync(path.join(os.tmpdir(), 'penumbra-kill-'))
@@ -73,11 +82,11 @@ export async function killTrial(options: { typed?: number; killAfter?: number } 
   const children: ChildProcess[] = []
   const clients: { destroy(): void }[] = []
   try {
-    const first = await startChild(dbFile, 0)
+    const first = await startChild(dbFile, 0, options.compactEvery)
     children.push(first.child)
     const base = { base: `ws://127.0.0.1:${first.port}/collab` }
     const writer = connectClient(base, lab.sheetId, lab.tokens.editor)
-    const observer = connectClient(base, lab.sheetId, lab.tokens.editor2)
+    const observer = connectClient(base, lab.sheetId, lab.tokens[options.observer ?? 'editor2'])
     clients.push(writer, observer)
     await Promise.all([writer.synced(), observer.synced()])
 
@@ -100,7 +109,7 @@ export async function killTrial(options: { typed?: number; killAfter?: number } 
     Y.applyUpdate(seen, Y.encodeStateAsUpdate(observer.doc))
     observer.destroy()
 
-    const second = await startChild(dbFile, first.port)
+    const second = await startChild(dbFile, first.port, options.compactEvery)
     children.push(second.child)
     const check = openDb(dbFile)
     let stored: Y.Doc
