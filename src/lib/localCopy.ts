@@ -11,7 +11,7 @@ import type * as Y from 'yjs'
 import { IndexeddbPersistence } from 'y-indexeddb'
 import * as idb from 'lib0/indexeddb'
 import { localCopyName } from './localCopyNames'
-import { afterHousekeeping, deleteCopy, deleteDatabase, markUsed } from './localCopyStore'
+import { afterHousekeeping, deleteCopy, deleteDatabase, forgetSheetAnswer, markUsed } from './localCopyStore'
 
 export { keepPageForOffline } from './localCopyStore'
 
@@ -42,7 +42,7 @@ export interface LocalCopy {
   origin(): unknown
   /** Stores how many edits wait on this device. */
   setPending(count: number): void
-  /** Deletes this copy (the sheet was deleted or access ended); nothing more is stored. */
+  /** Deletes this copy and the sheet's remembered metadata (the sheet was deleted or access ended); nothing more is stored. */
   clear(): Promise<void>
   /** Stops storing (page left); the copy stays. */
   close(): void
@@ -115,6 +115,7 @@ export function openLocalCopy(doc: Y.Doc, userId: string, sheetId: string, mode:
       persistence = null
       if (p) await p.destroy().catch(() => undefined)
       await deleteCopy(name)
+      await forgetSheetAnswer(sheetId)
     },
     close() {
       closed = true

@@ -97,6 +97,16 @@ async function clearAnswers(): Promise<void> {
   }
 }
 
+/** Drops the offline page keeper's remembered metadata of one sheet (deleted, or access ended). */
+export async function forgetSheetAnswer(sheetId: string): Promise<void> {
+  if (typeof caches === 'undefined') return
+  try {
+    await (await caches.open(ANSWERS_CACHE)).delete(`/api/sheets/${encodeURIComponent(sheetId)}`)
+  } catch {
+    // nothing was kept
+  }
+}
+
 /**
  * Sign-out on a shared computer: deletes every Penumbra database in this browser (all users' sheet copies) and the
  * remembered answers of the offline page. Edits still waiting in a copy are lost with it.

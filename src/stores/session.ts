@@ -55,6 +55,7 @@ export const useSessionStore = defineStore('session', () => {
   function setUser(u: User | null): void {
     user.value = u
     loaded.value = true
+    if (u) void tidyLocalCopiesAtSignIn(u.id).catch(() => undefined)
   }
 
   return { user, loaded, signedIn, ensureLoaded, signIn, signOut, setUser }
