@@ -7,8 +7,8 @@ import type { SheetCell, ParameterCell, SpectrumCell } from '../schema/sheet'
 import { CELL_KINDS, fitCell, formulaCell, parameterCell, sweepCell, toSchemaIssues } from '../schema/sheet'
 import type { Num } from '../optics/num'
 import { compileFormula, inferDims, type CompiledFormula, type InputDim } from './compile'
+import { INPUT_DIGITS, formatNumber, formatPair } from './describe'
 import type { Dim } from './dimensions'
-import { dimName } from './dimensions'
 import { CellError, messageOf } from './errors'
 import type { Budget } from './limits'
 import { CONSTANTS, builtinName } from './names'
@@ -104,9 +104,10 @@ export function prepareCell(cell: SheetCell): PreparedCell {
   const p: PreparedCell = { cell, id: cell.id, name: cell.name, kind: cell.kind, reads: [], cellsOnly: true, staticWarnings: [] }
   if (typeof cell.name === 'string' && cell.name) {
     const c = CONSTANTS.get(cell.name)
-    if (c) p.staticWarnings.push(`the name ${cell.name} shadows the built-in constant ${cell.name} (${c.doc}) in this sheet's formulas`)
+    if (c)
+      p.staticWarnings.push(`the name ${cell.name} shadows the built-in constant ${cell.name} (${c.doc.split(', ')[0]}) in this sheet's formulas; rename the cell if formulas should use the constant`)
     else if (SHADOW_UNITS.has(cell.name))
-      p.staticWarnings.push(`the name ${cell.name} shadows the unit ${cell.name} in this sheet's formulas`)
+      p.staticWarnings.push(`the name ${cell.name} shadows the unit ${cell.name} in this sheet's formulas; rename the cell if formulas should use the unit`)
     else if (isReserved(cell.name))
       p.staticWarnings.push(`the name ${cell.name} is reserved: formulas cannot refer to it; choose another name`)
   }
@@ -126,7 +127,7 @@ export function prepareCell(cell: SheetCell): PreparedCell {
         checkUnit(cell.unit)
         break
       case 'spectrum':
-        for (const [col, c] of Object.entries(cell.columns)) checkUnit(c.unit, `column ${col}`)
+        for (const [col, c] of Object.entries(cell.columns)) checkUnit(c.unit, `unit of column ${col}`)
         break
       case 'fit': {
         const names = [cell.x, cell.y]
@@ -142,7 +143,10 @@ export function prepareCell(cell: SheetCell): PreparedCell {
       case 'sweep':
         if (cell.unit) checkUnit(cell.unit, 'sweep unit')
         if (cell.scale === 'log' && !(cell.from > 0 && cell.to > 0))
-          throw new CellError(`a log sweep needs positive from and to (got from ${cell.from}, to ${cell.to})`, 'input')
+          throw new CellError(
+            `a log sweep needs from and to above zero, but it runs from ${formatNumber(cell.from, INPUT_DIGITS)} to ${formatNumber(cell.to, INPUT_DIGITS)}; make both positive or use linear steps`,
+            'input',
+          )
         p.reads = [...new Set([cell.parameter, ...cell.outputs])]
         break
       default:
@@ -157,7 +161,7 @@ export function prepareCell(cell: SheetCell): PreparedCell {
 function checkUnit(unit: string | undefined, what = 'unit'): void {
   if (unit === undefined) return
   const u = parseUnit(unit)
-  if (!u.ok) throw new CellError(`${what}: ${u.error}`, 'input')
+  if (!u.ok) throw new CellError(`the ${what} ${u.error}`, 'input')
 }
 
 /** Dimension (or record) of each bound name of a formula, for the dimension pass. */
@@ -191,19 +195,34 @@ export function inputValues(p: PreparedCell, env: Env): Value[] {
 /** SI value of a parameter cell. */
 export function parameterValue(cell: ParameterCell): { value: number; dim: Dim } {
   const u = parseUnit(cell.unit ?? '')
-  if (!u.ok) throw new CellError(`unit: ${u.error}`, 'input')
+  if (!u.ok) throw new CellError(`the unit ${u.error}`, 'input')
   return { value: cell.value * u.factor, dim: u.dim }
 }
 
 export function evaluateParameter(cell: ParameterCell): CellState {
   const { value, dim } = parameterValue(cell)
+  const warnings = cell.min === undefined && cell.max === undefined ? [] : rangeWarnings(cell)
+  return { status: 'ok', value, dim, warnings }
+}
+
+/** A parameter outside its own min…max, or with an empty range, in the cell's unit and with what to change. */
+function rangeWarnings(cell: ParameterCell): string[] {
   const warnings: string[] = []
   const unit = cell.unit ? ` ${cell.unit}` : ''
-  if (cell.min !== undefined && cell.max !== undefined && cell.min > cell.max)
-    warnings.push(`the range is empty: min ${cell.min} is above max ${cell.max}`)
-  if (cell.min !== undefined && cell.value < cell.min) warnings.push(`the value ${cell.value}${unit} is below the minimum ${cell.min}${unit}`)
-  if (cell.max !== undefined && cell.value > cell.max) warnings.push(`the value ${cell.value}${unit} is above the maximum ${cell.max}${unit}`)
-  return { status: 'ok', value, dim, warnings }
+  const { min, max } = cell
+  if (min !== undefined && max !== undefined && min > max) {
+    const [lo, hi] = formatPair(min, max)
+    warnings.push(`the range is empty: the minimum ${lo}${unit} is above the maximum ${hi}${unit}; swap them`)
+  }
+  if (min !== undefined && cell.value < min) {
+    const [v, m] = formatPair(cell.value, min)
+    warnings.push(`the value ${v}${unit} is below the minimum ${m}${unit}; raise the value or lower the minimum`)
+  }
+  if (max !== undefined && cell.value > max) {
+    const [v, m] = formatPair(cell.value, max)
+    warnings.push(`the value ${v}${unit} is above the maximum ${m}${unit}; lower the value or raise the maximum`)
+  }
+  return warnings
 }
 
 /** Runs a formula's compiled closures on its inputs' current values. */
@@ -226,7 +245,7 @@ export function evaluateSpectrum(cell: SpectrumCell): CellState {
   let length = -1
   for (const [name, col] of Object.entries(cell.columns)) {
     const u = parseUnit(col.unit)
-    if (!u.ok) throw new CellError(`column ${name}: ${u.error}`, 'input')
+    if (!u.ok) throw new CellError(`the unit of column ${name} ${u.error}`, 'input')
     const values = new Float64Array(col.values.length)
     let gaps = 0
     col.values.forEach((x, i) => {
@@ -241,9 +260,4 @@ export function evaluateSpectrum(cell: SpectrumCell): CellState {
   }
   if (fields.size === 0) warnings.push('the spectrum has no columns')
   return { status: 'ok', value: new RecordValue('spectrum', cell.name, fields), dim: null, warnings }
-}
-
-/** Describes a Num's dimension for messages: "an energy array". */
-export function describeDim(dim: Dim | null): string {
-  return dim ? dimName(dim) : 'unknown dimension'
 }

@@ -7,9 +7,9 @@
  * so a compiled formula does not depend on the sheet it sits in.
  */
 import type { Num } from '../optics/num'
-import {
-  DIMENSIONLESS, dimDiv, dimEquals, dimMul, dimName, dimPow, dimPhrase, isDimensionless, type Dim,
-} from './dimensions'
+import { ArgumentRangeError } from '../optics/broadcast'
+import { dimNoun, dimPhrase, energyAndLength, formatQuantity } from './describe'
+import { DIMENSIONLESS, dimDiv, dimEquals, dimMul, dimPow, isDimensionless, type Dim } from './dimensions'
 import { CellError } from './errors'
 import { builtinFunction, registerFunctions, type Builtin } from './functions/registry'
 import { arityProblem, flowDims } from './functions/spec'
@@ -142,9 +142,29 @@ function callBuiltin(fn: Builtin, xs: Num[], budget: Budget): Num {
     return fn.impl(xs, budget.maxElements)
   } catch (err) {
     if (err instanceof CellError) throw err
+    if (err instanceof ArgumentRangeError) throw new CellError(argumentMessage(fn, xs, err), 'value')
     const message = err instanceof Error ? err.message : String(err)
     throw new CellError(message.startsWith(fn.name) ? message : `${fn.name}: ${message}`, 'value')
   }
+}
+
+/**
+ * An argument out of its range, with the value in the usual unit of that argument's dimension: "alpha_edge: the gap
+ * Eg must be positive, but it is -1 eV". The argument is found by its name (the last word of the physics library's
+ * wording, "the gap Eg" → Eg) or else by the failing value; without a fixed dimension the number is given bare.
+ */
+function argumentMessage(fn: Builtin, xs: readonly Num[], err: ArgumentRangeError): string {
+  const key = (s: string): string => s.replace(/_/g, '').toLowerCase()
+  const word = key(err.argument.split(' ').pop() ?? '')
+  let k = fn.params.findIndex((p) => key(p) === word)
+  if (k < 0) {
+    const same = (v: number): boolean => v === err.value || (Number.isNaN(v) && Number.isNaN(err.value))
+    k = xs.findIndex((x) => (typeof x === 'number' ? err.index === undefined && same(x) : err.index !== undefined && same(x[err.index])))
+  }
+  const want = k >= 0 && k < fn.args.length ? fn.args[k] : 'any'
+  const value = formatQuantity(err.value, typeof want === 'string' ? null : want)
+  const where = err.index === undefined ? `it is ${value}` : `element ${err.index} (counting from 0) is ${value}`
+  return `${fn.name}: ${err.argument} must be ${err.requirement}, but ${where}`
 }
 
 /** What the dimension pass knows about one bound name. */
@@ -198,7 +218,7 @@ function walk(node: Node, inputs: ReadonlyMap<string, InputDim>, w: string[]): D
         case '+':
         case '-':
           if (a && b && !dimEquals(a, b)) {
-            w.push(`"${node.op}" ${node.op === '+' ? 'adds' : 'subtracts'} ${dimPhrase(b)} ${node.op === '+' ? 'to' : 'from'} ${dimPhrase(a)} (${dimName(a)} ${node.op} ${dimName(b)})`)
+            w.push(sumMismatch(node.op, a, b))
             return null
           }
           return a ?? b
@@ -206,7 +226,8 @@ function walk(node: Node, inputs: ReadonlyMap<string, InputDim>, w: string[]): D
         case 'or':
           return DIMENSIONLESS
         default:
-          if (a && b && !dimEquals(a, b)) w.push(`"${node.op}" compares ${dimPhrase(a)} with ${dimPhrase(b)} (${dimName(a)} and ${dimName(b)})`)
+          if (a && b && !dimEquals(a, b))
+            w.push(`"${node.op}" compares ${dimNoun(a)} with ${dimNoun(b)}: both sides need the same dimension${conversionHint(a, b)}`)
           return DIMENSIONLESS
       }
     }
@@ -215,14 +236,15 @@ function walk(node: Node, inputs: ReadonlyMap<string, InputDim>, w: string[]): D
       const a = walk(node.then, inputs, w)
       const b = walk(node.else, inputs, w)
       if (a && b && !dimEquals(a, b))
-        w.push(`the two branches of "? :" have different dimensions (${dimName(a)} and ${dimName(b)})`)
+        w.push(`the two branches of "? :" differ: one is ${dimNoun(a)}, the other ${dimNoun(b)}; both need the same dimension`)
       return a ?? b
     }
     case 'array': {
       let d: Dim | null = null
       for (const item of node.items) {
         const x = walk(item, inputs, w)
-        if (x && d && !dimEquals(x, d)) w.push(`the array mixes dimensions (${dimName(d)} and ${dimName(x)})`)
+        if (x && d && !dimEquals(x, d))
+          w.push(`the array [ … ] mixes ${dimNoun(d)} and ${dimNoun(x)}; all its elements need the same dimension`)
         d = d ?? x
       }
       return d
@@ -239,15 +261,29 @@ function walk(node: Node, inputs: ReadonlyMap<string, InputDim>, w: string[]): D
 }
 
 function powDim(node: Node & { t: 'binary' }, a: Dim | null, b: Dim | null, w: string[]): Dim | null {
-  if (b && !isDimensionless(b)) w.push(`the exponent of "^" should be dimensionless, not ${dimPhrase(b)}`)
+  if (b && !isDimensionless(b)) w.push(`the exponent of "^" should be a dimensionless number, not ${dimPhrase(b)}`)
   if (!a) return null
   if (isDimensionless(a)) return DIMENSIONLESS
   const p = constantValue(node.right)
   if (p === undefined) {
-    w.push(`${dimPhrase(a)} raised to a power that is not a constant number: the result's dimension is unknown`)
+    w.push(`${dimPhrase(a)} is raised to a power that is not a constant number, so the result's dimension is unknown; write the power as a number, such as ^2 or ^(1/2)`)
     return null
   }
   return dimPow(a, p)
+}
+
+/**
+ * `a + b` or `a - b` of two dimensions: "\"+\" adds energy (eV) to length (nm): both sides need the same dimension".
+ * Called only when they differ, while the dimension pass writes its warnings.
+ */
+function sumMismatch(op: '+' | '-', a: Dim, b: Dim): string {
+  const verb = op === '+' ? `adds ${dimNoun(b)} to ${dimNoun(a)}` : `subtracts ${dimNoun(b)} from ${dimNoun(a)}`
+  return `"${op}" ${verb}: both sides need the same dimension${conversionHint(a, b)}`
+}
+
+/** The usual slip between energies and wavelengths has a library conversion; say which. */
+function conversionHint(a: Dim, b: Dim): string {
+  return energyAndLength(a, b) ? ' (photon_energy(lambda) and photon_wavelength(E) convert between the two)' : ''
 }
 
 /** The value of a subtree made of numbers and arithmetic only (such as `-1/2`), else undefined. */

@@ -101,18 +101,13 @@ export function dimSymbols(a: Dim): string {
   return parts.length ? parts.join('·') : '1'
 }
 
-/** The plain name of a dimension ("energy", "1/length"), or its base-unit form when it has none. */
+/**
+ * The plain name of a dimension ("energy", "1/length"), or its base-unit form when it has none: the `dimension` of a
+ * result. Messages describe dimensions in words and usual units instead (describe.ts).
+ */
 export function dimName(a: Dim): string {
   for (const [name, d] of NAMED) if (dimEquals(a, d)) return name
   return dimSymbols(a)
-}
-
-/** "an energy", "a length", "a dimensionless number": for sentences in warnings. */
-export function dimPhrase(a: Dim): string {
-  const name = dimName(a)
-  if (name === 'dimensionless') return 'a dimensionless number'
-  if (name.includes('^') || name.includes('·') && !NAMED.some(([n]) => n === name)) return `a quantity in ${name}`
-  return /^[aeiou]/.test(name) ? `an ${name}` : `a ${name}`
 }
 
 /** Looks a dimension up by its plain name ("energy"), for declarations in the function registry. */

@@ -3,7 +3,8 @@
  * (with a warning naming both dimensions), and JSON-ready numbers (arrays as number[]).
  */
 import type { Num } from '../optics/num'
-import { dimEquals, dimName, dimPhrase, dimSymbols, isDimensionless, type Dim } from './dimensions'
+import { compactUnit, dimPhrase, prettyUnit, quantityOf, usualUnit } from './describe'
+import { dimEquals, dimName, dimSymbols, isDimensionless, type Dim } from './dimensions'
 import { parseUnit } from './units'
 
 /** Conventional SI unit symbols of named dimensions, for cells without a display unit. */
@@ -37,19 +38,34 @@ export function displayFor(unitText: string | undefined, dim: Dim | null): Displ
   if (unitText === undefined || unitText.trim() === '') return { factor: 1, unit: dim ? siUnit(dim) : undefined, warnings: [] }
   const u = parseUnit(unitText)
   if (!u.ok) {
-    return { factor: 1, unit: dim ? siUnit(dim) : undefined, warnings: [`display unit: ${u.error}; shown in SI`] }
-  }
-  if (dim && !dimEquals(dim, u.dim)) {
-    const si = siUnit(dim)
     return {
-      factor: 1,
-      unit: si,
-      warnings: [
-        `the display unit ${unitText} is ${dimPhrase(u.dim)} but the value is ${dimPhrase(dim)} (${dimName(u.dim)} vs ${dimName(dim)}); shown in SI${si ? ` (${si})` : ''}`,
-      ],
+      factor: 1, unit: dim ? siUnit(dim) : undefined,
+      warnings: [`the display unit ${u.error}; the value is shown in ${shownIn(dim)}`],
     }
   }
+  if (dim && !dimEquals(dim, u.dim)) {
+    return { factor: 1, unit: siUnit(dim), warnings: [unitMismatch(unitText, u.dim, dim)] }
+  }
   return { factor: u.factor, unit: unitText, warnings: [] }
+}
+
+/** "SI units (J)"; a dimension without a name gets its compact form ("J²") rather than base units. */
+function shownIn(dim: Dim | null): string {
+  if (!dim || isDimensionless(dim)) return 'SI units'
+  const si = quantityOf(dim) ? siUnit(dim) : compactUnit(dim)
+  return si ? `SI units (${prettyUnit(si)})` : 'SI units'
+}
+
+/**
+ * "the display unit nm is for a length, but the value is an energy: it is shown in SI units (J); choose a unit for
+ * an energy, such as eV". Written only when the dimensions differ.
+ */
+function unitMismatch(unitText: string, unitDim: Dim, dim: Dim): string {
+  const usual = usualUnit(dim)
+  const advice = isDimensionless(dim)
+    ? 'leave the unit empty or use %'
+    : `choose a unit for ${dimPhrase(dim, false)}, such as ${prettyUnit(usual)}`
+  return `the display unit ${unitText} is for ${dimPhrase(unitDim, false)}, but the value is ${dimPhrase(dim, false)}: it is shown in ${shownIn(dim)}; ${advice}`
 }
 
 const POW10 = Array.from({ length: 23 }, (_, k) => 10 ** k)
@@ -85,9 +101,14 @@ export function toJson(v: Num, factor: number, raw = false): number | number[] {
 
 /** A warning when some values are not finite numbers (they show as null in JSON). */
 export function nonFiniteWarning(v: Num): string | undefined {
-  if (typeof v === 'number') return Number.isFinite(v) ? undefined : `the value is ${v} (not a finite number)`
+  if (typeof v === 'number') {
+    if (Number.isFinite(v)) return undefined
+    return `the value is ${Number.isNaN(v) ? 'NaN (not a number)' : 'infinite'}${NON_FINITE_CAUSES}`
+  }
   let bad = 0
   for (let i = 0; i < v.length; i++) if (!Number.isFinite(v[i])) bad++
   if (bad === 0) return undefined
-  return `${bad} of ${v.length} values are not finite numbers (NaN or infinite; shown as null)`
+  return `${bad.toLocaleString('en-US')} of ${v.length.toLocaleString('en-US')} values are not finite numbers (NaN or infinite)${NON_FINITE_CAUSES}`
 }
+
+const NON_FINITE_CAUSES = '; look for a division by zero, or a logarithm or square root of a value outside its range'

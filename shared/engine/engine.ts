@@ -11,11 +11,13 @@ import {
 } from './cells'
 import { blockedMessage, CellError, cycleMessage, messageOf, unknownNamesMessage } from './errors'
 import { evaluateFit } from './fits'
-import { builtinFunction } from './functions/registry'
+import { LIBRARY, builtinFunction } from './functions/registry'
 import { Budget, DEFAULT_MAX_ELEMENTS, DEFAULT_MAX_SHEET_NUMBERS, DEFAULT_TIME_BUDGET_MS } from './limits'
+import { CONSTANTS } from './names'
 import { Graph } from './order'
 import { toCellJson, type CellJson } from './results'
 import { evaluateSweep } from './sweeps'
+import { FORMULA_UNIT_NAMES } from './units'
 import { RecordValue, type Value } from './values'
 
 export const ENGINE_VERSION = '1.0.0'
@@ -172,7 +174,7 @@ export class SheetEngine {
         const fmt = (n: number): string => n.toLocaleString('en-US')
         state = {
           status: 'error', dim: null, warnings: [],
-          error: `with this cell's ${fmt(size)} numbers the sheet would hold ${fmt(this.held - before + size)}; the limit for one sheet is ${fmt(limit)} (use shorter grids or fewer sweep steps)`,
+          error: `with this cell's ${fmt(size)} numbers the sheet would hold ${fmt(this.held - before + size)}; the limit for one sheet is ${fmt(limit)}: use shorter grids or fewer sweep steps`,
         }
         size = 0
       }
@@ -191,24 +193,20 @@ export class SheetEngine {
     if (p.kind === 'stack')
       return { status: 'ok', dim: null, warnings: ['stack cells are kept but not evaluated by this version of the engine'] }
     const first = this.graph.duplicateOf.get(p.id)
-    if (first !== undefined)
-      return fail(`the name ${p.name} is already used by cells[${this.cells.indexOf(this.byId.get(first)!)}]`)
+    if (first !== undefined) {
+      const holder = this.cells.indexOf(this.byId.get(first)!)
+      return fail(`the name ${p.name} is already used by cell ${holder + 1} (counting from the top of the sheet); give this cell another name`)
+    }
     if (p.problem) return fail(p.problem)
     const cycle = this.graph.cycle.get(p.id)
     if (cycle) return fail(cycleMessage(cycle))
     const unknown = this.graph.unknown.get(p.id)
-    if (unknown) {
-      // a library function named without its arguments reads as an unknown name: say how to call it
-      const fns = unknown.map((n) => builtinFunction(n)).filter((f) => f !== undefined)
-      let hint = fns.length ? `; ${fns.map((f) => `${f.name} is a function: call it as ${f.signature}`).join('; ')}` : ''
-      if (unknown.includes('π')) hint += '; write π as pi'
-      return fail(unknownNamesMessage(unknown) + hint)
-    }
+    if (unknown) return fail(this.unknownMessage(unknown))
     for (const d of this.graph.deps.get(p.id) ?? []) {
       const dep = this.byId.get(d)!
       if (this.states.get(d)?.status !== 'ok') return fail(blockedMessage(dep.name ?? d), 'blocked')
       if (NOT_A_VALUE.has(dep.kind) && (p.kind === 'formula' || p.kind === 'fit'))
-        return fail(`${dep.name} is a ${dep.kind} cell; formulas and fits can use parameters, formulas, spectra and fits`)
+        return fail(`${dep.name} is a ${dep.kind} cell, which has no value to compute with; formulas and fits can use parameters, formulas, spectra and fits`)
     }
     this.budget.start()
     try {
@@ -217,6 +215,22 @@ export class SheetEngine {
     } catch (err) {
       return fail(messageOf(err))
     }
+  }
+
+  /** Unknown names, with a defined name that differs only in case, and how to call a function named bare. */
+  private unknownMessage(unknown: readonly string[]): string {
+    // a library function named without its arguments reads as an unknown name: say how to call it
+    const hints = unknown.flatMap((n) => {
+      const f = builtinFunction(n)
+      return f ? [`${f.name} is a function: call it as ${f.signature}`] : []
+    })
+    if (unknown.includes('π')) hints.push('write π as pi')
+    const near = new Map<string, string>()
+    for (const n of unknown) {
+      const match = caseInsensitiveMatch(n, [...this.graph.byName.keys()]) ?? caseInsensitiveMatch(n, BUILTIN_NAMES)
+      if (match) near.set(n, match)
+    }
+    return unknownNamesMessage(unknown, near, hints)
   }
 
   private compute(p: PreparedCell, env: Env): CellState {
@@ -270,10 +284,22 @@ export class SheetEngine {
           if (s.value !== undefined) overrides.set(id, s.value)
         }
       } catch (err) {
+        // running out of time is the whole cell's problem, not this input's
+        if (err instanceof CellError && err.kind === 'time') throw err
         throw new CellError(`${p.name ?? id}: ${messageOf(err)}`, err instanceof CellError ? err.kind : 'value')
       }
     }
   }
+}
+
+/** Names of constants, units and functions, for suggestions when a name is unknown. */
+const BUILTIN_NAMES: readonly string[] = [...CONSTANTS.keys(), ...FORMULA_UNIT_NAMES, ...LIBRARY.map((f) => f.name)]
+
+/** A defined name equal to `name` but for case; single letters are left alone (a is not a slip for A, the ampere). */
+function caseInsensitiveMatch(name: string, candidates: readonly string[]): string | undefined {
+  if (name.length < 2) return undefined
+  const lower = name.toLowerCase()
+  return candidates.find((c) => c !== name && c.toLowerCase() === lower)
 }
 
 /** Numbers a cell's state holds: its value's elements, a record's fields, a sweep's table. */

@@ -16,19 +16,40 @@ export class CellError extends Error {
   }
 }
 
-/** The message of a dependent whose input failed. */
+/**
+ * The message of a dependent whose input failed (DESIGN §5's wording; the client finds the input's name after
+ * "input" to link to that cell).
+ */
 export function blockedMessage(inputName: string): string {
   return `blocked: input ${inputName} failed`
 }
 
-/** The message on each cell of a cycle: `circular reference: a → b → a`. */
+/** The message on each cell of a cycle: `circular reference: a → b → a; …`. */
 export function cycleMessage(names: readonly string[]): string {
-  return `circular reference: ${[...names, names[0]].join(' → ')}`
+  const loop = [...names, names[0]].join(' → ')
+  const advice = names.length === 1
+    ? `${names[0]} cannot use its own value; make the starting value a parameter cell`
+    : 'these cells depend on each other; remove one of the references, or make one of them a parameter cell'
+  return `circular reference: ${loop}; ${advice}`
 }
 
-/** The message for names no cell, constant, unit or function defines. */
-export function unknownNamesMessage(names: readonly string[]): string {
-  return names.length === 1 ? `unknown name: ${names[0]}` : `unknown names: ${names.join(', ')}`
+/**
+ * The message for names no cell, constant, unit or function defines. `near` maps a name to a defined name that
+ * differs only in case (`ev` for `eV`), which the message suggests; `hints` are sentences about particular names
+ * (a function named without brackets). Without either, the message says what to check.
+ */
+export function unknownNamesMessage(
+  names: readonly string[], near: ReadonlyMap<string, string> = new Map(), hints: readonly string[] = [],
+): string {
+  const head = names.length === 1 ? `unknown name: ${names[0]}` : `unknown names: ${names.join(', ')}`
+  const guessed = names.filter((n) => near.has(n))
+  const guesses = guessed.length === 1 && names.length === 1 ? [near.get(guessed[0])] : guessed.map((n) => `${near.get(n)} (for ${n})`)
+  const parts = [head]
+  if (guesses.length) parts.push(`did you mean ${guesses.join(', ')}? Names are case-sensitive`)
+  parts.push(...hints)
+  if (parts.length === 1)
+    parts.push(names.length === 1 ? `check the spelling, or add a cell named ${names[0]}` : 'check the spelling, or add cells with these names')
+  return parts.join('; ')
 }
 
 /**

@@ -13,7 +13,8 @@ import { taucFit, urbachFit, fitModel } from '../fitting/index'
 import type { Num } from '../optics/num'
 import type { CellState, Env, PreparedCell } from './cells'
 import { parameterValue } from './cells'
-import { DIMENSIONLESS, ENERGY, INV_LENGTH, dimDiv, dimEquals, dimMul, dimPhrase, dimPow, type Dim } from './dimensions'
+import { INPUT_DIGITS, MESSAGE_DIGITS, dimPhrase, formatNumber, formatPair } from './describe'
+import { DIMENSIONLESS, ENERGY, INV_LENGTH, LENGTH, dimDiv, dimEquals, dimMul, dimPow, type Dim } from './dimensions'
 import { clean, displayFor } from './display'
 import { CellError } from './errors'
 import { parseUnit } from './units'
@@ -45,8 +46,9 @@ function series(env: Env, name: string, role: string): Series {
 function energyUnit(cell: FitCell, x: Series): { unit: string; factor: number } {
   const wanted = cell.unit ?? (x.dim && dimEquals(x.dim, ENERGY) && x.unit ? x.unit : 'J')
   const u = parseUnit(wanted)
-  if (!u.ok) throw new CellError(`fit unit: ${u.error}`, 'input')
-  if (!dimEquals(u.dim, ENERGY)) throw new CellError(`the fit unit ${wanted} is ${dimPhrase(u.dim)}, not an energy`, 'input')
+  if (!u.ok) throw new CellError(`the fit unit ${u.error}`, 'input')
+  if (!dimEquals(u.dim, ENERGY))
+    throw new CellError(`the fit unit ${wanted} is for ${dimPhrase(u.dim, false)}, but fitted energies need an energy unit, such as eV or meV`, 'input')
   return { unit: wanted, factor: u.factor }
 }
 
@@ -80,13 +82,16 @@ function requirePoints(cell: FitCell, x: Series, lo: number, hi: number, needed:
     last = Math.max(last, v)
   }
   if (inside >= needed) return
-  const show = (v: number): string => String(+(v / x.factor).toPrecision(6))
+  // the window ends echo what was typed; the data's range is computed
+  const typed = (v: number): string => formatNumber(v / x.factor, INPUT_DIGITS)
+  const data = (v: number): string => formatNumber(v / x.factor, MESSAGE_DIGITS)
   const unit = x.unit ? ` ${x.unit}` : ''
-  const range = Number.isFinite(first) ? `, which run from ${show(first)} to ${show(last)}${unit}` : ''
+  const range = Number.isFinite(first) ? `, which run from ${data(first)} to ${data(last)}${unit}` : ''
+  const advice = inside === 0 && x.unit ? `: move the window onto the data (from and to are in ${x.unit}, the unit of ${cell.x})` : ': widen the window'
   throw new CellError(
     cell.from === undefined && cell.to === undefined
       ? `${cell.x} has only ${inside} finite point${inside === 1 ? '' : 's'}; ${what} needs at least ${needed}`
-      : `the window ${show(lo)} to ${show(hi)}${unit} holds ${inside} of the ${x.values.length} points of ${cell.x}${range}; ${what} needs at least ${needed}`,
+      : `the window ${typed(lo)} to ${typed(hi)}${unit} holds ${inside} of the ${x.values.length} points of ${cell.x}${range}; ${what} needs at least ${needed}${advice}`,
     'fit',
   )
 }
@@ -101,8 +106,12 @@ export function evaluateFit(p: PreparedCell, env: Env): CellState {
   const x = series(env, cell.x, 'x')
   const y = series(env, cell.y, 'y')
   const warnings: string[] = []
-  if (x.dim && !dimEquals(x.dim, ENERGY)) warnings.push(`x (${cell.x}) should be a photon energy, not ${dimPhrase(x.dim)}`)
-  if (y.dim && !dimEquals(y.dim, INV_LENGTH)) warnings.push(`y (${cell.y}) should be an absorption coefficient (1/length), not ${dimPhrase(y.dim)}`)
+  if (x.dim && !dimEquals(x.dim, ENERGY)) {
+    const hint = dimEquals(x.dim, LENGTH) ? `; fit against a formula cell photon_energy(${cell.x}) instead` : ''
+    warnings.push(`x (${cell.x}) should be a photon energy (eV), not ${dimPhrase(x.dim)}${hint}`)
+  }
+  if (y.dim && !dimEquals(y.dim, INV_LENGTH))
+    warnings.push(`y (${cell.y}) should be an absorption coefficient, an inverse length (1/cm), not ${dimPhrase(y.dim)}`)
   if (x.values.length !== y.values.length)
     throw new CellError(`x (${cell.x}) has ${x.values.length} values but y (${cell.y}) has ${y.values.length}`, 'input')
   const e = energyUnit(cell, x)
@@ -110,12 +119,12 @@ export function evaluateFit(p: PreparedCell, env: Env): CellState {
   requirePoints(cell, x, lo, hi, 3, cell.method === 'tauc' ? 'a Tauc fit' : 'an Urbach fit')
   if (cell.method === 'tauc') {
     const r = cell.r ?? 0.5
-    if (cell.r === undefined) warnings.push('r is not given: using r = 1/2 (direct allowed transition)')
+    if (cell.r === undefined) warnings.push('r is not given: using r = 1/2 (direct allowed transition); set r = 2 for an indirect allowed one')
     const f = taucFit(x.values, y.values, r, lo, hi)
     if (f.r2 < 0.99)
-      warnings.push(`the Tauc plot is not straight in this window (r² = ${f.r2.toFixed(4)}): move the window onto the linear part of the edge`)
+      warnings.push(`the Tauc plot is not straight in this window (r² = ${formatNumber(f.r2)}): move the window onto the linear part of the edge`)
     if (f.Eg > Math.min(lo, hi))
-      warnings.push('the fitted gap lies inside the window: the window probably reaches into the tail below the gap')
+      warnings.push(`the fitted gap lies inside the window (at ${formatNumber(f.Eg / e.factor)} ${e.unit}): the window probably reaches into the tail below the gap; start it above the gap`)
     const bDim = dimDiv(dimPow(dimMul(INV_LENGTH, ENERGY), 1 / r), ENERGY)
     const fields = new Map<string, Field>([
       ['Eg', field(f.Eg, ENERGY)], ['Eg_err', field(f.Eg_err, ENERGY)], ['B', field(f.B, bDim)],
@@ -129,7 +138,7 @@ export function evaluateFit(p: PreparedCell, env: Env): CellState {
   }
   const f = urbachFit(x.values, y.values, lo, hi)
   if (f.r2 < 0.98)
-    warnings.push(`ln α is not straight in this window (r² = ${f.r2.toFixed(4)}): an Urbach tail is exponential only below the gap`)
+    warnings.push(`ln α is not straight in this window (r² = ${formatNumber(f.r2)}): an Urbach tail is exponential only below the gap; move the window below the gap`)
   const fields = new Map<string, Field>([
     ['Eu', field(f.Eu, ENERGY)], ['Eu_err', field(f.Eu_err, ENERGY)], ['alpha0', field(f.alpha0, INV_LENGTH)],
     ['E0', field(f.E0, ENERGY)], ['r2', field(f.r2, DIMENSIONLESS)], ['n', field(f.n, DIMENSIONLESS)],
@@ -152,6 +161,27 @@ interface FreeParameter {
   max?: number
 }
 
+/**
+ * A free parameter's start value and bounds, checked in its cell's unit before the fit runs (the fitting library
+ * would report them in SI): finite, bounds in order, start inside them.
+ */
+function checkStartAndBounds(name: string, start: number, min: number | undefined, max: number | undefined, unitText?: string): void {
+  const unit = unitText ? ` ${unitText}` : ''
+  if (!Number.isFinite(start)) throw new CellError(`the start value of ${name} is not a finite number; give it a start value`, 'input')
+  if (min !== undefined && max !== undefined && min > max) {
+    const [lo, hi] = formatPair(min, max)
+    throw new CellError(`the bounds of ${name} are reversed: min ${lo}${unit} is above max ${hi}${unit}; swap them`, 'input')
+  }
+  const below = min !== undefined && start < min
+  if (below || (max !== undefined && start > max)) {
+    const [s, b] = formatPair(start, below ? (min as number) : (max as number))
+    throw new CellError(
+      `the start value ${s}${unit} of ${name} is ${below ? 'below its minimum' : 'above its maximum'} ${b}${unit}; start inside the bounds or widen them`,
+      'input',
+    )
+  }
+}
+
 function modelFit(cell: FitCell, env: Env): CellState {
   const model = env.cellNamed(cell.model as string)
   if (!model || model.kind !== 'formula') throw new CellError(`the model ${cell.model} must be a formula cell`, 'input')
@@ -166,6 +196,7 @@ function modelFit(cell: FitCell, env: Env): CellState {
     const { dim } = parameterValue(param)
     const u = parseUnit(param.unit ?? '')
     const factor = u.ok ? u.factor : 1
+    checkStartAndBounds(q.name, q.start ?? param.value, q.min, q.max, param.unit)
     return {
       name: q.name, id: pc.id, factor, dim, unit: param.unit, start: (q.start ?? param.value) * factor,
       min: q.min === undefined ? undefined : q.min * factor, max: q.max === undefined ? undefined : q.max * factor,
@@ -185,7 +216,7 @@ function modelFit(cell: FitCell, env: Env): CellState {
   const warnings: string[] = []
   const modelState = env.stateOf(model.id)
   if (y.dim && modelState?.dim && !dimEquals(y.dim, modelState.dim))
-    warnings.push(`the model ${cell.model} is ${dimPhrase(modelState.dim)} but y (${cell.y}) is ${dimPhrase(y.dim)}`)
+    warnings.push(`the model ${cell.model} is ${dimPhrase(modelState.dim)} but y (${cell.y}) is ${dimPhrase(y.dim)}; the model should give what y measures`)
 
   let evaluations = 0
   const evaluate = (params: number[]): Float64Array => {
@@ -199,12 +230,21 @@ function modelFit(cell: FitCell, env: Env): CellState {
     if (++evaluations % 20 === 0) env.progress(Math.min(0.99, evaluations / 400))
     return Float64Array.from(picked, (i) => m[i])
   }
-  const fit = fitModel({
-    evaluate, y: yWindow, start: free.map((f) => f.start), min: free.map((f) => f.min ?? -Infinity),
-    max: free.map((f) => f.max ?? Infinity), names: free.map((f) => f.name),
-    timeBudgetMs: Number.isFinite(env.budget.remainingMs()) ? env.budget.remainingMs() : undefined,
-  })
-  if (!fit.converged) warnings.push(`the fit stopped after ${fit.iterations} iterations without converging`)
+  let fit: ReturnType<typeof fitModel>
+  try {
+    fit = fitModel({
+      evaluate, y: yWindow, start: free.map((f) => f.start), min: free.map((f) => f.min ?? -Infinity),
+      max: free.map((f) => f.max ?? Infinity), names: free.map((f) => f.name),
+      timeBudgetMs: Number.isFinite(env.budget.remainingMs()) ? env.budget.remainingMs() : undefined,
+    })
+  } catch (err) {
+    // a fit stopped by the cell's time budget (the fitting keeps its own clock) says so in the engine's words, with
+    // the budget as set rather than the milliseconds that were left when the fit began
+    if (env.budget.remainingMs() < 2) throw env.budget.overrun()
+    throw err
+  }
+  if (!fit.converged)
+    warnings.push(`the fit stopped after ${fit.iterations} iterations without converging; try start values closer to the result, or bounds on the free parameters`)
   const shown: Record<string, unknown> = {}
   const fields = new Map<string, Field>()
   free.forEach((f, k) => {

@@ -2,6 +2,7 @@
  * Evaluation limits: largest array, formula length, syntax-tree size and a wall-clock budget per cell that is
  * checked between operations (one operation is bounded by the array limit, so a formula cannot freeze a tab).
  */
+import { formatNumber } from './describe'
 import { CellError } from './errors'
 
 export const DEFAULT_MAX_ELEMENTS = 1_000_000
@@ -38,17 +39,27 @@ export class Budget {
 
   /** Throws when the cell has used up its time. Called between operations. */
   tick(): void {
-    if (now() > this.deadline)
-      throw new CellError(`evaluation took longer than the ${formatMs(this.budgetMs)} budget for one cell and was stopped`, 'time')
+    if (now() > this.deadline) throw this.overrun()
+  }
+
+  /** The error of a cell stopped for running out of time (also for work that keeps its own clock, such as fits). */
+  overrun(): CellError {
+    return new CellError(
+      `evaluation took longer than the ${formatMs(this.budgetMs)} budget for one cell and was stopped; use shorter grids, fewer sweep steps or fewer free fit parameters`,
+      'time',
+    )
   }
 
   /** Throws before an operation would produce more elements than allowed. */
   elements(n: number, what: string): void {
     if (n > this.maxElements)
-      throw new CellError(`${what} would have ${n.toLocaleString('en-US')} elements; the limit is ${this.maxElements.toLocaleString('en-US')}`, 'limit')
+      throw new CellError(
+        `${what} would have ${n.toLocaleString('en-US')} elements; the limit for one array is ${this.maxElements.toLocaleString('en-US')}: use shorter grids`,
+        'limit',
+      )
   }
 }
 
 function formatMs(ms: number): string {
-  return ms >= 1000 ? `${ms / 1000} s` : `${ms} ms`
+  return ms >= 1000 ? `${formatNumber(ms / 1000)} s` : `${formatNumber(ms)} ms`
 }

@@ -6,7 +6,8 @@
  */
 import type { SweepCell } from '../schema/sheet'
 import type { CellState, Env, SweepTable } from './cells'
-import { dimEquals, dimName } from './dimensions'
+import { INPUT_DIGITS, dimPhrase, formatNumber, prettyUnit, usualUnit } from './describe'
+import { dimEquals } from './dimensions'
 import { clean, displayFor, toJson } from './display'
 import { CellError, messageOf } from './errors'
 import { parseUnit } from './units'
@@ -41,25 +42,28 @@ export function evaluateSweep(p: PreparedCell, env: Env): CellState {
   const cell = p.cell as SweepCell
   const param = env.cellNamed(cell.parameter)
   if (!param || param.kind !== 'parameter')
-    throw new CellError(`the swept name ${cell.parameter} must be a parameter cell`, 'input')
+    throw new CellError(`the swept name ${cell.parameter} must be a parameter cell${param ? ` (it is a ${param.kind} cell)` : ' (no cell has this name)'}`, 'input')
   const paramUnit = param.cell.kind === 'parameter' ? param.cell.unit : undefined
   const unitText = cell.unit ?? paramUnit
   const u = parseUnit(unitText ?? '')
-  if (!u.ok) throw new CellError(`sweep unit: ${u.error}`, 'input')
+  if (!u.ok) throw new CellError(`the sweep unit ${u.error}`, 'input')
   const paramDim = env.stateOf(param.id)?.dim
   if (paramDim && !dimEquals(paramDim, u.dim))
-    throw new CellError(`the sweep's unit ${unitText} is ${dimName(u.dim)} but ${cell.parameter} is ${dimName(paramDim)}`, 'input')
+    throw new CellError(
+      `the sweep's unit ${unitText} is for ${dimPhrase(u.dim, false)}, but ${cell.parameter} is ${dimPhrase(paramDim, false)}; give the sweep a unit for ${dimPhrase(paramDim, false)}${usualUnit(paramDim) ? `, such as ${prettyUnit(usualUnit(paramDim))}` : ''}, or leave it empty to use ${cell.parameter}'s unit`,
+      'input',
+    )
   const outputs = cell.outputs.map((name) => {
     const o = env.cellNamed(name)
     if (!o) throw new CellError(`output ${name} is not a cell of this sheet`, 'name')
-    if (o.kind !== 'formula') throw new CellError(`output ${name} must be a formula cell`, 'input')
+    if (o.kind !== 'formula') throw new CellError(`output ${name} must be a formula cell (it is a ${o.kind} cell)`, 'input')
     const shown = displayFor(o.cell.kind === 'formula' ? o.cell.unit : undefined, env.stateOf(o.id)?.dim ?? null)
     return { name, id: o.id, factor: shown.factor }
   })
   const chain = env.chain([param.id], outputs.map((o) => o.id))
   const warnings: string[] = []
   for (const o of outputs)
-    if (!chain.includes(o.id)) warnings.push(`${o.name} does not depend on ${cell.parameter}: its rows are all the same`)
+    if (!chain.includes(o.id)) warnings.push(`${o.name} does not depend on ${cell.parameter}: its rows are all the same; sweep a parameter that ${o.name} uses, or drop it from the outputs`)
 
   const values = sweepValues(cell)
   const table: SweepTable = { parameter: values, outputs: {} }
@@ -75,7 +79,8 @@ export function evaluateSweep(p: PreparedCell, env: Env): CellState {
     try {
       env.runChain(chain, overrides)
     } catch (err) {
-      throw new CellError(`at ${cell.parameter} = ${values[i]}${unitText ? ` ${unitText}` : ''}: ${messageOf(err)}`, 'value')
+      if (err instanceof CellError && err.kind === 'time') throw err
+      throw new CellError(`at ${cell.parameter} = ${formatNumber(values[i], INPUT_DIGITS)}${unitText ? ` ${unitText}` : ''}: ${messageOf(err)}`, 'value')
     }
     let size = 0
     outputs.forEach((o, k) => {
@@ -85,7 +90,7 @@ export function evaluateSweep(p: PreparedCell, env: Env): CellState {
     })
     if (i === 0 && size * values.length > MAX_SWEEP_NUMBERS)
       throw new CellError(
-        `the sweep table would hold ${(size * values.length).toLocaleString('en-US')} numbers; the limit is ${MAX_SWEEP_NUMBERS.toLocaleString('en-US')} (use fewer steps or shorter arrays)`,
+        `the sweep table would hold ${(size * values.length).toLocaleString('en-US')} numbers (${values.length.toLocaleString('en-US')} steps × ${size.toLocaleString('en-US')} per step); the limit is ${MAX_SWEEP_NUMBERS.toLocaleString('en-US')}: use fewer steps or shorter arrays`,
         'limit',
       )
     const fraction = (i + 1) / values.length

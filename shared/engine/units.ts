@@ -86,11 +86,25 @@ export function parseUnit(text: string): UnitParse {
     result = ARBITRARY.has(text.trim().toLowerCase()) ? { ok: true, factor: 1, dim: DIMENSIONLESS } : new UnitParser(text).parse()
     if (result.ok) result = { ...result, factor: snap(result.factor) }
   } catch (err) {
-    result = { ok: false, error: `unit "${text}": ${(err as Error).message}` }
+    result = { ok: false, error: unitProblem(text, (err as Error).message) }
   }
   if (unitCache.size > 2000) unitCache.clear()
   unitCache.set(text, result)
   return result
+}
+
+/**
+ * What is wrong with a unit text, as the end of a sentence that starts "the unit …": `"flurbs" is not a known unit;
+ * …`, `"W/m^2/q" contains "q", which is not a known unit`, `"m^" is not understood: expected a number after ^ …`.
+ */
+function unitProblem(text: string, problem: string): string {
+  const whole = JSON.stringify(text.trim())
+  if (problem === `unknown unit ${whole}`)
+    return `${whole} is not a known unit; write units such as nm, eV, 1/cm, mA/cm^2 or W/m^2/nm`
+  if (problem.startsWith(whole)) return problem
+  const part = /^unknown unit (".*")$/.exec(problem)
+  if (part) return `${whole} contains ${part[1]}, which is not a known unit`
+  return `${whole} is not understood: ${problem}`
 }
 
 /**

@@ -76,14 +76,35 @@ export function rangeError(fn: string, message: string): RangeError {
   return new RangeError(`${fn}: ${message}`)
 }
 
+/**
+ * The error `check` throws: a RangeError with the same sentence, which also carries the argument, the requirement and
+ * the offending value (SI), so a caller such as the sheet engine can word it in the units a researcher reads.
+ */
+export class ArgumentRangeError extends RangeError {
+  constructor(
+    message: string,
+    readonly fn: string,
+    /** As named in the message: "the gap Eg". */
+    readonly argument: string,
+    /** What the argument must be: "positive", "between 0 and 1". */
+    readonly requirement: string,
+    readonly value: number,
+    /** The element of an array argument that fails, or undefined for a single number. */
+    readonly index?: number,
+  ) {
+    super(message)
+    this.name = 'RangeError'
+  }
+}
+
 /** Throws unless every element of x satisfies ok; the message names the function, the argument and the bad value. */
 export function check(fn: string, name: string, x: Num, ok: (v: number) => boolean, what: string): void {
   if (typeof x === 'number') {
-    if (!ok(x)) throw rangeError(fn, `${name} must be ${what} (got ${x})`)
+    if (!ok(x)) throw new ArgumentRangeError(`${fn}: ${name} must be ${what} (got ${x})`, fn, name, what, x)
     return
   }
   for (let i = 0; i < x.length; i++) {
-    if (!ok(x[i])) throw rangeError(fn, `${name} must be ${what} (element ${i} is ${x[i]})`)
+    if (!ok(x[i])) throw new ArgumentRangeError(`${fn}: ${name} must be ${what} (element ${i} is ${x[i]})`, fn, name, what, x[i], i)
   }
 }
 

@@ -42,7 +42,7 @@ describe('command-line evaluator', () => {
     const r = evaluate(['-'], JSON.stringify(sheet))
     expect(r.status).toBe(0)
     const cells = JSON.parse(r.stdout).cells
-    expect(cells[0]).toMatchObject({ status: 'error', error: 'unknown name: nope' })
+    expect(cells[0]).toMatchObject({ status: 'error', error: 'unknown name: nope; check the spelling, or add a cell named nope' })
     expect(cells[1]).toMatchObject({ status: 'blocked', error: 'blocked: input u failed' })
   })
 

@@ -4,6 +4,7 @@
  * values are SI), so `integrate(y, x)` of a spectral irradiance in W/m³ over a wavelength in m gives W/m².
  */
 import type { Num } from '../../optics/num'
+import { INPUT_DIGITS, formatNumber } from '../describe'
 import { CellError } from '../errors'
 
 function fail(fn: string, message: string): never {
@@ -17,15 +18,16 @@ function array(fn: string, name: string, a: Num): Float64Array {
 
 function count(fn: string, name: string, n: Num, min: number, max: number): number {
   if (typeof n !== 'number') fail(fn, `${name} must be a single number`)
-  if (!Number.isInteger(n)) fail(fn, `${name} must be a whole number, not ${n}`)
+  if (!Number.isInteger(n)) fail(fn, `${name} must be a whole number, not ${formatNumber(n, INPUT_DIGITS)}`)
   if (n < min) fail(fn, `${name} must be at least ${min}`)
-  if (n > max) throw new CellError(`${fn}: ${n.toLocaleString('en-US')} points exceed the limit of ${max.toLocaleString('en-US')} elements`, 'limit')
+  if (n > max)
+    throw new CellError(`${fn}: ${n.toLocaleString('en-US')} points exceed the limit of ${max.toLocaleString('en-US')} elements in one array; use fewer points`, 'limit')
   return n
 }
 
 function scalar(fn: string, name: string, x: Num): number {
   if (typeof x !== 'number') fail(fn, `${name} must be a single number`)
-  if (!Number.isFinite(x)) fail(fn, `${name} must be finite, not ${x}`)
+  if (!Number.isFinite(x)) fail(fn, `${name} must be a finite number, not ${formatNumber(x)}`)
   return x
 }
 
@@ -185,9 +187,10 @@ export function last(a: Num): number {
 export function at(a: Num, i: Num): Num {
   const arr = typeof a === 'number' ? Float64Array.of(a) : a
   const one = (k: number): number => {
-    if (!Number.isInteger(k)) fail('at', `the index must be a whole number, not ${k}`)
+    if (!Number.isInteger(k)) fail('at', `the index must be a whole number, not ${formatNumber(k, INPUT_DIGITS)}`)
     const j = k < 0 ? arr.length + k : k
-    if (j < 0 || j >= arr.length) fail('at', `index ${k} is outside 0…${arr.length - 1}`)
+    if (j < 0 || j >= arr.length)
+      fail('at', arr.length === 0 ? 'the array is empty' : `index ${k} is outside 0…${arr.length - 1} (the array has ${arr.length} element${arr.length === 1 ? '' : 's'}; -1 is the last)`)
     return arr[j]
   }
   if (typeof i === 'number') return one(i)

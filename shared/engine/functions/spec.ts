@@ -5,7 +5,8 @@
  * fixed dimension, a type variable's dimension, or computed from the argument dimensions.
  */
 import type { Num } from '../../optics/num'
-import { dimEquals, dimPhrase, type Dim } from '../dimensions'
+import { dimPhrase, energyAndLength } from '../describe'
+import { dimEquals, dimName, type Dim } from '../dimensions'
 
 export type ArgDim = Dim | 'any' | 'x' | 'y'
 export type ResultDim = Dim | 'x' | 'y' | ((args: readonly (Dim | null)[]) => Dim | null)
@@ -44,10 +45,10 @@ export function flowDims(fn: Builtin, argDims: readonly (Dim | null)[]): DimOutc
       const bound = vars[want]
       if (!bound) vars[want] = { dim: d, param }
       else if (!dimEquals(bound.dim, d))
-        warnings.push(`${fn.name}: ${param} is ${dimPhrase(d)} but ${bound.param} is ${dimPhrase(bound.dim)}; they should have the same dimension`)
+        warnings.push(`${fn.name}: ${param} is ${dimPhrase(d)} but ${bound.param} is ${dimPhrase(bound.dim)}; give both the same dimension`)
       return
     }
-    if (!dimEquals(want, d)) warnings.push(`${fn.name}: ${param} should be ${dimPhrase(want)}, not ${dimPhrase(d)}`)
+    if (!dimEquals(want, d)) warnings.push(`${fn.name}: ${param} should be ${dimPhrase(want)}, not ${dimPhrase(d)}${convertHint(want, d)}`)
   })
   const r = fn.result
   let dim: Dim | null
@@ -55,6 +56,14 @@ export function flowDims(fn: Builtin, argDims: readonly (Dim | null)[]): DimOutc
   else if (typeof r === 'function') dim = r(argDims)
   else dim = r
   return { dim, warnings }
+}
+
+/** For an energy given where a wavelength belongs, or the reverse: the library function that converts. */
+function convertHint(want: Dim, got: Dim): string {
+  if (!energyAndLength(want, got)) return ''
+  return dimName(want) === 'length'
+    ? '; photon_wavelength(E) gives the wavelength of a photon energy'
+    : '; photon_energy(lambda) gives the photon energy of a wavelength'
 }
 
 /** Positional arity message, or null when the count fits. */

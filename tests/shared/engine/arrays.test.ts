@@ -12,7 +12,7 @@ describe('grids', () => {
 
   it('grid keeps the dimension of its ends and warns when they differ', () => {
     expect(formula('grid(1*nm, 2*nm, 3)').dimension).toBe('length')
-    expect(formula('grid(1*eV, 2*nm, 3)').warnings?.[0]).toMatch(/grid: to is a length but from is an energy/)
+    expect(formula('grid(1*eV, 2*nm, 3)').warnings?.[0]).toBe('grid: to is a length (nm) but from is an energy (eV); give both the same dimension')
   })
 
   it('grid refuses fewer than 2 points and fractional counts', () => {
@@ -75,13 +75,13 @@ describe('reductions and selection', () => {
     expect(num('at([4, 5, 6], 1)')).toBe(5)
     expect(num('at([4, 5, 6], -1)')).toBe(6)
     expect(arr('at([4, 5, 6], [2, 0])')).toEqual([6, 4])
-    expect(formula('at([4, 5, 6], 3)').error).toBe('at: index 3 is outside 0…2')
+    expect(formula('at([4, 5, 6], 3)').error).toBe('at: index 3 is outside 0…2 (the array has 3 elements; -1 is the last)')
     expect(formula('at([4, 5, 6], 0.5)').error).toBe('at: the index must be a whole number, not 0.5')
   })
 
   it('where(cond, a, b) chooses element-wise and warns when a and b differ in dimension', () => {
     expect(arr('where([1, 0, 1], 5, [7, 8, 9])')).toEqual([5, 8, 5])
-    expect(formula('where([1, 0], 1*eV, 1*nm)').warnings?.[0]).toMatch(/where: b is a length but a is an energy/)
+    expect(formula('where([1, 0], 1*eV, 1*nm)').warnings?.[0]).toBe('where: b is a length (nm) but a is an energy (eV); give both the same dimension')
   })
 
   it('clip(x, lo, hi) limits to the range', () => {
@@ -100,7 +100,7 @@ describe('interpolation, integrals, slopes, crossings', () => {
     const r = formula('interpolate(1.5*eV, [1, 2]*eV, [10, 20]/cm)', '1/cm')
     expect(r.value).toBeCloseTo(15, 10)
     expect(r.dimension).toBe('1/length')
-    expect(formula('interpolate(1*nm, [1, 2]*eV, [10, 20])').warnings?.[0]).toMatch(/interpolate: x is an energy but xq is a length/)
+    expect(formula('interpolate(1*nm, [1, 2]*eV, [10, 20])').warnings?.[0]).toBe('interpolate: x is an energy (eV) but xq is a length (nm); give both the same dimension')
   })
 
   // trapezoid rule is exact for linear integrands

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest'
 import {
-  DIMENSIONLESS, ENERGY, LENGTH, TIME, dimDiv, dimEquals, dimMul, dimName, dimPhrase, dimPow, dimSymbols,
+  DIMENSIONLESS, ENERGY, LENGTH, TIME, dimDiv, dimEquals, dimMul, dimName, dimPow, dimSymbols,
 } from '../../../shared/engine/dimensions'
 
 describe('dimensions', () => {
@@ -21,12 +21,5 @@ describe('dimensions', () => {
   it('dimPow keeps half powers exact: the square root of an area is a length', () => {
     expect(dimEquals(dimPow(dimMul(LENGTH, LENGTH), 0.5), LENGTH)).toBe(true)
     expect(dimEquals(dimPow(dimPow(LENGTH, 1 / 3), 3), LENGTH)).toBe(true)
-  })
-
-  it('dimPhrase reads as English: an energy, a length, a dimensionless number', () => {
-    expect(dimPhrase(ENERGY)).toBe('an energy')
-    expect(dimPhrase(LENGTH)).toBe('a length')
-    expect(dimPhrase(DIMENSIONLESS)).toBe('a dimensionless number')
-    expect(dimPhrase(dimMul(ENERGY, dimMul(TIME, TIME)))).toBe('a quantity in m^2·kg')
   })
 })

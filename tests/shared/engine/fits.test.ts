@@ -72,7 +72,7 @@ describe('fit cells: tauc', () => {
 
   it('a window with too few points is a clear error', () => {
     const res = run([...directEdge, { kind: 'fit', name: 'edge', method: 'tauc', x: 'E', y: 'alpha', r: 0.5, from: 1.6, to: 1.602 }])
-    expect(pick(res, 'edge').error).toBe('the window 1.6 to 1.602 eV holds 2 of the 501 points of E, which run from 1.2 to 2.2 eV; a Tauc fit needs at least 3')
+    expect(pick(res, 'edge').error).toBe('the window 1.6 to 1.602 eV holds 2 of the 501 points of E, which run from 1.2 to 2.2 eV; a Tauc fit needs at least 3: widen the window')
   })
 
   it("a window given in another unit than the x cell's says what range x covers, in x's unit", () => {
@@ -82,8 +82,8 @@ describe('fit cells: tauc', () => {
       { kind: 'fit', name: 'edge', method: 'tauc', x: 'E', y: 'alpha', r: 0.5, from: 1.6, to: 2.0, unit: 'eV' },
       { kind: 'fit', name: 'tail', method: 'urbach', x: 'E', y: 'alpha', from: 1.6, to: 2.0 },
     ])
-    expect(pick(res, 'edge').error).toBe('the window 1.6 to 2 meV holds 0 of the 501 points of E, which run from 1200 to 2200 meV; a Tauc fit needs at least 3')
-    expect(pick(res, 'tail').error).toMatch(/^the window 1.6 to 2 meV holds 0 .*; an Urbach fit needs at least 3$/)
+    expect(pick(res, 'edge').error).toBe('the window 1.6 to 2 meV holds 0 of the 501 points of E, which run from 1200 to 2200 meV; a Tauc fit needs at least 3: move the window onto the data (from and to are in meV, the unit of E)')
+    expect(pick(res, 'tail').error).toBe('the window 1.6 to 2 meV holds 0 of the 501 points of E, which run from 1200 to 2200 meV; an Urbach fit needs at least 3: move the window onto the data (from and to are in meV, the unit of E)')
   })
 
   it('a window reaching below the gap is flagged: the fitted gap lies inside it', () => {
@@ -135,7 +135,7 @@ describe('fit cells: urbach', () => {
       { kind: 'formula', name: 'alpha', source: 'exp(lam/(100*nm)) / cm', unit: '1/cm' },
       { kind: 'fit', name: 'tail', method: 'urbach', x: 'lam', y: 'alpha', from: 600, to: 900 },
     ])
-    expect(pick(res, 'tail').warnings).toContain('x (lam) should be a photon energy, not a length')
+    expect(pick(res, 'tail').warnings).toContain('x (lam) should be a photon energy (eV), not a length (nm); fit against a formula cell photon_energy(lam) instead')
   })
 })
 
@@ -228,7 +228,33 @@ describe('fit cells: model (Levenberg–Marquardt)', () => {
     const cells = sheet(exact)
     const fit = cells[7] as Record<string, unknown>
     const error = pick(run([...cells.slice(0, 7), { ...fit, from: 1.5, to: 1.5005 }]), 'edge').error
-    expect(error).toMatch(/^the window 1\.5 to 1\.5005 eV holds 1 of the 161 points of Ex, which run from 1\.4 to 1\.8 eV; a model fit of 3 parameters needs at least 4$/)
+    expect(error).toBe('the window 1.5 to 1.5005 eV holds 1 of the 161 points of Ex, which run from 1.4 to 1.8 eV; a model fit of 3 parameters needs at least 4: widen the window')
+  })
+
+  it('a model fit refuses a start value outside its bounds, or reversed bounds, in the parameter cell\'s unit', () => {
+    const cells = sheet(exact)
+    const fit = cells[7] as Record<string, unknown>
+    const withEg = (q: Record<string, unknown>) =>
+      pick(run([...cells.slice(0, 7), { ...fit, parameters: [{ name: 'Eg', ...q }, { name: 'B' }, { name: 'Eu' }] }]), 'edge').error
+    expect(withEg({ min: 1.5, max: 1.7 })).toBe('the start value 1.48 eV of Eg is below its minimum 1.5 eV; start inside the bounds or widen them')
+    expect(withEg({ start: 1.8, max: 1.7 })).toBe('the start value 1.8 eV of Eg is above its maximum 1.7 eV; start inside the bounds or widen them')
+    expect(withEg({ min: 1.7, max: 1.3 })).toBe('the bounds of Eg are reversed: min 1.7 eV is above max 1.3 eV; swap them')
+  })
+
+  it('a model fit that runs past the cell\'s time budget is stopped with the budget as set', () => {
+    // a sine fitted to scrambled data over 500,000 points: one evaluation of the model takes milliseconds, the fit
+    // keeps iterating far longer than the 150 ms budget
+    const x = Array.from({ length: 500000 }, (_, i) => i / 500000)
+    const res = run([
+      { kind: 'spectrum', name: 'data', columns: { x: { unit: '', values: x }, y: { unit: '', values: x.map((_, i) => ((i * 7919) % 1000) / 1000) } } },
+      { kind: 'formula', name: 'x', source: 'data.x' },
+      { kind: 'formula', name: 'y', source: 'data.y' },
+      { kind: 'parameter', name: 'a', value: 1 },
+      { kind: 'formula', name: 'curve', source: 'sin(a*x*1000)' },
+      { kind: 'fit', name: 'slow', method: 'model', x: 'x', y: 'y', model: 'curve', parameters: [{ name: 'a' }] },
+    ], { timeBudgetMs: 150 })
+    expect(pick(res, 'curve').status).toBe('ok')
+    expect(pick(res, 'slow').error).toBe('evaluation took longer than the 150 ms budget for one cell and was stopped; use shorter grids, fewer sweep steps or fewer free fit parameters')
   })
 
   it('a model fit says what is wrong with its model or parameters', () => {

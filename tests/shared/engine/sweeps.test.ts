@@ -26,7 +26,7 @@ describe('sweep cells', () => {
 
   it('a log sweep over a non-positive range is an error saying so', () => {
     const res = run([...slab, { kind: 'sweep', name: 'sw', parameter: 'd', from: -10, to: -1000, steps: 3, scale: 'log', outputs: ['A1'] }])
-    expect(pick(res, 'sw')).toMatchObject({ status: 'error', error: 'a log sweep needs positive from and to (got from -10, to -1000)' })
+    expect(pick(res, 'sw')).toMatchObject({ status: 'error', error: 'a log sweep needs from and to above zero, but it runs from -10 to -1000; make both positive or use linear steps' })
   })
 
   it('a sweep gives one row per parameter value for each output, in that output\'s display unit', () => {
@@ -65,24 +65,24 @@ describe('sweep cells', () => {
 
   it('a sweep unit of the wrong dimension is an error naming both', () => {
     const res = run([...slab, { kind: 'sweep', name: 'thick', parameter: 'd', from: 1, to: 2, steps: 3, unit: 'eV', outputs: ['A1'] }])
-    expect(pick(res, 'thick').error).toBe("the sweep's unit eV is energy but d is length")
+    expect(pick(res, 'thick').error).toBe("the sweep's unit eV is for an energy, but d is a length; give the sweep a unit for a length, such as nm, or leave it empty to use d's unit")
   })
 
   it('sweeping a formula cell is an error; so is an output that is not a formula', () => {
     expect(pick(run([...slab, { kind: 'sweep', name: 'sw', parameter: 'alpha', from: 1, to: 2, steps: 3, outputs: ['A1'] }]), 'sw').error)
-      .toBe('the swept name alpha must be a parameter cell')
+      .toBe('the swept name alpha must be a parameter cell (it is a formula cell)')
     expect(pick(run([...slab, { kind: 'sweep', name: 'sw', parameter: 'd', from: 1, to: 2, steps: 3, outputs: ['d'] }]), 'sw').error)
-      .toBe('output d must be a formula cell')
+      .toBe('output d must be a formula cell (it is a parameter cell)')
   })
 
   it('an output that does not depend on the parameter gets a warning', () => {
     const res = run([...slab, { kind: 'sweep', name: 'sw', parameter: 'd', from: 1, to: 2, steps: 3, unit: 'nm', outputs: ['alpha'] }])
-    expect(pick(res, 'sw').warnings).toContain('alpha does not depend on d: its rows are all the same')
+    expect(pick(res, 'sw').warnings).toContain('alpha does not depend on d: its rows are all the same; sweep a parameter that alpha uses, or drop it from the outputs')
   })
 
   it('a step that fails names the parameter value and the failing cell', () => {
     const res = run([...slab, { kind: 'sweep', name: 'sw', parameter: 'd', from: -100, to: 100, steps: 3, unit: 'nm', outputs: ['A1'] }])
-    expect(pick(res, 'sw').error).toMatch(/^at d = -100 nm: A1: absorbed_fraction/)
+    expect(pick(res, 'sw').error).toBe('at d = -100 nm: A1: absorbed_fraction: the thickness d must be zero or positive, but it is -100 nm')
   })
 
   it('a sweep re-runs fit cells between the parameter and the outputs', () => {
