@@ -196,8 +196,18 @@ export class DocumentRegistry {
         continue
       }
       const known = entry.awareness.meta.get(e.clientId)
-      if (known && known.clock >= e.clock) continue
-      if (controlled.size === 0 && e.state !== null && !this.controlledByOther(entry, peer, e.clientId)) {
+      const claim = controlled.size === 0 && e.state !== null && !this.controlledByOther(entry, peer, e.clientId)
+      if (known && known.clock >= e.clock) {
+        // A reconnecting client announces its state at the clock it had, which the removal on its old connection's
+        // close went past: lift it above the known clock (the client adopts the echoed clock), or it would stay
+        // hidden until its renewals catch up, up to 30 s.
+        if (claim && !entry.awareness.states.has(e.clientId)) {
+          controlled.add(e.clientId)
+          accepted.push({ ...e, clock: known.clock + 1 })
+        }
+        continue
+      }
+      if (claim) {
         controlled.add(e.clientId)
         accepted.push(e)
       } else refused++
