@@ -1,0 +1,153 @@
+/**
+ * What a researcher and a reader read on the cards and in the lab dialogs, in headless Chromium against the built app:
+ * the create-lab dialog (its message on an empty name, a fresh form each time it opens, the new lab opened), a Tauc
+ * fit's slope with its SI unit, a blocked cell that names its failed input (asking only an editor to fix it), fit
+ * results as a list on a phone, a description written from the card's header (an empty one takes no room, so the
+ * first click on a field of the card lands), and a reader's empty sheet. Each test makes its own sheet through the API.
+ */
+import { describe, expect, it } from 'vitest'
+import type { Page } from 'playwright-core'
+import { DEMO, DEMO_LAB, signIn, useBrowserSuite } from '../utils/browser'
+
+const e2e = useBrowserSuite()
+
+const card = (page: Page, name: string) => page.locator(`.pn-cell[data-cell-name="${name}"]`)
+
+async function createSheet(page: Page, title: string, cells: unknown[]): Promise<string> {
+  const base = e2e.server.url
+  const labs = (await (await page.request.get(`${base}/api/labs`)).json()) as { labs: { id: string; name: string }[] }
+  const lab = labs.labs.find((l) => l.name === DEMO_LAB)
+  if (!lab) throw new Error(`not a member of "${DEMO_LAB}"`)
+  const res = await page.request.post(`${base}/api/labs/${lab.id}/sheets`, { data: { format: 'penumbra.sheet', version: 1, title, cells } })
+  const body = (await res.json()) as { id?: string; error?: string }
+  if (!res.ok() || !body.id) throw new Error(`creating "${title}" answered ${res.status()}: ${JSON.stringify(body)}`)
+  return body.id
+}
+
+async function openLive(page: Page, sheetId: string): Promise<void> {
+  await page.goto(`${e2e.server.url}/sheets/${sheetId}`)
+  await expect.poll(() => page.getByTestId('connection').textContent(), { timeout: 20_000 }).toContain('Live')
+}
+
+/** An invented direct-gap edge (α ∝ √(E − Eg)/E), a Tauc fit of it, and a broken formula with a dependent. */
+const EDGE_SHEET = [
+  { kind: 'parameter', name: 'Eg', value: 1.5, unit: 'eV', min: 1, max: 2 },
+  { kind: 'formula', name: 'E', source: 'grid(1.2*eV, 2.4*eV, 301)', unit: 'eV' },
+  { kind: 'formula', name: 'alpha', source: 'alpha_direct(E, Eg, 3e4/cm/sqrt(eV))', unit: '1/cm' },
+  { kind: 'fit', name: 'edge', method: 'tauc', x: 'E', y: 'alpha', r: 0.5, from: 1.6, to: 2.0, unit: 'eV' },
+  { kind: 'formula', name: 'broken', source: 'alpha_direct(E, Eg', unit: '1/cm' },
+  { kind: 'formula', name: 'twice', source: 'broken * 2', unit: '1/cm' },
+]
+
+describe('lab dialogs', () => {
+  it('the create-lab dialog asks for a name, opens with an empty form again, and opens the new lab', async () => {
+    const owner = await e2e.newBrowser({ label: 'owner' })
+    const page = owner.page
+    await signIn(page, e2e.server.url, DEMO.owner)
+    await page.goto(`${e2e.server.url}/labs`)
+    await page.getByRole('button', { name: 'Create a lab' }).first().click()
+    const dialog = page.getByRole('dialog', { name: 'Create a lab' })
+    await dialog.getByRole('button', { name: 'Create lab' }).click()
+    await expect.poll(() => dialog.getByText('Give the lab a name.').isVisible()).toBe(true)
+
+    // closing and opening again gives a fresh form without the old message
+    await dialog.getByLabel('Lab name').fill('Half-typed name')
+    await dialog.getByRole('button', { name: 'Cancel' }).click()
+    await page.getByRole('button', { name: 'Create a lab' }).first().click()
+    await expect.poll(() => dialog.getByLabel('Lab name').inputValue()).toBe('')
+    await expect.poll(() => dialog.getByText('Give the lab a name.').count()).toBe(0)
+
+    await dialog.getByLabel('Lab name').fill('Perovskite Edge Group')
+    await dialog.getByRole('button', { name: 'Create lab' }).click()
+    await page.waitForURL((u) => /^\/labs\/[^/]+$/.test(u.pathname), { timeout: 15_000 })
+    await expect.poll(() => page.getByRole('heading', { name: 'Perovskite Edge Group' }).isVisible()).toBe(true)
+  })
+})
+
+describe('cards', () => {
+  it('shows the Tauc slope in J·m⁻², and a blocked cell names its failed input, asking only an editor to fix it', async () => {
+    const editor = await e2e.newBrowser({ label: 'editor' })
+    await signIn(editor.page, e2e.server.url, DEMO.editor)
+    const sheetId = await createSheet(editor.page, 'Cards check', EDGE_SHEET)
+    await openLive(editor.page, sheetId)
+
+    const fit = card(editor.page, 'edge')
+    await expect.poll(() => fit.locator('.el-table').textContent(), { timeout: 20_000 }).toContain('J·m⁻²')
+    expect(await fit.locator('.el-table').textContent()).not.toMatch(/\bSI\b/)
+
+    const blocked = card(editor.page, 'twice').locator('.blocked')
+    await expect.poll(() => blocked.textContent(), { timeout: 20_000 }).toContain('broken')
+    expect(await blocked.textContent()).toContain('Fix that cell first.')
+    // the failed input's name takes you to it
+    await blocked.getByRole('button', { name: 'broken' }).click()
+    await expect.poll(() => editor.page.evaluate(() => (document.activeElement as HTMLElement | null)?.dataset.cellName)).toBe('broken')
+
+    const reviewer = await e2e.newBrowser({ label: 'reviewer' })
+    await signIn(reviewer.page, e2e.server.url, DEMO.reviewer)
+    await openLive(reviewer.page, sheetId)
+    const readerBlocked = card(reviewer.page, 'twice').locator('.blocked')
+    await expect.poll(() => readerBlocked.textContent(), { timeout: 20_000 }).toContain('broken')
+    expect(await readerBlocked.textContent()).not.toContain('Fix that cell first.')
+    // read only, the window reads as a value with its unit right after it
+    const from = card(reviewer.page, 'edge').getByLabel('Window start')
+    expect(await from.inputValue()).toBe('1.6')
+    const gap = await card(reviewer.page, 'edge').evaluate((el) => {
+      const input = el.querySelector<HTMLInputElement>('input[aria-label="Window start"]')!
+      const suffix = input.closest('.el-input')!.querySelector('.el-input__suffix')!
+      return suffix.getBoundingClientRect().left - input.getBoundingClientRect().right
+    })
+    expect(gap).toBeLessThan(24)
+  })
+
+  it('opens a fit card’s select with the first click, and writes a description asked for from the card’s header', async () => {
+    const editor = await e2e.newBrowser({ label: 'editor' })
+    await signIn(editor.page, e2e.server.url, DEMO.editor)
+    const sheetId = await createSheet(editor.page, 'Descriptions', EDGE_SHEET)
+    await openLive(editor.page, sheetId)
+    const fit = card(editor.page, 'edge')
+    await fit.scrollIntoViewIfNeeded()
+    const before = await fit.getByLabel('x cell').boundingBox()
+    await fit.getByLabel('x cell').click()
+    await expect.poll(() => editor.page.locator('.el-select-dropdown:visible').count()).toBeGreaterThan(0)
+    expect((await fit.getByLabel('x cell').boundingBox())?.y).toBe(before?.y)
+    await editor.page.keyboard.press('Escape')
+
+    expect(await fit.getByLabel('Description').count()).toBe(0)
+    await fit.getByRole('button', { name: 'add a description' }).click()
+    await expect.poll(() => editor.page.evaluate(() => document.activeElement?.getAttribute('aria-label'))).toBe('Description')
+    await editor.page.keyboard.type('Direct gap of the invented edge.')
+    await fit.getByLabel('x cell').click() // leaving the field writes it
+    await expect.poll(() => fit.getByLabel('Description').inputValue()).toBe('Direct gap of the invented edge.')
+    expect(await fit.getByRole('button', { name: 'add a description' }).count()).toBe(0)
+
+    // a reader sees it as text
+    const viewer = await e2e.newBrowser({ label: 'viewer' })
+    await signIn(viewer.page, e2e.server.url, DEMO.viewer)
+    await openLive(viewer.page, sheetId)
+    await expect.poll(() => card(viewer.page, 'edge').locator('.description').textContent(), { timeout: 15_000 }).toBe('Direct gap of the invented edge.')
+  })
+
+  it('lists fit results as value ± error with the unit on a phone, without a sideways-scrolling table', async () => {
+    const phone = await e2e.newBrowser({ label: 'phone', viewport: { width: 390, height: 844 } })
+    await signIn(phone.page, e2e.server.url, DEMO.editor)
+    const sheetId = await createSheet(phone.page, 'Cards on a phone', EDGE_SHEET)
+    await openLive(phone.page, sheetId)
+    const list = card(phone.page, 'edge').locator('dl[aria-label="Fit results"]')
+    await expect.poll(() => list.textContent(), { timeout: 20_000 }).toContain('J·m⁻²')
+    expect(await list.textContent()).toContain('band gap')
+    expect(await card(phone.page, 'edge').locator('.el-table').count()).toBe(0)
+    const overflow = await card(phone.page, 'edge').evaluate((el) => el.scrollWidth - el.clientWidth)
+    expect(overflow).toBeLessThanOrEqual(1)
+  })
+
+  it('tells a viewer of an empty sheet that its cells appear as an editor adds them', async () => {
+    const editor = await e2e.newBrowser({ label: 'editor' })
+    await signIn(editor.page, e2e.server.url, DEMO.editor)
+    const sheetId = await createSheet(editor.page, 'Nothing yet', [])
+    const viewer = await e2e.newBrowser({ label: 'viewer' })
+    await signIn(viewer.page, e2e.server.url, DEMO.viewer)
+    await openLive(viewer.page, sheetId)
+    await expect.poll(() => viewer.page.locator('.empty').textContent()).toContain('When an editor of the lab adds some')
+    expect(await viewer.page.getByRole('button', { name: 'Add the first cell' }).count()).toBe(0)
+  })
+})
