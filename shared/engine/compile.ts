@@ -16,6 +16,7 @@ import { arityProblem, flowDims } from './functions/spec'
 import type { Budget } from './limits'
 import { binaryOp, select, unaryOp } from './ops'
 import { parseFormula, type Node } from './parse'
+import { sourceOf } from './source'
 import { RecordValue, asNum, type Value } from './values'
 
 type Run = (inputs: readonly Value[], budget: Budget) => Num
@@ -218,7 +219,7 @@ function walk(node: Node, inputs: ReadonlyMap<string, InputDim>, w: string[]): D
         case '+':
         case '-':
           if (a && b && !dimEquals(a, b)) {
-            w.push(sumMismatch(node.op, a, b))
+            w.push(sumMismatch(node, a, b))
             return null
           }
           return a ?? b
@@ -227,7 +228,7 @@ function walk(node: Node, inputs: ReadonlyMap<string, InputDim>, w: string[]): D
           return DIMENSIONLESS
         default:
           if (a && b && !dimEquals(a, b))
-            w.push(`"${node.op}" compares ${dimNoun(a)} with ${dimNoun(b)}: both sides need the same dimension${conversionHint(a, b)}`)
+            w.push(`"${sourceOf(node)}" compares ${dimNoun(a)} with ${dimNoun(b)}: both sides of "${node.op}" need the same dimension${conversionHint(a, b)}`)
           return DIMENSIONLESS
       }
     }
@@ -236,7 +237,7 @@ function walk(node: Node, inputs: ReadonlyMap<string, InputDim>, w: string[]): D
       const a = walk(node.then, inputs, w)
       const b = walk(node.else, inputs, w)
       if (a && b && !dimEquals(a, b))
-        w.push(`the two branches of "? :" differ: one is ${dimNoun(a)}, the other ${dimNoun(b)}; both need the same dimension`)
+        w.push(`the two branches of "${sourceOf(node)}" differ: one is ${dimNoun(a)}, the other ${dimNoun(b)}; both need the same dimension`)
       return a ?? b
     }
     case 'array': {
@@ -244,7 +245,7 @@ function walk(node: Node, inputs: ReadonlyMap<string, InputDim>, w: string[]): D
       for (const item of node.items) {
         const x = walk(item, inputs, w)
         if (x && d && !dimEquals(x, d))
-          w.push(`the array [ … ] mixes ${dimNoun(d)} and ${dimNoun(x)}; all its elements need the same dimension`)
+          w.push(`the array "${sourceOf(node)}" mixes ${dimNoun(d)} and ${dimNoun(x)}; all its elements need the same dimension`)
         d = d ?? x
       }
       return d
@@ -261,24 +262,24 @@ function walk(node: Node, inputs: ReadonlyMap<string, InputDim>, w: string[]): D
 }
 
 function powDim(node: Node & { t: 'binary' }, a: Dim | null, b: Dim | null, w: string[]): Dim | null {
-  if (b && !isDimensionless(b)) w.push(`the exponent of "^" should be a dimensionless number, not ${dimPhrase(b)}`)
+  if (b && !isDimensionless(b)) w.push(`the exponent in "${sourceOf(node)}" should be a dimensionless number, not ${dimPhrase(b)}`)
   if (!a) return null
   if (isDimensionless(a)) return DIMENSIONLESS
   const p = constantValue(node.right)
   if (p === undefined) {
-    w.push(`${dimPhrase(a)} is raised to a power that is not a constant number, so the result's dimension is unknown; write the power as a number, such as ^2 or ^(1/2)`)
+    w.push(`"${sourceOf(node)}" raises ${dimPhrase(a)} to a power that is not a constant number, so the result's dimension is unknown; write the power as a number, such as ^2 or ^(1/2)`)
     return null
   }
   return dimPow(a, p)
 }
 
 /**
- * `a + b` or `a - b` of two dimensions: "\"+\" adds energy (eV) to length (nm): both sides need the same dimension".
- * Called only when they differ, while the dimension pass writes its warnings.
+ * `a + b` or `a - b` of two different dimensions: "\"d + Eg\" adds energy (eV) to length (nm): both sides of \"+\"
+ * need the same dimension". Written only when they differ.
  */
-function sumMismatch(op: '+' | '-', a: Dim, b: Dim): string {
-  const verb = op === '+' ? `adds ${dimNoun(b)} to ${dimNoun(a)}` : `subtracts ${dimNoun(b)} from ${dimNoun(a)}`
-  return `"${op}" ${verb}: both sides need the same dimension${conversionHint(a, b)}`
+function sumMismatch(node: Node & { t: 'binary' }, a: Dim, b: Dim): string {
+  const verb = node.op === '+' ? `adds ${dimNoun(b)} to ${dimNoun(a)}` : `subtracts ${dimNoun(b)} from ${dimNoun(a)}`
+  return `"${sourceOf(node)}" ${verb}: both sides of "${node.op}" need the same dimension${conversionHint(a, b)}`
 }
 
 /** The usual slip between energies and wavelengths has a library conversion; say which. */

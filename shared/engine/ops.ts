@@ -9,7 +9,10 @@ import { CellError } from './errors'
 function lengthOf(op: string, a: Num, b: Num): number {
   if (typeof a === 'number') return typeof b === 'number' ? -1 : b.length
   if (typeof b !== 'number' && b.length !== a.length)
-    throw new CellError(`"${op}" combines arrays of different lengths (${a.length} and ${b.length}) element by element`, 'value')
+    throw new CellError(
+      `"${op}" combines arrays of different lengths (${a.length} and ${b.length}) element by element; use arrays of one length, such as arrays made on the same grid`,
+      'value',
+    )
   return a.length
 }
 

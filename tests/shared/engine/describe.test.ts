@@ -5,6 +5,8 @@ import {
 import {
   DIMENSIONLESS, ENERGY, INV_LENGTH, LENGTH, TIME, dimDiv, dimEquals, dimMul, dimPow, namedDim, type Dim,
 } from '../../../shared/engine/dimensions'
+import { parseFormula } from '../../../shared/engine/parse'
+import { sourceOf } from '../../../shared/engine/source'
 import { parseUnit } from '../../../shared/engine/units'
 
 const dimOf = (unit: string): Dim => {
@@ -135,5 +137,22 @@ describe('formatQuantity (SI values in messages)', () => {
 
   it('formatQuantity falls back to compact SI units for a dimension without a name', () => {
     expect(formatQuantity(2, dimMul(ENERGY, ENERGY))).toBe('2 J²')
+  })
+})
+
+describe('sourceOf (formula parts quoted in messages)', () => {
+  const src = (text: string): string => sourceOf(parseFormula(text))
+  it('sourceOf writes a tree back as the formula it came from, brackets only where needed', () => {
+    expect(src('Eg + 2*d')).toBe('Eg + 2*d')
+    expect(src('(a + b)*c')).toBe('(a + b)*c')
+    expect(src('a - (b - c)')).toBe('a - (b - c)')
+    expect(src('(a^b)^c')).toBe('(a^b)^c')
+    expect(sourceOf(parseFormula('alpha_edge(E, Eg, 4e9*eV/cm^2, 0.5, 22*meV)'), 60)).toBe('alpha_edge(E, Eg, 4e9*eV/cm^2, 0.5, 22*meV)')
+    expect(src('2e-5*x')).toBe('2e-5*x')
+    expect(src('filmB.T > 0.5 ? 1 : -x')).toBe('filmB.T > 0.5 ? 1 : -x')
+  })
+
+  it('sourceOf shortens long parts with an ellipsis', () => {
+    expect(sourceOf(parseFormula('a1 + a2 + a3 + a4 + a5 + a6 + a7 + a8 + a9 + a10'), 20)).toBe('a1 + a2 + a3 + a4 +…')
   })
 })

@@ -114,7 +114,7 @@ describe('formula language: dimension checking', () => {
     const r = formula('1*eV + 2*nm')
     expect(r.status).toBe('ok')
     expect(r.warnings).toEqual([
-      '"+" adds length (nm) to energy (eV): both sides need the same dimension (photon_energy(lambda) and photon_wavelength(E) convert between the two)',
+      '"1*eV + 2*nm" adds length (nm) to energy (eV): both sides of "+" need the same dimension (photon_energy(lambda) and photon_wavelength(E) convert between the two)',
     ])
   })
 
@@ -143,13 +143,29 @@ describe('formula language: dimension checking', () => {
 
   it('a dimensioned base raised to a non-constant power is a warning, the dimension unknown', () => {
     const r = formula('nm ^ x', undefined, [{ kind: 'parameter', name: 'x', value: 2 }])
-    expect(r.warnings).toEqual(["a length (nm) is raised to a power that is not a constant number, so the result's dimension is unknown; write the power as a number, such as ^2 or ^(1/2)"])
+    expect(r.warnings).toEqual(["\"nm^x\" raises a length (nm) to a power that is not a constant number, so the result's dimension is unknown; write the power as a number, such as ^2 or ^(1/2)"])
     expect(r.dimension).toBeUndefined()
+  })
+
+  it('a mismatch inside a longer formula quotes the part it is about', () => {
+    const cells = [{ kind: 'parameter', name: 'Eg', value: 1.5, unit: 'eV' }, { kind: 'parameter', name: 'd', value: 850, unit: 'nm' }]
+    expect(formula('2 * (Eg - d) / Eg', undefined, cells).warnings).toEqual([
+      '"Eg - d" subtracts length (nm) from energy (eV): both sides of "-" need the same dimension (photon_energy(lambda) and photon_wavelength(E) convert between the two)',
+    ])
+    expect(formula('Eg + (1*eV)^2', undefined, cells).warnings).toEqual(['"Eg + (1*eV)^2" adds a quantity in J² to energy (eV): both sides of "+" need the same dimension'])
+  })
+
+  it('branches, array elements and exponents of different dimensions are warnings quoting the formula', () => {
+    expect(formula('1 > 0 ? 1*eV : 1*nm').warnings).toEqual([
+      'the two branches of "1 > 0 ? 1*eV : 1*nm" differ: one is energy (eV), the other length (nm); both need the same dimension',
+    ])
+    expect(formula('[1*eV, 1*nm]').warnings).toEqual(['the array "[1*eV, 1*nm]" mixes energy (eV) and length (nm); all its elements need the same dimension'])
+    expect(formula('2^(1*nm)').warnings).toEqual(['the exponent in "2^(1*nm)" should be a dimensionless number, not a length (nm)'])
   })
 
   it('comparing an energy with a length is a warning', () => {
     expect(formula('1*eV > 1*nm').warnings).toEqual([
-      '">" compares energy (eV) with length (nm): both sides need the same dimension (photon_energy(lambda) and photon_wavelength(E) convert between the two)',
+      '"1*eV > 1*nm" compares energy (eV) with length (nm): both sides of ">" need the same dimension (photon_energy(lambda) and photon_wavelength(E) convert between the two)',
     ])
   })
 
