@@ -71,10 +71,11 @@ export function createAuthenticate(db: Db, secret: Uint8Array, allowedOrigins?: 
   return async (req) => {
     const sheetId = sheetIdFromUrl(req.url)
     if (!sheetId) return { ok: false, status: 404, message: 'no such collaboration endpoint' }
-    if (!originAllowed(req, allowedOrigins)) return { ok: false, status: 403, message: 'this origin may not open sheets' }
+    // Who first (no or bad session: 401), then from where and to what (403).
     const token = readCookie(req.headers.cookie, SESSION_COOKIE)
     const session = await userForToken(db, secret, token)
     if (!session.ok || !token) return { ok: false, status: 401, message: sessionMessage(session.ok ? 'missing' : session.reason) }
+    if (!originAllowed(req, allowedOrigins)) return { ok: false, status: 403, message: 'this origin may not open sheets' }
     const access = sheetAccess(db, sheetId, session.user.id)
     if (!access.sheet) return { ok: false, status: 404, message: 'no such sheet' }
     if (!access.role) return { ok: false, status: 403, message: 'you are not a member of the lab that owns this sheet' }

@@ -44,6 +44,12 @@ describe('collab: session cookies at the upgrade', () => {
     expect(t.server.collab.stats().connections).toBe(0)
   })
 
+  it('answers 401 to an upgrade without a session whatever its Origin (the session is checked first)', async () => {
+    expect(await status(null, { Origin: 'https://elsewhere.example' })).toEqual({ status: 401, error: 'sign in to open this sheet' })
+    const { token } = await signSession(SECRET, t.lab.userIds.editor, -60)
+    expect((await status(token, { Origin: 'https://elsewhere.example' })).status).toBe(401)
+  })
+
   it('answers 403 to Origin "null", to this host on another port, and to a look-alike host', async () => {
     const editor = t.lab.tokens.editor
     expect((await status(editor, { Origin: 'null' })).status).toBe(403)
