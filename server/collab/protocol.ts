@@ -39,8 +39,12 @@ export type Decoded = { ok: true; message: ClientMessage } | { ok: false; reason
 
 /** Largest awareness state we keep for one client (JSON characters): presence is a name, a colour and a cursor. */
 export const MAX_AWARENESS_STATE_CHARS = 16 * 1024
-/** Most awareness entries one message may carry. */
-export const MAX_AWARENESS_ENTRIES = 64
+/**
+ * Most awareness entries one message may carry. The stock client sends back every presence it learns, so a newcomer
+ * echoes everyone on the sheet in one message: this must stay far above the people one sheet can hold (it once was
+ * 64, and the 65th person to open a busy sheet was disconnected over and over).
+ */
+export const MAX_AWARENESS_ENTRIES = 4096
 
 class FrameError extends Error {}
 

@@ -2,6 +2,7 @@
 // back as soon as the client reconnects (not only after its next periodic renewal).
 import { describe, expect, it } from 'vitest'
 import { until } from './support/fixture'
+import { awarenessFrame } from './support/frames'
 import { useCollab } from './support/useCollab'
 
 describe('collab: presence across a reconnect', () => {
@@ -26,5 +27,29 @@ describe('collab: presence across a reconnect', () => {
     // Its later changes keep arriving.
     a.provider.awareness.setLocalStateField('cell', 'cd')
     await until(() => b.provider.awareness.getStates().get(id)?.cell === 'cd', 'a’s next presence change at b', 3000)
+  })
+})
+
+describe('collab: presence in a crowded sheet', () => {
+  const t = useCollab()
+
+  it('keeps a newcomer connected when its stock client echoes the presence of 80 people back in one message', async () => {
+    const crowd = []
+    for (let i = 0; i < 80; i++) crowd.push(await t.raw(i % 2 ? 'viewer' : 'reviewer'))
+    crowd.forEach((r, i) => r.ws.send(awarenessFrame([{ clientId: 10_000 + i, clock: 1, state: { cell: 'cx' } }])))
+    await until(() => crowd.every((r) => r.frames.length > 0), 'the crowd presence')
+    await until(() => t.server.collab.stats().connections === 80, 'the crowd to be connected')
+    const a = t.connect('editor')
+    await a.synced()
+    await until(() => a.provider.awareness.getStates().size >= 81, 'everyone’s presence at the newcomer')
+    // The stock client sends every presence it learns back to the server; give that echo time to arrive.
+    await new Promise((r) => setTimeout(r, 100))
+    a.provider.awareness.setLocalStateField('cell', 'cd')
+    const probe = t.connect('owner')
+    await probe.synced()
+    await until(() => probe.provider.awareness.getStates().get(a.doc.clientID)?.cell === 'cd', 'the newcomer’s presence at another client')
+    expect(a.closes).toEqual([])
+    expect(a.provider.wsconnected).toBe(true)
+    expect(t.server.collab.stats().counters.malformedFrames).toBe(0)
   })
 })

@@ -7,7 +7,7 @@ import * as Y from 'yjs'
 import { cellsOf } from '../../shared/doc/sheetDoc'
 import { loadDocument } from '../../server/services/documents'
 import { CLOSE, MAX_PAYLOAD } from '../../server/collab/index'
-import { MAX_AWARENESS_STATE_CHARS } from '../../server/collab/protocol'
+import { MAX_AWARENESS_ENTRIES, MAX_AWARENESS_STATE_CHARS } from '../../server/collab/protocol'
 import { roundTrip, storedRows, until, type RawClient } from './support/fixture'
 import { QUERY_AWARENESS_FRAME, appendToFormula, awarenessFrame, readServerFrame, syncFrame } from './support/frames'
 import { useCollab } from './support/useCollab'
@@ -157,6 +157,10 @@ describe('collab: readers on the wire', () => {
     const list = await t.raw('viewer')
     list.ws.send(awarenessFrame([{ clientId: 8003, clock: 1, state: [1, 2] }]))
     expect((await list.closed).reason).toMatch(/object or null/)
+
+    const many = await t.raw('viewer')
+    many.ws.send(awarenessFrame(Array.from({ length: MAX_AWARENESS_ENTRIES + 1 }, (_, i) => ({ clientId: 20_000 + i, clock: 1, state: null }))))
+    expect((await many.closed).reason).toMatch(new RegExp(`lists ${MAX_AWARENESS_ENTRIES + 1} clients`))
 
     expect(editor.provider.awareness.getStates().has(8001)).toBe(false)
     expect(editor.closes).toEqual([])
