@@ -206,7 +206,7 @@ export class SheetEngine {
       const dep = this.byId.get(d)!
       if (this.states.get(d)?.status !== 'ok') return fail(blockedMessage(dep.name ?? d), 'blocked')
       if (NOT_A_VALUE.has(dep.kind) && (p.kind === 'formula' || p.kind === 'fit'))
-        return fail(`${dep.name} is a ${dep.kind} cell, which has no value to compute with; formulas and fits can use parameters, formulas, spectra and fits`)
+        return fail(`the input ${dep.name} is a ${dep.kind} cell, which has no value to compute with; formulas and fits can use parameters, formulas, spectra and fits`)
     }
     this.budget.start()
     try {

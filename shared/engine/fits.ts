@@ -31,9 +31,9 @@ interface Series {
 
 function series(env: Env, name: string, role: string): Series {
   const p = env.cellNamed(name)
-  if (!p) throw new CellError(`${role} ${name} is not a cell of this sheet`, 'name')
+  if (!p) throw new CellError(`the ${role} cell ${name} is not a cell of this sheet`, 'name')
   const v = env.valueOf(p.id)
-  if (v === undefined) throw new CellError(`${role} ${name} has no value`, 'input')
+  if (v === undefined) throw new CellError(`the ${role} cell ${name} has no value`, 'input')
   const num = asNum(v, role)
   const values = typeof num === 'number' ? Float64Array.of(num) : num
   const dim = env.stateOf(p.id)?.dim ?? null
@@ -90,7 +90,7 @@ function requirePoints(cell: FitCell, x: Series, lo: number, hi: number, needed:
   const advice = inside === 0 && x.unit ? `: move the window onto the data (from and to are in ${x.unit}, the unit of ${cell.x})` : ': widen the window'
   throw new CellError(
     cell.from === undefined && cell.to === undefined
-      ? `${cell.x} has only ${inside} finite point${inside === 1 ? '' : 's'}; ${what} needs at least ${needed}`
+      ? `the x cell ${cell.x} has only ${inside} finite point${inside === 1 ? '' : 's'}; ${what} needs at least ${needed}`
       : `the window ${typed(lo)} to ${typed(hi)}${unit} holds ${inside} of the ${x.values.length} points of ${cell.x}${range}; ${what} needs at least ${needed}${advice}`,
     'fit',
   )
@@ -108,12 +108,12 @@ export function evaluateFit(p: PreparedCell, env: Env): CellState {
   const warnings: string[] = []
   if (x.dim && !dimEquals(x.dim, ENERGY)) {
     const hint = dimEquals(x.dim, LENGTH) ? `; fit against a formula cell photon_energy(${cell.x}) instead` : ''
-    warnings.push(`x (${cell.x}) should be a photon energy (eV), not ${dimPhrase(x.dim)}${hint}`)
+    warnings.push(`the x cell ${cell.x} should be a photon energy (eV), not ${dimPhrase(x.dim)}${hint}`)
   }
   if (y.dim && !dimEquals(y.dim, INV_LENGTH))
-    warnings.push(`y (${cell.y}) should be an absorption coefficient, an inverse length (1/cm), not ${dimPhrase(y.dim)}`)
+    warnings.push(`the y cell ${cell.y} should be an absorption coefficient, an inverse length (1/cm), not ${dimPhrase(y.dim)}`)
   if (x.values.length !== y.values.length)
-    throw new CellError(`x (${cell.x}) has ${x.values.length} values but y (${cell.y}) has ${y.values.length}`, 'input')
+    throw new CellError(`the x cell ${cell.x} has ${x.values.length} values but the y cell ${cell.y} has ${y.values.length}; fit two cells of one length`, 'input')
   const e = energyUnit(cell, x)
   const [lo, hi] = windowOf(cell, x)
   requirePoints(cell, x, lo, hi, 3, cell.method === 'tauc' ? 'a Tauc fit' : 'an Urbach fit')
@@ -188,7 +188,7 @@ function modelFit(cell: FitCell, env: Env): CellState {
   const x = series(env, cell.x, 'x')
   const y = series(env, cell.y, 'y')
   if (x.values.length !== y.values.length)
-    throw new CellError(`x (${cell.x}) has ${x.values.length} values but y (${cell.y}) has ${y.values.length}`, 'input')
+    throw new CellError(`the x cell ${cell.x} has ${x.values.length} values but the y cell ${cell.y} has ${y.values.length}; fit two cells of one length`, 'input')
   const free: FreeParameter[] = (cell.parameters ?? []).map((q) => {
     const pc = env.cellNamed(q.name)
     if (!pc || pc.kind !== 'parameter') throw new CellError(`the free parameter ${q.name} must be a parameter cell`, 'input')
@@ -216,7 +216,7 @@ function modelFit(cell: FitCell, env: Env): CellState {
   const warnings: string[] = []
   const modelState = env.stateOf(model.id)
   if (y.dim && modelState?.dim && !dimEquals(y.dim, modelState.dim))
-    warnings.push(`the model ${cell.model} is ${dimPhrase(modelState.dim)} but y (${cell.y}) is ${dimPhrase(y.dim)}; the model should give what y measures`)
+    warnings.push(`the model ${cell.model} is ${dimPhrase(modelState.dim)} but the y cell ${cell.y} is ${dimPhrase(y.dim)}; the model should give what y measures`)
 
   let evaluations = 0
   const evaluate = (params: number[]): Float64Array => {
@@ -226,7 +226,7 @@ function modelFit(cell: FitCell, env: Env): CellState {
     const m = asNum(v as Value, 'model')
     if (typeof m === 'number') return new Float64Array(picked.length).fill(m)
     if (m.length !== x.values.length)
-      throw new CellError(`the model ${cell.model} has ${m.length} values but x (${cell.x}) has ${x.values.length}`, 'input')
+      throw new CellError(`the model ${cell.model} has ${m.length} values but the x cell ${cell.x} has ${x.values.length}; the model should give one value per x`, 'input')
     if (++evaluations % 20 === 0) env.progress(Math.min(0.99, evaluations / 400))
     return Float64Array.from(picked, (i) => m[i])
   }

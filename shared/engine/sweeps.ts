@@ -63,7 +63,7 @@ export function evaluateSweep(p: PreparedCell, env: Env): CellState {
   const chain = env.chain([param.id], outputs.map((o) => o.id))
   const warnings: string[] = []
   for (const o of outputs)
-    if (!chain.includes(o.id)) warnings.push(`${o.name} does not depend on ${cell.parameter}: its rows are all the same; sweep a parameter that ${o.name} uses, or drop it from the outputs`)
+    if (!chain.includes(o.id)) warnings.push(`the output ${o.name} does not depend on ${cell.parameter}: its rows are all the same; sweep a parameter that ${o.name} uses, or drop it from the outputs`)
 
   const values = sweepValues(cell)
   const table: SweepTable = { parameter: values, outputs: {} }

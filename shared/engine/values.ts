@@ -27,7 +27,7 @@ export class RecordValue {
     if (f) return f
     const names = [...this.fields.keys()]
     throw new CellError(
-      `${this.owner} has no ${this.what === 'spectrum' ? 'column' : 'result'} "${member}"` +
+      `the ${this.what} ${this.owner} has no ${this.what === 'spectrum' ? 'column' : 'result'} "${member}"` +
         (names.length ? ` (it has ${names.join(', ')})` : ''),
       'name',
     )

@@ -67,7 +67,7 @@ describe('fit cells: tauc', () => {
     // hc/e / 1.5 eV = 1239.841984 / 1.5 nm (CODATA 2018 exact constants)
     expect(rel(pick(res, 'gap_nm').value as number, 1239.841984332 / 1.5)).toBeLessThan(1e-9)
     expect(pick(res, 'gap_nm').warnings).toEqual([])
-    expect(pick(res, 'bad').error).toBe('edge has no result "Eu" (it has Eg, Eg_err, B, B_err, r2, n)')
+    expect(pick(res, 'bad').error).toBe('the fit edge has no result "Eu" (it has Eg, Eg_err, B, B_err, r2, n)')
   })
 
   it('a window with too few points is a clear error', () => {
@@ -135,7 +135,7 @@ describe('fit cells: urbach', () => {
       { kind: 'formula', name: 'alpha', source: 'exp(lam/(100*nm)) / cm', unit: '1/cm' },
       { kind: 'fit', name: 'tail', method: 'urbach', x: 'lam', y: 'alpha', from: 600, to: 900 },
     ])
-    expect(pick(res, 'tail').warnings).toContain('x (lam) should be a photon energy (eV), not a length (nm); fit against a formula cell photon_energy(lam) instead')
+    expect(pick(res, 'tail').warnings).toContain('the x cell lam should be a photon energy (eV), not a length (nm); fit against a formula cell photon_energy(lam) instead')
   })
 })
 

@@ -187,7 +187,7 @@ describe('formula language: members', () => {
   })
 
   it('a missing column is an error listing the columns there are', () => {
-    expect(formula('filmB.R', undefined, [spectrum]).error).toBe('filmB has no column "R" (it has wavelength, T)')
+    expect(formula('filmB.R', undefined, [spectrum]).error).toBe('the spectrum filmB has no column "R" (it has wavelength, T)')
   })
 
   it('a spectrum used without a member is an error suggesting a column', () => {

@@ -77,7 +77,7 @@ describe('sweep cells', () => {
 
   it('an output that does not depend on the parameter gets a warning', () => {
     const res = run([...slab, { kind: 'sweep', name: 'sw', parameter: 'd', from: 1, to: 2, steps: 3, unit: 'nm', outputs: ['alpha'] }])
-    expect(pick(res, 'sw').warnings).toContain('alpha does not depend on d: its rows are all the same; sweep a parameter that alpha uses, or drop it from the outputs')
+    expect(pick(res, 'sw').warnings).toContain('the output alpha does not depend on d: its rows are all the same; sweep a parameter that alpha uses, or drop it from the outputs')
   })
 
   it('a step that fails names the parameter value and the failing cell', () => {
