@@ -1,7 +1,7 @@
 // Presence through the stock client's life: it appears for the others, goes when the connection drops, and comes
 // back as soon as the client reconnects (not only after its next periodic renewal).
 import { describe, expect, it } from 'vitest'
-import { until } from './support/fixture'
+import { until, type RawClient } from './support/fixture'
 import { awarenessFrame } from './support/frames'
 import { useCollab } from './support/useCollab'
 
@@ -34,7 +34,7 @@ describe('collab: presence in a crowded sheet', () => {
   const t = useCollab()
 
   it('keeps a newcomer connected when its stock client echoes the presence of 80 people back in one message', async () => {
-    const crowd = []
+    const crowd: RawClient[] = []
     for (let i = 0; i < 80; i++) crowd.push(await t.raw(i % 2 ? 'viewer' : 'reviewer'))
     crowd.forEach((r, i) => r.ws.send(awarenessFrame([{ clientId: 10_000 + i, clock: 1, state: { cell: 'cx' } }])))
     await until(() => crowd.every((r) => r.frames.length > 0), 'the crowd presence')
