@@ -83,13 +83,13 @@ interface Instr {
  */
 export function parseFormula(source: string): Node {
   if (source.length > MAX_FORMULA_LENGTH)
-    throw new CellError(`the formula is ${source.length} characters long; the limit is ${MAX_FORMULA_LENGTH}`, 'limit')
+    throw new CellError(`the formula is ${source.length.toLocaleString('en-US')} characters long; the limit is ${MAX_FORMULA_LENGTH.toLocaleString('en-US')}: split it into several formula cells`, 'limit')
   if (source.trim() === '') throw new CellError('the formula is empty', 'syntax')
   let tokens: Instr[]
   try {
     tokens = (formulaParser().parse(source) as unknown as { tokens: Instr[] }).tokens
   } catch (err) {
-    if (err instanceof RangeError) throw new CellError('the formula is nested too deeply', 'limit')
+    if (err instanceof RangeError) throw new CellError('the formula is nested too deeply: split it into several formula cells', 'limit')
     const word = /Expected EOF/.test((err as Error).message) ? JS_WORDS.exec(source) : null
     if (word) throw new CellError(`"${word[1]}" is not part of the formula language (formulas are one expression of numbers, names and library functions)`, 'syntax')
     throw new CellError(syntaxMessage((err as Error).message), 'syntax')
@@ -140,7 +140,7 @@ function toTree(tokens: Instr[], counter: { n: number }): Node {
     return v
   }
   const push = (n: Node): void => {
-    if (++counter.n > MAX_NODES) throw new CellError(`the formula has more than ${MAX_NODES} terms`, 'limit')
+    if (++counter.n > MAX_NODES) throw new CellError(`the formula has more than ${MAX_NODES.toLocaleString('en-US')} terms: split it into several formula cells`, 'limit')
     stack.push(n)
   }
   for (const item of tokens) {
