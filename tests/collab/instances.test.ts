@@ -1,0 +1,61 @@
+// Two app instances over one database, joined by a bus: both compact a shared log often while both sides write, one
+// evicts the sheet and loads it again while the other keeps writing, and every copy — both instances', a late
+// joiner's on each, and a reload from the database — ends identical.
+import { describe, expect, it } from 'vitest'
+import * as Y from 'yjs'
+import { cellsOf, docToSheetFile } from '../../shared/doc/sheetDoc'
+import { loadDocument } from '../../server/services/documents'
+import { createMemoryBus } from '../../server/collab/index'
+import { until } from './support/fixture'
+import { useCollab } from './support/useCollab'
+
+function text(doc: Y.Doc): Y.Text {
+  return cellsOf(doc).get(2).get('source') as Y.Text
+}
+const formula = (doc: Y.Doc) => (cellsOf(doc).length > 2 ? text(doc).toString() : '')
+
+describe('collab: two instances sharing one log', () => {
+  const t = useCollab({ start: false })
+
+  it('compact, evict and reload while the other writes, and every copy ends the same as the database', async () => {
+    const bus = createMemoryBus()
+    const quick = { compactEvery: 7, idleCompactMs: 20, evictAfterMs: 40, sweepMs: 10 }
+    const one = await t.start({ bus, instanceId: 'one', ...quick })
+    const two = await t.another({ bus, instanceId: 'two', ...quick })
+    const a = t.connect('editor', { server: one })
+    const b = t.connect('editor2', { server: two })
+    await Promise.all([a.synced(), b.synced()])
+    for (let i = 0; i < 60; i++) {
+      text(a.doc).insert(text(a.doc).length, 'a')
+      text(b.doc).insert(0, 'b')
+      if (i % 5 === 0) await new Promise((r) => setTimeout(r, 2))
+    }
+    await until(() => formula(a.doc).length === 124 && formula(b.doc) === formula(a.doc), 'both edits everywhere')
+    // a leaves: instance one evicts the sheet while b keeps writing on instance two.
+    a.destroy()
+    t.forget(a)
+    await until(() => one.collab.stats().documents === 0, 'the eviction on instance one')
+    for (let i = 0; i < 30; i++) {
+      text(b.doc).insert(text(b.doc).length, 'c')
+      if (i % 5 === 0) await new Promise((r) => setTimeout(r, 2))
+    }
+    await until(() => two.collab.stats().counters.rowsStored >= 90, 'b’s rows stored')
+    const lateOne = t.connect('viewer', { server: one })
+    const lateTwo = t.connect('reviewer', { server: two })
+    await Promise.all([lateOne.synced(), lateTwo.synced()])
+    await until(() => formula(lateOne.doc) === formula(b.doc) && formula(lateTwo.doc) === formula(b.doc), 'the late joiners to match')
+    expect(formula(b.doc)).toBe('b'.repeat(60) + 'Eg*2' + 'a'.repeat(60) + 'c'.repeat(30))
+    // Instance one, loaded again, takes new edits and relays them across.
+    const again = t.connect('editor', { server: one })
+    await again.synced()
+    text(again.doc).insert(0, '>')
+    await until(() => formula(b.doc).startsWith('>'), 'the edit from the reloaded instance at b')
+    await until(() => one.collab.stats().counters.compactions + two.collab.stats().counters.compactions >= 5, 'compactions on the shared log')
+    await two.close()
+    await one.close()
+    const stored = loadDocument(t.lab.handle.db, t.lab.sheetId)
+    expect(formula(stored)).toBe(formula(b.doc))
+    expect(docToSheetFile(stored)).toEqual(docToSheetFile(b.doc))
+    expect(Y.encodeStateVector(stored)).toEqual(Y.encodeStateVector(b.doc))
+  })
+})
