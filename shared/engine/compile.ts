@@ -11,7 +11,7 @@ import { ArgumentRangeError } from '../optics/broadcast'
 import { dimNoun, dimPhrase, energyAndLength, formatQuantity } from './describe'
 import { DIMENSIONLESS, dimDiv, dimEquals, dimMul, dimPow, isDimensionless, type Dim } from './dimensions'
 import { CellError } from './errors'
-import { builtinFunction, registerFunctions, type Builtin } from './functions/registry'
+import { LIBRARY, builtinFunction, registerFunctions, type Builtin } from './functions/registry'
 import { arityProblem, flowDims } from './functions/spec'
 import type { Budget } from './limits'
 import { binaryOp, select, unaryOp } from './ops'
@@ -126,7 +126,7 @@ function build(node: Node, slot: (name: string) => number): Run {
     }
     case 'call': {
       const fn = builtinFunction(node.fn)
-      if (!fn) throw new CellError(`unknown function: ${node.fn}`, 'name')
+      if (!fn) throw new CellError(unknownFunctionMessage(node.fn), 'name')
       const problem = arityProblem(fn, node.args.length)
       if (problem) throw new CellError(problem, 'syntax')
       const args = node.args.map((x) => build(x, slot))
@@ -136,6 +136,18 @@ function build(node: Node, slot: (name: string) => number): Run {
       }
     }
   }
+}
+
+/**
+ * "unknown function: photonEnergy; did you mean photon_energy?" — a library name that differs only in case or
+ * underscores is suggested; otherwise the message says where the names are.
+ */
+function unknownFunctionMessage(name: string): string {
+  const key = (s: string): string => s.replace(/_/g, '').toLowerCase()
+  const near = LIBRARY.find((f) => key(f.name) === key(name))
+  return near
+    ? `unknown function: ${name}; did you mean ${near.name}? Names are case-sensitive`
+    : `unknown function: ${name}; check the spelling against the function library (the formula editor completes its names)`
 }
 
 function callBuiltin(fn: Builtin, xs: Num[], budget: Budget): Num {

@@ -65,6 +65,13 @@ describe('formula language: names', () => {
     expect(pick(res, 'out').warnings).toEqual([])
   })
 
+  it('an unknown name that differs from a unit or cell name only in case suggests it; single letters do not', () => {
+    expect(formula('2*ev').error).toBe('unknown name: ev; did you mean eV? Names are case-sensitive')
+    expect(formula('alpha*ev', undefined, [{ kind: 'parameter', name: 'Alpha', value: 1 }]).error)
+      .toBe('unknown names: alpha, ev; did you mean Alpha (for alpha), eV (for ev)? Names are case-sensitive')
+    expect(formula('2*a').error).toBe('unknown name: a; check the spelling, or add a cell named a')
+  })
+
   it('an unknown name is an error naming every unknown name', () => {
     expect(formula('foo + bar*2').error).toBe('unknown names: foo, bar; check the spelling, or add cells with these names')
   })
@@ -240,7 +247,8 @@ describe('formula language: syntax', () => {
   })
 
   it('an unknown function and a wrong argument count are errors naming the function', () => {
-    expect(formula('frobnicate(1)').error).toBe('unknown function: frobnicate')
+    expect(formula('frobnicate(1)').error).toBe('unknown function: frobnicate; check the spelling against the function library (the formula editor completes its names)')
+    expect(formula('photonEnergy(500*nm)').error).toBe('unknown function: photonEnergy; did you mean photon_energy? Names are case-sensitive')
     expect(formula('grid(1, 2)').error).toBe('grid(from, to, n) takes 3 arguments, not 2')
     expect(formula('reflectance(1)').error).toBe('reflectance(n, k, [n0]) takes 2 to 3 arguments, not 1')
   })
