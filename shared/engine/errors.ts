@@ -24,13 +24,15 @@ export function blockedMessage(inputName: string): string {
   return `blocked: input ${inputName} failed`
 }
 
-/** The message on each cell of a cycle: `circular reference: a → b → a; …`. */
+/**
+ * The message on each cell of a cycle, in words rather than arrows (the shipped Fira subsets have no "→"):
+ * `circular reference: a uses b, which uses a; …`.
+ */
 export function cycleMessage(names: readonly string[]): string {
-  const loop = [...names, names[0]].join(' → ')
-  const advice = names.length === 1
-    ? `${names[0]} cannot use its own value; make the starting value a parameter cell`
-    : 'these cells depend on each other; remove one of the references, or make one of them a parameter cell'
-  return `circular reference: ${loop}; ${advice}`
+  if (names.length === 1)
+    return `circular reference: ${names[0]} uses its own value; make the starting value a parameter cell`
+  const rest = [...names.slice(2), names[0]].map((n) => `which uses ${n}`).join(', ')
+  return `circular reference: ${names[0]} uses ${names[1]}, ${rest}; remove one of the references, or make one of these cells a parameter cell`
 }
 
 /**

@@ -32,14 +32,14 @@ describe('dependency graph: order, cycles, unknown names, blocked cells', () => 
       { kind: 'parameter', name: 'd', value: 5 },
       { kind: 'formula', name: 'e', source: 'd * 2' },
     ])
-    expect(pick(res, 'a')).toMatchObject({ status: 'error', error: 'circular reference: a → b → a; these cells depend on each other; remove one of the references, or make one of them a parameter cell' })
-    expect(pick(res, 'b')).toMatchObject({ status: 'error', error: 'circular reference: b → a → b; these cells depend on each other; remove one of the references, or make one of them a parameter cell' })
+    expect(pick(res, 'a')).toMatchObject({ status: 'error', error: 'circular reference: a uses b, which uses a; remove one of the references, or make one of these cells a parameter cell' })
+    expect(pick(res, 'b')).toMatchObject({ status: 'error', error: 'circular reference: b uses a, which uses b; remove one of the references, or make one of these cells a parameter cell' })
     expect(pick(res, 'c')).toMatchObject({ status: 'blocked', error: 'blocked: input a failed' })
     expect(pick(res, 'e')).toMatchObject({ status: 'ok', value: 10 })
   })
 
   it('a cell reading itself is a cycle of one', () => {
-    expect(pick(run([{ kind: 'formula', name: 'x', source: 'x + 1' }]), 'x').error).toBe('circular reference: x → x; x cannot use its own value; make the starting value a parameter cell')
+    expect(pick(run([{ kind: 'formula', name: 'x', source: 'x + 1' }]), 'x').error).toBe('circular reference: x uses its own value; make the starting value a parameter cell')
   })
 
   it('a longer cycle names every cell along it', () => {
@@ -48,7 +48,7 @@ describe('dependency graph: order, cycles, unknown names, blocked cells', () => 
       { kind: 'formula', name: 'q', source: 'r' },
       { kind: 'formula', name: 'r', source: 'p' },
     ])
-    expect(pick(res, 'q').error).toBe('circular reference: q → r → p → q; these cells depend on each other; remove one of the references, or make one of them a parameter cell')
+    expect(pick(res, 'q').error).toBe('circular reference: q uses r, which uses p, which uses q; remove one of the references, or make one of these cells a parameter cell')
   })
 
   it('dependents of a failed cell are blocked, each naming its own failed input', () => {
