@@ -96,6 +96,34 @@ function requirePoints(cell: FitCell, x: Series, lo: number, hi: number, needed:
   )
 }
 
+/**
+ * Runs a band-edge fit; when it fails, looks for the usual cause — a point inside the window where α is not a finite
+ * number, negative, or (for Urbach) zero — and names it in the cells' own units. Other failures keep the fitting
+ * library's sentence. Only a failed fit pays for the search.
+ */
+function withWindowCheck<T>(cell: FitCell, x: Series, y: Series, lo: number, hi: number, fit: () => T): T {
+  try {
+    return fit()
+  } catch (err) {
+    const [a, b] = [Math.min(lo, hi), Math.max(lo, hi)]
+    const urbach = cell.method === 'urbach'
+    for (let i = 0; i < x.values.length; i++) {
+      const v = x.values[i]
+      const alpha = y.values[i]
+      if (!(v >= a && v <= b)) continue
+      const bad = !Number.isFinite(alpha) ? 'not a finite number' : alpha < 0 ? 'negative' : urbach && alpha === 0 ? 'zero' : ''
+      if (!bad) continue
+      const at = `${formatNumber(v / x.factor)}${x.unit ? ` ${x.unit}` : ''}`
+      const value = Number.isFinite(alpha) && alpha !== 0 ? ` (${formatNumber(alpha / y.factor)}${y.unit ? ` ${y.unit}` : ''})` : ''
+      const need = urbach
+        ? 'an Urbach fit takes its logarithm, so α must be a finite number above zero throughout the window'
+        : 'a Tauc fit needs a finite α of zero or more throughout the window'
+      throw new CellError(`the y cell ${cell.y} is ${bad}${value} at ${cell.x} = ${at}, inside the window; ${need}: move the window or fix the data there`, 'fit')
+    }
+    throw err
+  }
+}
+
 function field(value: Num, dim: Dim | null): Field {
   return { value, dim }
 }
@@ -120,7 +148,7 @@ export function evaluateFit(p: PreparedCell, env: Env): CellState {
   if (cell.method === 'tauc') {
     const r = cell.r ?? 0.5
     if (cell.r === undefined) warnings.push('r is not given: using r = 1/2 (direct allowed transition); set r = 2 for an indirect allowed one')
-    const f = taucFit(x.values, y.values, r, lo, hi)
+    const f = withWindowCheck(cell, x, y, lo, hi, () => taucFit(x.values, y.values, r, lo, hi))
     if (f.r2 < 0.99)
       warnings.push(`the Tauc plot is not straight in this window (r² = ${formatNumber(f.r2)}): move the window onto the linear part of the edge`)
     if (f.Eg > Math.min(lo, hi))
@@ -136,7 +164,7 @@ export function evaluateFit(p: PreparedCell, env: Env): CellState {
       unit: e.unit,
     }
   }
-  const f = urbachFit(x.values, y.values, lo, hi)
+  const f = withWindowCheck(cell, x, y, lo, hi, () => urbachFit(x.values, y.values, lo, hi))
   if (f.r2 < 0.98)
     warnings.push(`ln α is not straight in this window (r² = ${formatNumber(f.r2)}): an Urbach tail is exponential only below the gap; move the window below the gap`)
   const fields = new Map<string, Field>([

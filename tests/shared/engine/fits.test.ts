@@ -126,7 +126,16 @@ describe('fit cells: urbach', () => {
 
   it('an urbach fit over a window with zero absorption is a clear error', () => {
     const res = run([...directEdge, { kind: 'fit', name: 'tail', method: 'urbach', x: 'E', y: 'alpha', from: 1.3, to: 1.45 }])
-    expect(pick(res, 'tail').error).toMatch(/an Urbach fit takes its logarithm/)
+    expect(pick(res, 'tail').error).toBe('the y cell alpha is zero at E = 1.3 eV, inside the window; an Urbach fit takes its logarithm, so α must be a finite number above zero throughout the window: move the window or fix the data there')
+  })
+
+  it('a tauc fit over a window with negative or non-finite absorption names the first such point in the cells\' units', () => {
+    const negative = [directEdge[0], { kind: 'formula', name: 'alpha', source: 'alpha_direct(E, 1.5*eV, 4e9*eV/cm^2) - 100/cm', unit: '1/cm' }]
+    expect(pick(run([...negative, { kind: 'fit', name: 'edge', method: 'tauc', x: 'E', y: 'alpha', r: 0.5, from: 1.45, to: 2 }]), 'edge').error)
+      .toBe('the y cell alpha is negative (-100 1/cm) at E = 1.45 eV, inside the window; a Tauc fit needs a finite α of zero or more throughout the window: move the window or fix the data there')
+    const gap = [directEdge[0], { kind: 'formula', name: 'alpha', source: 'alpha_direct(E, 1.5*eV, 4e9*eV/cm^2) + log(E - 1.7*eV)*0', unit: '1/cm' }]
+    expect(pick(run([...gap, { kind: 'fit', name: 'edge', method: 'tauc', x: 'E', y: 'alpha', r: 0.5, from: 1.6, to: 2 }]), 'edge').error)
+      .toBe('the y cell alpha is not a finite number at E = 1.6 eV, inside the window; a Tauc fit needs a finite α of zero or more throughout the window: move the window or fix the data there')
   })
 
   it('a fit whose x is not an energy gets a warning naming the dimension', () => {
