@@ -15,7 +15,7 @@ import { WebSocketServer } from 'ws'
 import type * as Y from 'yjs'
 import type { Db } from '../db/client'
 import { userForToken } from '../services/sessions'
-import { roleInLab } from '../services/access'
+import { roleInLab, sheetAccess } from '../services/access'
 import { createAuthenticate, sessionMessage, type Authenticate } from './auth'
 import { createLocalBus, type CollabBus } from './bus'
 import { CLOSE, CollabConnection, DEFAULT_RATE_LIMIT, emptyConnectionCounters, type ConnectionCounters, type RateLimit } from './connection'
@@ -127,21 +127,29 @@ export function createCollab(options: CollabOptions): Collab {
   }, options.sweepMs ?? 1000)
   sweep.unref()
 
-  /** Session signed out, ended by a password reset, or membership changed without the hook reaching us: caught within `recheckMs`. */
+  /**
+   * Session signed out, ended by a password reset, membership changed or sheet deleted without the hook reaching us
+   * (another process, a failed hook): caught within `recheckMs`.
+   */
   function recheck(conn: CollabConnection, now: number) {
     conn.lastRecheck = now
-    userForToken(db, options.secret, conn.token).then(
-      (session) => {
+    userForToken(db, options.secret, conn.token)
+      .then((session) => {
         if (conn.closed) return
         if (!session.ok) {
           conn.close(CLOSE.sessionEnded, sessionMessage(session.reason))
           return
         }
-        const role = roleInLab(db, conn.labId, conn.userId)
-        if (role !== conn.role) conn.applyRole(role)
-      },
-      (err: Error) => log(`recheck of a connection failed: ${err.message}`),
-    )
+        const access = sheetAccess(db, conn.sheetId, conn.userId)
+        if (!access.sheet) {
+          closeSheet(conn.sheetId)
+          return
+        }
+        if (access.role !== conn.role) conn.applyRole(access.role)
+      })
+      // .catch, not a second .then argument: a failed database read in the check above must not become an
+      // unhandled rejection (which ends the process).
+      .catch((err: Error) => log(`recheck of a connection failed: ${err.message}`))
   }
 
   function applyMembership(labId: string, userId: string) {

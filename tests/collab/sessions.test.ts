@@ -110,6 +110,24 @@ describe('collab: sessions and roles while connected', () => {
   })
 })
 
+describe('collab: the periodic recheck', () => {
+  const t = useCollab({ recheckMs: 30, sweepMs: 10 })
+
+  it('closes the connections of a sheet deleted without the hook (4404), unloads it, and leaves other sheets open', async () => {
+    const second = t.lab.addSheet()
+    const a = t.connect('editor')
+    const b = t.connect('viewer')
+    const c = t.connect('editor', { sheetId: second })
+    await Promise.all([a.synced(), b.synced(), c.synced()])
+    t.lab.handle.sqlite.prepare('DELETE FROM sheets WHERE id = ?').run(t.lab.sheetId)
+    await until(() => a.closes.length === 1 && b.closes.length === 1, 'the recheck to close the deleted sheet')
+    expect(a.closes[0]).toEqual({ code: CLOSE.sheetDeleted, reason: 'this sheet was deleted' })
+    expect(t.server.collab.stats().documents).toBe(1)
+    expect(c.closes).toEqual([])
+    expect((await upgradeStatus(t.server, t.lab.sheetId, t.lab.tokens.editor)).status).toBe(404)
+  })
+})
+
 describe('collab: control events across instances', () => {
   const t = useCollab({ start: false })
 
