@@ -8,7 +8,7 @@
  */
 import type { Num } from './num'
 import { broadcastLength, map2 } from './num'
-import { map3, check, positive, nonNegative, rangeError } from './broadcast'
+import { map3, check, positive, nonNegative, ArgumentRangeError } from './broadcast'
 
 const LN10 = Math.LN10
 
@@ -87,7 +87,7 @@ export function thicknessFor(alpha: Num, fraction: Num): Num {
 }
 
 function badR(fn: string, R: number): RangeError {
-  return rangeError(fn, `the face reflectance R must be between 0 and 1 (got ${R})`)
+  return new ArgumentRangeError(`${fn}: the face reflectance R must be between 0 and 1 (got ${R})`, fn, 'the face reflectance R', 'between 0 and 1', R)
 }
 
 /**

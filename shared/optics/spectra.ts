@@ -6,7 +6,7 @@
  */
 import type { Num } from './num'
 import { broadcastLength, map2 } from './num'
-import { check, nonNegative, positive, rangeError } from './broadcast'
+import { check, nonNegative, positive, rangeError, ArgumentRangeError } from './broadcast'
 import { c0, h, kB, q } from './constants'
 
 const HC = h * c0
@@ -152,8 +152,9 @@ function spectrumOf(fn: string, lambda: Num, flux: Num): Spectrum {
     const j = descending ? n - 1 - i : i
     x[i] = grid[j]
     f[i] = flux[j]
-    if (!(x[i] > 0)) throw rangeError(fn, `wavelengths must be positive (got ${x[i]})`)
-    if (!Number.isFinite(f[i]) || f[i] < 0) throw rangeError(fn, `the photon flux must be finite and not negative (got ${f[i]} at ${x[i]} m)`)
+    if (!(x[i] > 0)) throw new ArgumentRangeError(`${fn}: wavelengths must be positive (got ${x[i]})`, fn, 'the wavelength lambda', 'positive', x[i], j)
+    if (!Number.isFinite(f[i]) || f[i] < 0)
+      throw new ArgumentRangeError(`${fn}: the photon flux must be finite and not negative (got ${f[i]} at ${x[i]} m)`, fn, 'the photon flux', 'finite and not negative', f[i], j)
     if (i > 0 && !(x[i] > x[i - 1])) throw rangeError(fn, 'the wavelength grid must be strictly increasing or strictly decreasing')
   }
   const cum = new Float64Array(n)

@@ -258,6 +258,12 @@ describe('formula language: syntax', () => {
     expect(formula('alpha_edge(1.5*eV, -0.2*eV, 1e9, 0.5, 0.02*eV)').error).toBe('alpha_edge: the gap Eg must be positive, but it is -0.2 eV')
     expect(formula('varshni([300, -5, 10]*K, 1.5*eV, 5e-4*eV/K, 200*K)').error)
       .toBe('varshni: the temperature T must be zero or positive (kelvin), but element 1 (counting from 0) is -5 K')
+    expect(formula('transmittance_slab(1e4/cm, 1*um, 1.2)').error).toBe('transmittance_slab: the face reflectance R must be between 0 and 1, but it is 1.2')
+    const flux = '[1e18, -2e18, 1e18]/(m^2*s*nm)'
+    expect(formula(`detailed_balance(1.34*eV, 300*K, [400, 500, 600]*nm, ${flux})`).error)
+      .toBe('detailed_balance: the photon flux must be finite and not negative, but element 1 (counting from 0) is -2e18 1/(m²·s·nm)')
+    expect(formula('detailed_balance(1.34*eV, 300*K, [400, -500, 600]*nm, [1, 1, 1]/(m^2*s*nm))').error)
+      .toBe('detailed_balance: the wavelength lambda must be positive, but element 1 (counting from 0) is -500 nm')
   })
 })
 
