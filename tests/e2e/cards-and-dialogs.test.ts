@@ -166,6 +166,30 @@ describe('cards', () => {
     expect(mentions).toBe(1)
   })
 
+  it('labels a note’s preview while it is edited, hints at Markdown for an empty one, and a missing sheet leads back to the labs', async () => {
+    const editor = await e2e.newBrowser({ label: 'editor' })
+    await signIn(editor.page, e2e.server.url, DEMO.editor)
+    const sheetId = await createSheet(editor.page, 'Notes', [
+      { kind: 'note', name: 'intro', text: '## Film Q-3\n\nMeasured on the lab spectrophotometer.' },
+      { kind: 'note', name: 'blank', text: '' },
+    ])
+    await openLive(editor.page, sheetId)
+    const intro = card(editor.page, 'intro')
+    await intro.getByRole('button', { name: 'Edit' }).click()
+    await expect.poll(() => intro.locator('.preview-label').textContent()).toBe('As it reads on the sheet:')
+    expect(await intro.locator('.note-body.preview h2').textContent()).toBe('Film Q-3')
+    await intro.getByRole('button', { name: 'Done' }).click()
+    await expect.poll(() => intro.locator('.preview-label').count()).toBe(0)
+    const blank = card(editor.page, 'blank')
+    await blank.getByRole('button', { name: 'Edit' }).click()
+    await expect.poll(() => blank.locator('.preview-label').textContent()).toContain('Markdown')
+
+    await editor.page.goto(`${e2e.server.url}/sheets/00000000-0000-4000-8000-000000000000`)
+    await expect.poll(() => editor.page.getByRole('heading', { name: 'This sheet could not be opened' }).isVisible(), { timeout: 15_000 }).toBe(true)
+    await editor.page.getByRole('button', { name: 'My labs' }).click()
+    await editor.page.waitForURL((u) => u.pathname === '/labs', { timeout: 15_000 })
+  })
+
   it('tells a viewer of an empty sheet that its cells appear as an editor adds them', async () => {
     const editor = await e2e.newBrowser({ label: 'editor' })
     await signIn(editor.page, e2e.server.url, DEMO.editor)
