@@ -63,10 +63,12 @@ export interface ConnectionCounters {
   textFrames: number
   rateLimited: number
   awarenessRefused: number
+  /** Messages whose handling threw (a server bug, never a client's fault alone); their connections were closed. */
+  unexpectedFailures: number
 }
 
 export function emptyConnectionCounters(): ConnectionCounters {
-  return { deniedUpdates: 0, malformedFrames: 0, oversizeFrames: 0, textFrames: 0, rateLimited: 0, awarenessRefused: 0 }
+  return { deniedUpdates: 0, malformedFrames: 0, oversizeFrames: 0, textFrames: 0, rateLimited: 0, awarenessRefused: 0, unexpectedFailures: 0 }
 }
 
 const WS_OPEN = 1
@@ -115,6 +117,7 @@ export class CollabConnection implements RegistryPeer {
     private readonly counters: ConnectionCounters,
     private readonly limit: RateLimit,
     private readonly onClosed: (conn: CollabConnection) => void,
+    private readonly log?: (message: string) => void,
   ) {
     this.userId = admission.user.id
     this.userName = admission.user.name
@@ -125,7 +128,16 @@ export class CollabConnection implements RegistryPeer {
     this.role = admission.role
     this.messageTokens = limit.messageBurst
     this.byteTokens = limit.byteBurst
-    ws.on('message', (data, isBinary) => this.onMessage(data, isBinary))
+    ws.on('message', (data, isBinary) => {
+      try {
+        this.onMessage(data, isBinary)
+      } catch (err) {
+        // Nothing a client sends may end the process (a throw here would be uncaught): this connection alone goes.
+        this.counters.unexpectedFailures++
+        this.log?.(`a message from ${this.userId} on sheet ${this.sheetId} could not be handled: ${(err as Error).message}`)
+        this.close(CLOSE.saveFailed, 'the server could not handle this message; reconnecting')
+      }
+    })
     ws.on('pong', () => {
       this.alive = true
     })

@@ -200,7 +200,7 @@ export function createCollab(options: CollabOptions): Collab {
         ws.close(closing ? CLOSE.goingAway : 1013, closing ? 'the server is shutting down' : 'the sheet was reloaded; reconnect')
         return
       }
-      const conn = new CollabConnection(ws, admission, entry, registry, connCounters, limit, (c) => connections.delete(c))
+      const conn = new CollabConnection(ws, admission, entry, registry, connCounters, limit, (c) => connections.delete(c), log)
       // The first recheck falls between half and all of `recheckMs` from now, so a lab reconnecting together after a
       // restart is not rechecked in one burst.
       conn.lastRecheck = Date.now() - Math.random() * (recheckMs / 2)

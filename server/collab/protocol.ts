@@ -40,6 +40,28 @@ export type Decoded = { ok: true; message: ClientMessage } | { ok: false; reason
 /** Largest awareness state we keep for one client (JSON characters): presence is a name, a colour and a cursor. */
 export const MAX_AWARENESS_STATE_CHARS = 16 * 1024
 /**
+ * Deepest nesting of objects and arrays an awareness state may have (a cursor is about 4 deep). JSON.parse takes far
+ * deeper values than JSON.stringify can write back, so a few kilobytes of brackets would otherwise overflow the stack
+ * when the state is re-encoded for relay.
+ */
+export const MAX_AWARENESS_STATE_DEPTH = 32
+
+/** Nesting depth of a parsed JSON value (0 for a scalar), counted without recursion and stopping past `limit`. */
+function jsonDepth(value: unknown, limit: number): number {
+  let deepest = 0
+  const stack: [unknown, number][] = [[value, 0]]
+  while (stack.length > 0) {
+    const [v, d] = stack.pop()!
+    if (v === null || typeof v !== 'object') continue
+    const here = d + 1
+    if (here > deepest) deepest = here
+    if (deepest > limit) return deepest
+    for (const child of Array.isArray(v) ? v : Object.values(v)) stack.push([child, here])
+  }
+  return deepest
+}
+
+/**
  * Most awareness entries one message may carry. The stock client sends back every presence it learns, so a newcomer
  * echoes everyone on the sheet in one message: this must stay far above the people one sheet can hold (it once was
  * 64, and the 65th person to open a busy sheet was disconnected over and over).
@@ -87,6 +109,8 @@ export function decodeAwarenessUpdate(update: Uint8Array): AwarenessEntry[] {
       throw new FrameError('awareness state is not JSON')
     }
     if (state !== null && (typeof state !== 'object' || Array.isArray(state))) throw new FrameError('awareness state must be an object or null')
+    if (jsonDepth(state, MAX_AWARENESS_STATE_DEPTH) > MAX_AWARENESS_STATE_DEPTH)
+      throw new FrameError(`awareness state nested more than ${MAX_AWARENESS_STATE_DEPTH} levels deep`)
     entries.push({ clientId, clock, state: state as Record<string, unknown> | null })
   }
   expectEnd(decoder)

@@ -4,6 +4,7 @@
 // and a writer's burst past the rate limit — each handled on its own connection while the others go on.
 import { describe, expect, it } from 'vitest'
 import * as Y from 'yjs'
+import * as encoding from 'lib0/encoding'
 import { cellsOf } from '../../shared/doc/sheetDoc'
 import { loadDocument } from '../../server/services/documents'
 import { CLOSE, MAX_PAYLOAD } from '../../server/collab/index'
@@ -87,6 +88,29 @@ describe('collab: varints decoded as numbers', () => {
 
 describe('collab: readers on the wire', () => {
   const t = useCollab()
+
+  it('closes a connection whose presence is nested thousands deep (re-encoding it would overflow the stack), and the server goes on', async () => {
+    const editor = t.connect('editor')
+    await editor.synced()
+    const viewer = await t.raw('viewer')
+    const depth = 6000
+    const json = '{"a":' + '['.repeat(depth) + ']'.repeat(depth) + '}'
+    const inner = encoding.createEncoder()
+    encoding.writeVarUint(inner, 1)
+    encoding.writeVarUint(inner, 9001)
+    encoding.writeVarUint(inner, 1)
+    encoding.writeVarString(inner, json)
+    const outer = encoding.createEncoder()
+    encoding.writeVarUint(outer, 1)
+    encoding.writeVarUint8Array(outer, encoding.toUint8Array(inner))
+    viewer.ws.send(encoding.toUint8Array(outer))
+    const closed = await viewer.closed
+    expect(closed.code).toBe(CLOSE.malformed)
+    expect(closed.reason).toMatch(/nested/)
+    ;(cellsOf(editor.doc).get(2).get('source') as Y.Text).insert(0, '2*')
+    await until(() => storedRows(t.lab) === 1, 'the editor to go on')
+    expect(editor.closes).toEqual([])
+  })
 
   it('drops a reader’s sync step 2 sent as its very first message, answers it once, and keeps the reader', async () => {
     const watcher = t.connect('editor')
@@ -249,5 +273,31 @@ describe('collab: a writer over its rate limit', () => {
     expect(storedRows(t.lab)).toBe(accepted)
     expect(formula(loadDocument(t.lab.handle.db, t.lab.sheetId))).toBe(formula(watcher.doc))
     expect(watcher.closes).toEqual([])
+  })
+})
+
+describe('collab: a failure while handling one message', () => {
+  let failures = 0
+  const t = useCollab({
+    // A fan-out that fails once, on the first presence it is given: inside the handling of a client's message.
+    bus: {
+      publish(_instance, event) {
+        if (event.type === 'awareness' && failures++ === 0) throw new Error('the bus is down')
+      },
+      subscribe: () => () => {},
+    },
+  })
+
+  it('closes only the connection whose message could not be handled (1011) and the server goes on', async () => {
+    const editor = t.connect('editor')
+    await editor.synced()
+    const viewer = await t.raw('viewer')
+    viewer.ws.send(awarenessFrame([{ clientId: 4100, clock: 1, state: { cell: 'cx' } }]))
+    const closed = await viewer.closed
+    expect(closed).toEqual({ code: CLOSE.saveFailed, reason: 'the server could not handle this message; reconnecting' })
+    expect(t.server.collab.stats().counters.unexpectedFailures).toBe(1)
+    ;(cellsOf(editor.doc).get(2).get('source') as Y.Text).insert(0, '2*')
+    await until(() => storedRows(t.lab) === 1, 'the editor to go on')
+    expect(editor.closes).toEqual([])
   })
 })
