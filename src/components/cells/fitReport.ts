@@ -74,7 +74,7 @@ const MEANING: Record<string, string> = {
   n: 'points in the window',
   chi2: 'sum of squared residuals',
   reducedChi2: 'χ² per degree of freedom',
-  iterations: 'iterations',
+  iterations: 'Levenberg–Marquardt steps taken',
 }
 
 function isRecord(v: unknown): v is Record<string, unknown> {
