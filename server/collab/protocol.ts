@@ -178,14 +178,41 @@ export function decodeClientMessage(frame: Uint8Array): Decoded {
   }
 }
 
-/** Parses a Yjs (v1) update completely without applying it, so a malformed one is refused before it touches a document. */
+/**
+ * Deepest nesting of plain values (objects, arrays) inside one document update's content. A sheet's deepest value is a
+ * spectrum's columns, about 4 levels. Yjs reads JSON content far deeper than it can write it back, so an update
+ * nested a few thousand levels deep would be applied and then fail every later encode of the document (sync
+ * answers, relay, compaction) with a stack overflow.
+ */
+export const MAX_UPDATE_VALUE_DEPTH = 64
+
+/** The plain values an item's content carries (none for text, types, binary and deletions). */
+function contentValues(content: unknown): unknown[] {
+  if (content instanceof Y.ContentAny || content instanceof Y.ContentJSON) return content.arr
+  if (content instanceof Y.ContentEmbed) return [content.embed]
+  if (content instanceof Y.ContentFormat) return [content.value]
+  if (content instanceof Y.ContentDoc) return [content.opts]
+  return []
+}
+
+/**
+ * Parses a Yjs (v1) update completely without applying it, so a malformed one is refused before it touches a
+ * document; also refuses content nested deeper than MAX_UPDATE_VALUE_DEPTH.
+ */
 export function checkUpdate(update: Uint8Array): string | null {
+  let decoded: ReturnType<typeof Y.decodeUpdate>
   try {
-    Y.decodeUpdate(update)
-    return null
+    decoded = Y.decodeUpdate(update)
   } catch (err) {
     return `malformed document update (${(err as Error).message})`
   }
+  for (const struct of decoded.structs) {
+    if (!(struct instanceof Y.Item)) continue
+    for (const value of contentValues(struct.content))
+      if (jsonDepth(value, MAX_UPDATE_VALUE_DEPTH) > MAX_UPDATE_VALUE_DEPTH)
+        return `document update holds a value nested more than ${MAX_UPDATE_VALUE_DEPTH} levels deep`
+  }
+  return null
 }
 
 export function encodeSyncStep1(doc: Y.Doc): Uint8Array {

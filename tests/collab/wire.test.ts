@@ -276,6 +276,76 @@ describe('collab: a writer over its rate limit', () => {
   })
 })
 
+/** A v1 update of one item under meta.k (new client 4242) whose content (ref 2 JSON, ref 8 any) `write` puts down. */
+function rawItemUpdate(contentRef: 2 | 8, write: (e: encoding.Encoder) => void): Uint8Array {
+  const e = encoding.createEncoder()
+  encoding.writeVarUint(e, 1) // one client's structs
+  encoding.writeVarUint(e, 1) // one struct
+  encoding.writeVarUint(e, 4242) // client
+  encoding.writeVarUint(e, 0) // clock
+  encoding.writeUint8(e, contentRef | 0x20) // content ref, parentSub present, no origins: parent follows
+  encoding.writeVarUint(e, 1) // the parent is a root type, by name
+  encoding.writeVarString(e, 'meta')
+  encoding.writeVarString(e, 'k')
+  write(e)
+  encoding.writeVarUint(e, 0) // empty delete set
+  return encoding.toUint8Array(e)
+}
+
+describe('collab: deeply nested values in a writer’s update', () => {
+  const t = useCollab({ idleCompactMs: 20, sweepMs: 10 })
+
+  it.each([
+    ['JSON content 5,000 deep (readable, not writable back)', rawItemUpdate(2, (e) => {
+      encoding.writeVarUint(e, 1)
+      encoding.writeVarString(e, '['.repeat(5000) + ']'.repeat(5000))
+    })],
+    ['any content 3,000 deep', rawItemUpdate(8, (e) => {
+      encoding.writeVarUint(e, 1)
+      for (let i = 0; i < 3000; i++) {
+        encoding.writeUint8(e, 117)
+        encoding.writeVarUint(e, 1)
+      }
+      encoding.writeUint8(e, 117)
+      encoding.writeVarUint(e, 0)
+    })],
+  ])('refuses %s and closes the writer, so the document stays encodable for everyone', async (_label, update) => {
+    const watcher = t.connect('editor2')
+    await watcher.synced()
+    expect(Y.decodeUpdate(update).structs.length).toBe(1)
+    const editor = await t.raw('editor')
+    editor.ws.send(syncFrame(2, update))
+    const closed = await editor.closed
+    expect(closed.code).toBe(CLOSE.malformed)
+    expect(closed.reason).toMatch(/nested more than 64 levels/)
+    expect(storedRows(t.lab)).toBe(0)
+    // The document still encodes: an edit is stored, compacted when idle, and a newcomer syncs it.
+    ;(cellsOf(watcher.doc).get(2).get('source') as Y.Text).insert(0, '2*')
+    await until(() => storedRows(t.lab) === 1, 'the edit stored')
+    await until(() => storedRows(t.lab) === 0, 'the idle compaction')
+    const late = t.connect('viewer')
+    await late.synced()
+    expect(formula(late.doc)).toBe('2*Eg*2')
+    expect(late.doc.getMap('meta').has('k')).toBe(false)
+  })
+
+  it('accepts a spectrum cell’s columns (a few levels of objects over long arrays)', async () => {
+    const watcher = t.connect('editor2')
+    await watcher.synced()
+    const local = loadDocument(t.lab.handle.db, t.lab.sheetId)
+    const before = Y.encodeStateVector(local)
+    const cell = new Y.Map<unknown>()
+    cell.set('id', 'cs')
+    cell.set('kind', 'spectrum')
+    cell.set('columns', { wavelength: { unit: 'nm', values: Array.from({ length: 5000 }, (_, i) => 300 + i / 10) } })
+    cellsOf(local).push([cell])
+    const editor = await t.raw('editor')
+    editor.ws.send(syncFrame(2, Y.encodeStateAsUpdate(local, before)))
+    await until(() => cellsOf(watcher.doc).length === 5, 'the spectrum at the watcher')
+    expect(editor.isOpen()).toBe(true)
+  })
+})
+
 describe('collab: a failure while handling one message', () => {
   let failures = 0
   const t = useCollab({
