@@ -217,7 +217,13 @@ export class CollabConnection implements RegistryPeer {
   private detach(): void {
     if (this.closed) return
     this.closed = true
-    this.registry.leave(this.entry, this)
+    try {
+      this.registry.leave(this.entry, this)
+    } catch (err) {
+      // Called from socket events too, where a throw would be uncaught: the departure is logged, never fatal.
+      this.counters.unexpectedFailures++
+      this.log?.(`the departure of ${this.userId} from sheet ${this.sheetId} failed: ${(err as Error).message}`)
+    }
     this.onClosed(this)
   }
 

@@ -347,12 +347,13 @@ describe('collab: deeply nested values in a writer’s update', () => {
 })
 
 describe('collab: a failure while handling one message', () => {
-  let failures = 0
+  let busDown = false
   const t = useCollab({
-    // A fan-out that fails once, on the first presence it is given: inside the handling of a client's message.
+    // A fan-out that fails on every presence change while down: inside the handling of a client's message, and again
+    // when that client's presence is removed as its socket closes.
     bus: {
       publish(_instance, event) {
-        if (event.type === 'awareness' && failures++ === 0) throw new Error('the bus is down')
+        if (busDown && event.type === 'awareness') throw new Error('the bus is down')
       },
       subscribe: () => () => {},
     },
@@ -362,10 +363,13 @@ describe('collab: a failure while handling one message', () => {
     const editor = t.connect('editor')
     await editor.synced()
     const viewer = await t.raw('viewer')
+    busDown = true
     viewer.ws.send(awarenessFrame([{ clientId: 4100, clock: 1, state: { cell: 'cx' } }]))
     const closed = await viewer.closed
     expect(closed).toEqual({ code: CLOSE.saveFailed, reason: 'the server could not handle this message; reconnecting' })
-    expect(t.server.collab.stats().counters.unexpectedFailures).toBe(1)
+    await until(() => t.server.collab.stats().counters.unexpectedFailures === 2, 'the failed message and the failed departure')
+    expect(t.server.collab.stats().connections).toBe(1)
+    busDown = false
     ;(cellsOf(editor.doc).get(2).get('source') as Y.Text).insert(0, '2*')
     await until(() => storedRows(t.lab) === 1, 'the editor to go on')
     expect(editor.closes).toEqual([])
