@@ -79,6 +79,7 @@ export interface RegistryCounters {
   compactionsSkipped: number
   evictions: number
   storeFailures: number
+  busFailures: number
   flushes: number
 }
 
@@ -97,6 +98,7 @@ export class DocumentRegistry {
     compactionsSkipped: 0,
     evictions: 0,
     storeFailures: 0,
+    busFailures: 0,
     flushes: 0,
   }
 
@@ -391,11 +393,20 @@ export class DocumentRegistry {
     this.sends.push({ entry, frame, peer: null, except: null })
     this.scheduleFlush()
     if (origin !== BUS_ORIGIN && !entry.broken)
-      this.options.bus.publish(this.options.instanceId, {
-        type: 'awareness',
-        sheetId: entry.sheetId,
-        update: awarenessProtocol.encodeAwarenessUpdate(entry.awareness, clients),
-      })
+      this.publish({ type: 'awareness', sheetId: entry.sheetId, update: awarenessProtocol.encodeAwarenessUpdate(entry.awareness, clients) })
+  }
+
+  /**
+   * Tells the other instances. A bus that fails costs them this event (they catch up from the database when they next
+   * load the sheet), never this instance's stored rows or its peers.
+   */
+  private publish(event: BusEvent): void {
+    try {
+      this.options.bus.publish(this.options.instanceId, event)
+    } catch (err) {
+      this.counters.busFailures++
+      this.options.log?.(`could not tell other instances about ${event.type} of sheet ${'sheetId' in event ? event.sheetId : '?'}: ${(err as Error).message}`)
+    }
   }
 
   /** Stores rows in one transaction (per sheet on failure, so one bad sheet cannot sink the others). */
@@ -403,25 +414,30 @@ export class DocumentRegistry {
     const stored = new Set<DocEntry>()
     if (rows.length === 0) return stored
     const live = rows.filter((r) => !r.entry.broken)
-    let batches: QueuedRow[][]
+    let seqs: number[] | null
     try {
-      const seqs = this.options.store.storeUpdates(live.map((r) => r.row))
+      seqs = this.options.store.storeUpdates(live.map((r) => r.row))
+    } catch {
+      seqs = null
+    }
+    if (seqs) {
       this.recordStored(live, seqs, stored)
       return stored
-    } catch {
-      const bySheet = new Map<DocEntry, QueuedRow[]>()
-      for (const r of live) bySheet.set(r.entry, [...(bySheet.get(r.entry) ?? []), r])
-      batches = [...bySheet.values()]
     }
-    for (const batch of batches) {
+    const bySheet = new Map<DocEntry, QueuedRow[]>()
+    for (const r of live) bySheet.set(r.entry, [...(bySheet.get(r.entry) ?? []), r])
+    for (const batch of bySheet.values()) {
       const entry = batch[0].entry
+      let batchSeqs: number[]
       try {
-        this.recordStored(batch, this.options.store.storeUpdates(batch.map((r) => r.row)), stored)
+        batchSeqs = this.options.store.storeUpdates(batch.map((r) => r.row))
       } catch (err) {
         this.counters.storeFailures++
         this.options.log?.(`could not store ${batch.length} update(s) of sheet ${entry.sheetId}: ${(err as Error).message}`)
         this.breakEntry(entry)
+        continue
       }
+      this.recordStored(batch, batchSeqs, stored)
     }
     return stored
   }
@@ -430,7 +446,7 @@ export class DocumentRegistry {
     rows.forEach((r, i) => {
       r.entry.seqs.push(seqs[i])
       stored.add(r.entry)
-      this.options.bus.publish(this.options.instanceId, { type: 'update', sheetId: r.row.sheetId, update: r.row.update, seq: seqs[i] })
+      this.publish({ type: 'update', sheetId: r.row.sheetId, update: r.row.update, seq: seqs[i] })
     })
     this.counters.rowsStored += rows.length
   }
