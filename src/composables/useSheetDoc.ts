@@ -23,6 +23,7 @@ import { cellToMap, cellsOf, mapToCell, metaOf, newCellId, type CellMap } from '
 import type { Cell, SheetCell } from '../../shared/schema/sheet'
 import { keepPageForOffline, openLocalCopy } from '@/lib/localCopy'
 import { NO_PENDING_EDITS, noteChange, noteSent, restoredPending, type PendingEdits } from '@/lib/localCopyPending'
+import { reportWaitingEdits } from '@/lib/waitingEdits'
 import { useSessionStore } from '@/stores/session'
 
 export type ConnectionState = 'connecting' | 'online' | 'offline'
@@ -180,7 +181,10 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     const before = pending.value
     if (next === before) return
     pending.value = next
-    if (next.count !== before.count) localCopy?.setPending(next.count)
+    if (next.count !== before.count) {
+      localCopy?.setPending(next.count)
+      reportWaitingEdits(sheetId, next.count)
+    }
   }
   /** This person's changes while not live are kept edits; the server's and the stored copy's updates are not. */
   doc.on('update', (_update: Uint8Array, updateOrigin: unknown) => {
@@ -214,6 +218,7 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
 
   onScopeDispose(() => {
     disposed = true
+    reportWaitingEdits(sheetId, 0)
     if (sentCheck !== null) clearTimeout(sentCheck)
     localCopy?.close()
     window.removeEventListener('online', onOnline)

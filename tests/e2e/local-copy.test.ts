@@ -122,6 +122,16 @@ describe('the copy of a sheet kept in the browser', () => {
     await expect.poll(() => resultText(tomas.page, 'f'), { timeout: 20_000 }).toContain('13')
     expect(await formulaText(mira.page, 'f')).toBe('a + 1')
 
+    // signing out now would delete the waiting edit with everything kept in the browser: the menu asks first
+    await tomas.page.getByTestId('user-menu').click()
+    await tomas.page.getByRole('menuitem', { name: 'Sign out' }).click()
+    const question = tomas.page.getByRole('dialog', { name: 'Edits not sent yet' })
+    await expect.poll(() => question.textContent()).toContain('1 edit made while the server could not be reached has not been sent yet')
+    await question.getByRole('button', { name: 'Stay signed in' }).click()
+    await expect.poll(() => question.isVisible()).toBe(false)
+    expect(new URL(tomas.page.url()).pathname).toBe(`/sheets/${sheetId}`)
+    await expect.poll(() => connection(tomas.page)).toContain('Offline · 1 edit waiting on this device')
+
     // the server comes back: the edit goes out, the badge says so, the other browser and the stored sheet have it
     await e2e.server.start()
     await expect.poll(() => connection(tomas.page), { timeout: 30_000 }).toContain('Live · 1 edit sent')
@@ -157,16 +167,19 @@ describe('the copy of a sheet kept in the browser', () => {
     expect(res.ok()).toBe(true)
     try {
       await openLive(tomas.page, sheetId)
-      expect(await tomas.page.getByTestId('readonly-note').isVisible()).toBe(true)
-      expect(await formulaText(tomas.page, 'g')).toBe('2 * 3')
-      expect(await resultText(tomas.page, 'g')).toContain('6')
-      expect(await connection(tomas.page)).toBe('Live')
+      await expect.poll(() => tomas.page.getByTestId('readonly-note').isVisible(), { timeout: 10_000 }).toBe(true)
+      await expect.poll(() => formulaText(tomas.page, 'g'), { timeout: 10_000 }).toBe('2 * 3')
+      await expect.poll(() => resultText(tomas.page, 'g'), { timeout: 15_000 }).toContain('6')
+      await expect.poll(() => connection(tomas.page), { timeout: 10_000 }).toBe('Live')
       expect(await storedSource(mira.page, sheetId, 'g')).toBe('2 * 3')
+      // and it stays so: the kept edit never comes back
+      await tomas.page.waitForTimeout(500)
+      expect(await formulaText(tomas.page, 'g')).toBe('2 * 3')
       // his screen cannot be edited, and stays as the server has it after a reload from the reader's cache
       expect(await card(tomas.page, 'g').locator('.cm-content').getAttribute('contenteditable')).not.toBe('true')
       await tomas.page.reload()
       await expect.poll(() => connection(tomas.page), { timeout: 20_000 }).toBe('Live')
-      expect(await formulaText(tomas.page, 'g')).toBe('2 * 3')
+      await expect.poll(() => formulaText(tomas.page, 'g'), { timeout: 10_000 }).toBe('2 * 3')
     } finally {
       await mira.page.request.patch(`${e2e.server.url}/api/labs/${lab}/members/${tomasId}`, { data: { role: 'editor' } })
     }
