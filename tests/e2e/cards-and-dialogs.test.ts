@@ -6,28 +6,11 @@
  * first click on a field of the card lands), and a reader's empty sheet. Each test makes its own sheet through the API.
  */
 import { describe, expect, it } from 'vitest'
-import type { Page } from 'playwright-core'
-import { DEMO, DEMO_LAB, signIn, useBrowserSuite } from '../utils/browser'
+import { DEMO, signIn, useBrowserSuite } from '../utils/browser'
+import { card, sheetPage } from '../utils/sheetPage'
 
 const e2e = useBrowserSuite()
-
-const card = (page: Page, name: string) => page.locator(`.pn-cell[data-cell-name="${name}"]`)
-
-async function createSheet(page: Page, title: string, cells: unknown[]): Promise<string> {
-  const base = e2e.server.url
-  const labs = (await (await page.request.get(`${base}/api/labs`)).json()) as { labs: { id: string; name: string }[] }
-  const lab = labs.labs.find((l) => l.name === DEMO_LAB)
-  if (!lab) throw new Error(`not a member of "${DEMO_LAB}"`)
-  const res = await page.request.post(`${base}/api/labs/${lab.id}/sheets`, { data: { format: 'penumbra.sheet', version: 1, title, cells } })
-  const body = (await res.json()) as { id?: string; error?: string }
-  if (!res.ok() || !body.id) throw new Error(`creating "${title}" answered ${res.status()}: ${JSON.stringify(body)}`)
-  return body.id
-}
-
-async function openLive(page: Page, sheetId: string): Promise<void> {
-  await page.goto(`${e2e.server.url}/sheets/${sheetId}`)
-  await expect.poll(() => page.getByTestId('connection').textContent(), { timeout: 20_000 }).toContain('Live')
-}
+const { createSheet, openLive } = sheetPage(() => e2e.server)
 
 /** An invented direct-gap edge (α ∝ √(E − Eg)/E), a Tauc fit of it, and a broken formula with a dependent. */
 const EDGE_SHEET = [

@@ -5,43 +5,11 @@
  * reaches the other editor and a viewer who opens the sheet afresh.
  */
 import { describe, expect, it } from 'vitest'
-import type { Page } from 'playwright-core'
-import { DEMO, DEMO_LAB, signIn, useBrowserSuite } from '../utils/browser'
+import { DEMO, signIn, useBrowserSuite } from '../utils/browser'
+import { card, connection, formulaText, resultText, sheetPage } from '../utils/sheetPage'
 
 const e2e = useBrowserSuite()
-
-const card = (page: Page, name: string) => page.locator(`.pn-cell[data-cell-name="${name}"]`)
-
-async function createSheet(page: Page, title: string, cells: unknown[]): Promise<string> {
-  const base = e2e.server.url
-  const labs = (await (await page.request.get(`${base}/api/labs`)).json()) as { labs: { id: string; name: string }[] }
-  const lab = labs.labs.find((l) => l.name === DEMO_LAB)
-  if (!lab) throw new Error(`not a member of "${DEMO_LAB}"`)
-  const res = await page.request.post(`${base}/api/labs/${lab.id}/sheets`, { data: { format: 'penumbra.sheet', version: 1, title, cells } })
-  const body = (await res.json()) as { id?: string }
-  if (!res.ok() || !body.id) throw new Error(`creating "${title}" answered ${res.status()}: ${JSON.stringify(body)}`)
-  return body.id
-}
-
-const connection = (page: Page) => page.getByTestId('connection').textContent()
-
-async function openLive(page: Page, sheetId: string): Promise<void> {
-  await page.goto(`${e2e.server.url}/sheets/${sheetId}`)
-  await expect.poll(() => connection(page), { timeout: 20_000 }).toContain('Live')
-}
-
-/** A formula's text as its editor shows it, without other people's caret labels. */
-async function formulaText(page: Page, name: string): Promise<string> {
-  return card(page, name)
-    .locator('.cm-content')
-    .evaluate((el) => {
-      const copy = el.cloneNode(true) as HTMLElement
-      copy.querySelectorAll('.cm-ySelectionCaret').forEach((c) => c.remove())
-      return [...copy.querySelectorAll('.cm-line')].map((l) => l.textContent ?? '').join('\n')
-    })
-}
-
-const resultText = (page: Page, name: string) => card(page, name).locator('.result').innerText()
+const { createSheet, openLive } = sheetPage(() => e2e.server)
 
 describe('two editors on one sheet', () => {
   it('converge when typing into one formula at once, see each other’s carets, and keep offline edits until the server is back', async () => {

@@ -7,6 +7,7 @@
 import { describe, expect, it } from 'vitest'
 import type { Page } from 'playwright-core'
 import { DEMO, DEMO_LAB, signIn, useBrowserSuite } from '../utils/browser'
+import { card, formulaText } from '../utils/sheetPage'
 
 const e2e = useBrowserSuite()
 
@@ -26,8 +27,6 @@ async function findSheet(page: Page, base: string): Promise<string> {
   return sheet.id
 }
 
-const card = (page: Page, name: string) => page.locator(`.pn-cell[data-cell-name="${name}"]`)
-
 /**
  * What a figure currently draws: Plotly keeps the traces on its graph div (`gd.data`), so the y values of every
  * trace, rounded, identify the picture. Empty until the figure has drawn.
@@ -42,17 +41,6 @@ async function figureSignature(page: Page, name: string): Promise<string> {
 
 async function parameterValue(page: Page, name: string): Promise<string> {
   return card(page, name).getByLabel('Value').inputValue()
-}
-
-/** A formula's text as the editor holds it, without the name labels of other people's carets. */
-async function formulaText(page: Page, name: string): Promise<string> {
-  return card(page, name)
-    .locator('.cm-content')
-    .evaluate((el) => {
-      const copy = el.cloneNode(true) as HTMLElement
-      copy.querySelectorAll('.cm-ySelectionCaret').forEach((c) => c.remove())
-      return [...copy.querySelectorAll('.cm-line')].map((l) => l.textContent ?? '').join('\n')
-    })
 }
 
 /** Drags a parameter's slider handle by `dx` pixels in ten small moves, as a hand does. */

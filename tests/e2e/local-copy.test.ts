@@ -10,35 +10,16 @@ import path from 'node:path'
 import { describe, expect, it } from 'vitest'
 import type { Page } from 'playwright-core'
 import { CSRF_HEADER } from '../../shared/schema/api'
-import { DEMO, DEMO_LAB, RESULTS_DIR, signIn, useBrowserSuite } from '../utils/browser'
+import { DEMO, RESULTS_DIR, signIn, useBrowserSuite } from '../utils/browser'
+import { card, connection, demoLabId, formulaText, resultText, sheetPage } from '../utils/sheetPage'
 
 const e2e = useBrowserSuite()
-
-const card = (page: Page, name: string) => page.locator(`.pn-cell[data-cell-name="${name}"]`)
-const connection = async (page: Page) => ((await page.getByTestId('connection').textContent()) ?? '').trim()
-
-async function labId(page: Page): Promise<string> {
-  const labs = (await (await page.request.get(`${e2e.server.url}/api/labs`)).json()) as { labs: { id: string; name: string }[] }
-  const lab = labs.labs.find((l) => l.name === DEMO_LAB)
-  if (!lab) throw new Error(`not a member of "${DEMO_LAB}"`)
-  return lab.id
-}
-
-async function createSheet(page: Page, title: string, cells: unknown[]): Promise<string> {
-  const res = await page.request.post(`${e2e.server.url}/api/labs/${await labId(page)}/sheets`, { data: { format: 'penumbra.sheet', version: 1, title, cells } })
-  const body = (await res.json()) as { id?: string }
-  if (!res.ok() || !body.id) throw new Error(`creating "${title}" answered ${res.status()}: ${JSON.stringify(body)}`)
-  return body.id
-}
+const { createSheet, openLive } = sheetPage(() => e2e.server)
+const labIdOf = (page: Page) => demoLabId(page, e2e.server.url)
 
 async function userId(page: Page): Promise<string> {
   const body = (await (await page.request.get(`${e2e.server.url}/api/auth/me`)).json()) as { user: { id: string } }
   return body.user.id
-}
-
-async function openLive(page: Page, sheetId: string): Promise<void> {
-  await page.goto(`${e2e.server.url}/sheets/${sheetId}`)
-  await expect.poll(() => connection(page), { timeout: 20_000 }).toContain('Live')
 }
 
 /** Penumbra's IndexedDB databases in this browser. */
@@ -53,19 +34,6 @@ const keptForOffline = (page: Page, sheetId: string) =>
     const answers = await caches.open('penumbra:answers')
     return !!(await pageCache.match('/')) && !!(await answers.match('/api/auth/me')) && !!(await answers.match(`/api/sheets/${id}`))
   }, sheetId)
-
-/** A formula's text as its editor shows it, without other people's caret labels. */
-async function formulaText(page: Page, name: string): Promise<string> {
-  return card(page, name)
-    .locator('.cm-content')
-    .evaluate((el) => {
-      const copy = el.cloneNode(true) as HTMLElement
-      copy.querySelectorAll('.cm-ySelectionCaret').forEach((c) => c.remove())
-      return [...copy.querySelectorAll('.cm-line')].map((l) => l.textContent ?? '').join('\n')
-    })
-}
-
-const resultText = (page: Page, name: string) => card(page, name).locator('.result').innerText()
 
 /** Types at the end of a formula and leaves its editor (an open completion list takes the first Escape). */
 async function typeAtEnd(page: Page, name: string, text: string): Promise<void> {
@@ -150,7 +118,7 @@ describe('the copy of a sheet kept in the browser', () => {
     const tomas = await e2e.newBrowser({ label: 'editor, then viewer' })
     await signIn(mira.page, e2e.server.url, DEMO.owner)
     await signIn(tomas.page, e2e.server.url, DEMO.editor)
-    const lab = await labId(mira.page)
+    const lab = await labIdOf(mira.page)
     const tomasId = await userId(tomas.page)
     const sheetId = await createSheet(mira.page, 'Role changes', [{ kind: 'formula', name: 'g', source: '2 * 3' }])
     await openLive(tomas.page, sheetId)

@@ -6,28 +6,11 @@
  */
 import { describe, expect, it } from 'vitest'
 import type { Page } from 'playwright-core'
-import { DEMO, DEMO_LAB, signIn, useBrowserSuite } from '../utils/browser'
+import { DEMO, signIn, useBrowserSuite } from '../utils/browser'
+import { card, formulaText, sheetPage } from '../utils/sheetPage'
 
 const e2e = useBrowserSuite()
-
-const card = (page: Page, name: string) => page.locator(`.pn-cell[data-cell-name="${name}"]`)
-
-/** Creates a sheet in the demo lab from a sheet file's cells (as the signed-in person) and returns its id. */
-async function createSheet(page: Page, title: string, cells: unknown[]): Promise<string> {
-  const base = e2e.server.url
-  const labs = (await (await page.request.get(`${base}/api/labs`)).json()) as { labs: { id: string; name: string }[] }
-  const lab = labs.labs.find((l) => l.name === DEMO_LAB)
-  if (!lab) throw new Error(`not a member of "${DEMO_LAB}"`)
-  const res = await page.request.post(`${base}/api/labs/${lab.id}/sheets`, { data: { format: 'penumbra.sheet', version: 1, title, cells } })
-  const body = (await res.json()) as { id?: string; error?: string }
-  if (!res.ok() || !body.id) throw new Error(`creating "${title}" answered ${res.status()}: ${JSON.stringify(body)}`)
-  return body.id
-}
-
-async function openLive(page: Page, sheetId: string): Promise<void> {
-  await page.goto(`${e2e.server.url}/sheets/${sheetId}`)
-  await expect.poll(() => page.getByTestId('connection').textContent(), { timeout: 20_000 }).toContain('Live')
-}
+const { createSheet, openLive } = sheetPage(() => e2e.server)
 
 /** The traces a figure's plot holds (Plotly keeps them on the graph div), by name; empty until it has drawn. */
 async function plottedNames(page: Page, name: string): Promise<string[]> {
@@ -35,17 +18,6 @@ async function plottedNames(page: Page, name: string): Promise<string[]> {
     const gd = el.querySelector('.js-plotly-plot') as (HTMLElement & { data?: { name?: string }[] }) | null
     return Array.isArray(gd?.data) ? gd.data.map((t) => t.name ?? '') : []
   })
-}
-
-/** A formula's text as its editor shows it, without other people's caret labels. */
-async function formulaText(page: Page, name: string): Promise<string> {
-  return card(page, name)
-    .locator('.cm-content')
-    .evaluate((el) => {
-      const copy = el.cloneNode(true) as HTMLElement
-      copy.querySelectorAll('.cm-ySelectionCaret').forEach((c) => c.remove())
-      return [...copy.querySelectorAll('.cm-line')].map((l) => l.textContent ?? '').join('\n')
-    })
 }
 
 /** An invented absorber: a direct-gap edge on a 1,000-point grid, a thickness, and the sweeps the tests draw. */
