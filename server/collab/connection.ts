@@ -63,12 +63,14 @@ export interface ConnectionCounters {
   textFrames: number
   rateLimited: number
   awarenessRefused: number
+  /** Well-formed document updates refused because they would break the sheet document's shape (shape.ts). */
+  refusedUpdates: number
   /** Messages whose handling threw (a server bug, never a client's fault alone); their connections were closed. */
   unexpectedFailures: number
 }
 
 export function emptyConnectionCounters(): ConnectionCounters {
-  return { deniedUpdates: 0, malformedFrames: 0, oversizeFrames: 0, textFrames: 0, rateLimited: 0, awarenessRefused: 0, unexpectedFailures: 0 }
+  return { deniedUpdates: 0, malformedFrames: 0, oversizeFrames: 0, textFrames: 0, rateLimited: 0, awarenessRefused: 0, refusedUpdates: 0, unexpectedFailures: 0 }
 }
 
 const WS_OPEN = 1
@@ -279,10 +281,11 @@ export class CollabConnection implements RegistryPeer {
           this.deny()
           return
         }
-        const problem = checkUpdate(message.update)
-        if (problem) {
-          this.counters.malformedFrames++
-          this.close(CLOSE.malformed, problem)
+        const check = checkUpdate(message.update, this.entry.doc)
+        if (!check.ok) {
+          if (check.malformed) this.counters.malformedFrames++
+          else this.counters.refusedUpdates++
+          this.close(CLOSE.malformed, check.reason)
           return
         }
         try {

@@ -14,6 +14,7 @@ import * as Y from 'yjs'
 import * as syncProtocol from 'y-protocols/sync'
 import * as authProtocol from 'y-protocols/auth'
 import * as awarenessProtocol from 'y-protocols/awareness'
+import { checkShape } from './shape'
 
 export const MESSAGE_SYNC = 0
 export const MESSAGE_AWARENESS = 1
@@ -195,11 +196,22 @@ function contentValues(content: unknown): unknown[] {
   return []
 }
 
+export type UpdateCheck = { ok: true } | { ok: false; malformed: boolean; reason: string }
+
 /**
  * Parses a Yjs (v1) update completely without applying it, so a malformed one is refused before it touches a
- * document; also refuses content nested deeper than MAX_UPDATE_VALUE_DEPTH.
+ * document; also refuses content nested deeper than MAX_UPDATE_VALUE_DEPTH, and, given the live document, an update
+ * that would break the sheet document's shape (shape.ts).
  */
-export function checkUpdate(update: Uint8Array): string | null {
+export function checkUpdate(update: Uint8Array, doc?: Y.Doc): UpdateCheck {
+  const problem = parseUpdate(update)
+  if (typeof problem === 'string') return { ok: false, malformed: true, reason: problem }
+  if (!doc) return { ok: true }
+  const shape = checkShape(doc, problem)
+  return shape === null ? { ok: true } : { ok: false, malformed: false, reason: `edit refused: ${shape}` }
+}
+
+function parseUpdate(update: Uint8Array): string | ReturnType<typeof Y.decodeUpdate> {
   let decoded: ReturnType<typeof Y.decodeUpdate>
   try {
     decoded = Y.decodeUpdate(update)
@@ -212,7 +224,7 @@ export function checkUpdate(update: Uint8Array): string | null {
       if (jsonDepth(value, MAX_UPDATE_VALUE_DEPTH) > MAX_UPDATE_VALUE_DEPTH)
         return `document update holds a value nested more than ${MAX_UPDATE_VALUE_DEPTH} levels deep`
   }
-  return null
+  return decoded
 }
 
 export function encodeSyncStep1(doc: Y.Doc): Uint8Array {

@@ -165,6 +165,23 @@ export const cell = z.discriminatedUnion('kind', [
   stackCell,
 ])
 
+/** The schema of each cell kind, by kind (own-property safe: a Map, never an object indexed by user text). */
+export const CELL_SCHEMAS: ReadonlyMap<string, (typeof cell.options)[number]> = new Map(cell.options.map((o) => [o.shape.kind.value, o]))
+
+/** True when the kind's schema keeps fields it does not name (the stack cell, until its own schema lands). */
+export function keepsUnknownFields(schema: (typeof cell.options)[number]): boolean {
+  const catchall = (schema._zod.def as { catchall?: { _zod: { def: { type: string } } } }).catchall
+  return catchall !== undefined && catchall._zod.def.type !== 'never'
+}
+
+/** The fields a cell of each kind must have (in the live document every cell has its `id` too). */
+export const REQUIRED_FIELDS: ReadonlyMap<string, ReadonlySet<string>> = new Map(
+  [...CELL_SCHEMAS].map(([kind, schema]) => [
+    kind,
+    new Set(['id', ...Object.entries(schema.shape as Record<string, z.ZodType>).filter(([, f]) => !f.safeParse(undefined).success).map(([k]) => k)]),
+  ]),
+)
+
 export const sheetFile = z
   .object({
     format: z.literal(SHEET_FORMAT),
