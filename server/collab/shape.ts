@@ -72,7 +72,7 @@ export function checkShape(doc: Y.Doc, decoded: Decoded): string | null {
 }
 
 class ShapeCheck {
-  private readonly cells: Y.Array<unknown>
+  private readonly cells: Y.AbstractType<unknown>
   private readonly meta: Y.Map<unknown>
   private readonly store: Y.Doc['store']
   /** The update's items by client, in clock order (as decoded). */
@@ -83,10 +83,10 @@ class ShapeCheck {
   private readonly existingFields = new Map<Y.Map<unknown>, Map<string, Y.Item[]>>()
 
   constructor(
-    private readonly doc: Y.Doc,
+    doc: Y.Doc,
     private readonly decoded: Decoded,
   ) {
-    this.cells = cellsOf(doc)
+    this.cells = cellsOf(doc) as Y.AbstractType<unknown>
     this.meta = metaOf(doc)
     this.store = doc.store
   }
@@ -222,7 +222,7 @@ class ShapeCheck {
   private placeOfType(type: Y.AbstractType<unknown>, key: string | null): Place {
     if (type === this.cells) return key === null ? { at: 'cells' } : { at: 'bad', why: 'the cells list holds no named entries' }
     if (type === this.meta) return { at: 'meta', key }
-    if (type.constructor === Y.Map && type._item?.parent === this.cells) return { at: 'cell', fresh: null, map: type as Y.Map<unknown>, key }
+    if (type.constructor === Y.Map && (type as Y.AbstractType<unknown>)._item?.parent === this.cells) return { at: 'cell', fresh: null, map: type as Y.Map<unknown>, key }
     if (type instanceof Y.Text && !(type instanceof Y.XmlText)) return { at: 'text' }
     return { at: 'bad', why: 'the update nests content where the sheet document has none' }
   }
@@ -271,7 +271,7 @@ class ShapeCheck {
   /** New cells' ids differ from each other and from every cell that stays in the document. */
   private checkUniqueIds(): void {
     const live = new Set<unknown>()
-    for (const entry of this.cells.toArray()) {
+    for (const entry of (this.cells as Y.Array<unknown>).toArray()) {
       if (!(entry instanceof Y.Map) || !entry._item || inDeleteSet(this.decoded.ds, entry._item.id)) continue
       live.add(entry.get('id'))
     }
@@ -297,7 +297,8 @@ class ShapeCheck {
           const item = structs[i]
           if (!(item instanceof Y.Item) || item.deleted || item.parentSub === null) continue
           const map = item.parent as Y.AbstractType<unknown>
-          if (map.constructor !== Y.Map || map._item?.parent !== this.cells || map._item.deleted || inDeleteSet(this.decoded.ds, map._item.id)) continue
+          const mapItem = map._item
+          if (map.constructor !== Y.Map || !mapItem || mapItem.parent !== this.cells || mapItem.deleted || inDeleteSet(this.decoded.ds, mapItem.id)) continue
           const key = item.parentSub
           if ((map as Y.Map<unknown>)._map.get(key) !== item) continue
           const kind = (map as Y.Map<unknown>).get('kind')

@@ -19,7 +19,7 @@ import * as awarenessProtocol from 'y-protocols/awareness'
 import * as syncProtocol from 'y-protocols/sync'
 import * as decoding from 'lib0/decoding'
 import * as encoding from 'lib0/encoding'
-import { cellToMap, cellsOf, mapToCell, metaOf, newCellId, type CellMap } from '../../shared/doc/sheetDoc'
+import { cellToMap, cellsOf, entryIndex, mapToCell, metaOf, newCellId, type CellMap } from '../../shared/doc/sheetDoc'
 import type { Cell, SheetCell } from '../../shared/schema/sheet'
 import { keepPageForOffline, openLocalCopy } from '@/lib/localCopy'
 import { NO_PENDING_EDITS, noteChange, noteSent, restoredPending, type PendingEdits } from '@/lib/localCopyPending'
@@ -251,13 +251,15 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     return true
   }
 
+  /** Where a cell (or a placeholder for an entry that is not one, `entry-<index>`) stands in the list. */
   function indexOf(id: string): number {
-    const arr = cells.toArray()
-    return arr.findIndex((m) => m.get('id') === id)
+    return entryIndex(cells as unknown as Y.Array<unknown>, id)
   }
 
   function mapOf(id: string): CellMap | undefined {
-    return cells.toArray().find((m) => m.get('id') === id)
+    const i = indexOf(id)
+    const entry: unknown = i < 0 ? undefined : cells.get(i)
+    return entry instanceof Y.Map ? (entry as CellMap) : undefined
   }
 
   /** Writes plain fields of a cell; `undefined` removes a field. Text fields go through setText. */
@@ -296,9 +298,10 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     if (from < 0) return false
     const target = Math.max(0, Math.min(to, cells.length - 1))
     if (target === from) return false
-    const map = cells.get(from)
+    const map: unknown = cells.get(from)
+    if (!(map instanceof Y.Map)) return false
     return transactStep(() => {
-      const copy = copyMap(map, id)
+      const copy = copyMap(map as CellMap, id)
       cells.delete(from, 1)
       cells.insert(target, [copy])
     })
@@ -309,7 +312,9 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     const i = indexOf(id)
     if (i < 0) return null
     const newId = newCellId()
-    const copy = copyMap(cells.get(i), newId)
+    const original: unknown = cells.get(i)
+    if (!(original instanceof Y.Map)) return null
+    const copy = copyMap(original as CellMap, newId)
     if (name !== undefined) copy.set('name', name)
     const ok = transactStep(() => cells.insert(i + 1, [copy]))
     return ok ? newId : null

@@ -7,7 +7,7 @@ import * as Y from 'yjs'
 import { cellsOf, docToSheetFile } from '../../shared/doc/sheetDoc'
 import { loadDocument, storedUpdates } from '../../server/services/documents'
 import { CLOSE } from '../../server/collab/index'
-import { roundTrip, storedRows, until } from './support/fixture'
+import { storedRows, until } from './support/fixture'
 import { syncFrame } from './support/frames'
 import { useCollab } from './support/useCollab'
 
