@@ -14,11 +14,12 @@ import { linksIn } from '../mail/mime'
 import type { DevMail } from '../../shared/schema/api'
 
 const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..')
-const FONTS: Record<string, string> = {
-  'fira-sans-400.woff2': 'node_modules/@fontsource/fira-sans/files/fira-sans-latin-400-normal.woff2',
-  'fira-sans-600.woff2': 'node_modules/@fontsource/fira-sans/files/fira-sans-latin-600-normal.woff2',
-  'fira-mono-400.woff2': 'node_modules/@fontsource/fira-mono/files/fira-mono-latin-400-normal.woff2',
-}
+/** A Map, not an object: a request for `constructor` or `__proto__` must find nothing. */
+const FONTS = new Map<string, string>([
+  ['fira-sans-400.woff2', 'node_modules/@fontsource/fira-sans/files/fira-sans-latin-400-normal.woff2'],
+  ['fira-sans-600.woff2', 'node_modules/@fontsource/fira-sans/files/fira-sans-latin-600-normal.woff2'],
+  ['fira-mono-400.woff2', 'node_modules/@fontsource/fira-mono/files/fira-mono-latin-400-normal.woff2'],
+])
 
 export function devMessages(deps: AppDeps): DevMail[] {
   if (deps.mailer.inbox) return deps.mailer.inbox()
@@ -87,7 +88,7 @@ export function devMailRoutes(deps: AppDeps): Router {
     res.set('Cache-Control', 'no-store').type('html').send(page(devMessages(deps)))
   })
   r.get('/fonts/:file', (req, res, next) => {
-    const rel = FONTS[String(req.params.file)]
+    const rel = FONTS.get(String(req.params.file))
     const file = rel && path.join(ROOT, rel)
     if (!file || !existsSync(file)) return next()
     res.sendFile(file, { maxAge: '1d' })

@@ -55,7 +55,9 @@ export function cellToMap(cell: Cell, id: string = cell.id ?? newCellId()): Cell
 export function mapToCell(map: CellMap): SheetCell {
   const out: Record<string, unknown> = {}
   for (const [key, value] of map.entries()) {
-    out[key] = value instanceof Y.Text ? value.toString() : value instanceof Y.AbstractType ? value.toJSON() : value
+    const plain = value instanceof Y.Text ? value.toString() : value instanceof Y.AbstractType ? value.toJSON() : value
+    // defined, not assigned: a key named __proto__ stays an own field (and fails validation) instead of a prototype
+    Object.defineProperty(out, key, { value: plain, enumerable: true, writable: true, configurable: true })
   }
   return out as SheetCell
 }
