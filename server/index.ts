@@ -117,6 +117,7 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
   const hooks: AppHooks = {
     membershipChanged: (labId, userId) => collab.membershipChanged(labId, userId),
     sheetDeleted: (sheetId) => collab.sheetDeleted(sheetId),
+    sessionsEnded: (userId) => collab.sessionsEnded(userId),
   }
   const app = createApp({ db: handle.db, secret, mailer, config, hooks })
   const server = http.createServer(app)
