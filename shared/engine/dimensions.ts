@@ -22,6 +22,7 @@ export const ENERGY: Dim = [2, 1, -2, 0, 0, 0, 0]
 export const POWER: Dim = [2, 1, -3, 0, 0, 0, 0]
 export const CHARGE: Dim = [0, 0, 1, 1, 0, 0, 0]
 export const CURRENT_DENSITY: Dim = [-2, 0, 0, 1, 0, 0, 0]
+export const VOLTAGE: Dim = [2, 1, -3, -1, 0, 0, 0]
 /** Energy per kelvin (Varshni's α, Boltzmann's constant). */
 export const ENERGY_PER_TEMPERATURE: Dim = [2, 1, -2, 0, -1, 0, 0]
 /** Spectral photon flux per unit wavelength: photons m⁻² s⁻¹ m⁻¹. */

@@ -23,6 +23,7 @@ export { tmmNormal } from './tmm'
 export type { TmmLayer, TmmResult } from './tmm'
 export { varshni } from './temperature'
 export {
-  planckPhotonRadiance, photonFlux, photocurrent, detailedBalance, shockleyQueisserPoint, boseIntegral2,
+  planckPhotonRadiance, photonFlux, photocurrent, detailedBalance, detailedBalanceJsc, detailedBalanceVoc, detailedBalanceFf,
+  shockleyQueisserPoint, boseIntegral2,
 } from './spectra'
 export type { DetailedBalanceResult } from './spectra'

@@ -243,3 +243,61 @@ export function detailedBalance(Eg: Num, Tcell: Num, lambda: Num, flux: Num): Nu
   const s = spectrumOf('detailed_balance', lambda, flux)
   return map2(Eg, Tcell, (e, t) => balance(s, e, t).efficiency)
 }
+
+/** One quantity of the detailed-balance point for each (Eg, Tcell), sharing the spectrum's preparation. */
+function balanceField(fn: string, Eg: Num, Tcell: Num, lambda: Num, flux: Num, pick: (r: DetailedBalanceResult) => number): Num {
+  check(fn, 'the gap Eg', Eg, positive, 'positive')
+  check(fn, 'the cell temperature Tcell', Tcell, positive, 'positive (kelvin)')
+  const s = spectrumOf(fn, lambda, flux)
+  return map2(Eg, Tcell, (e, t) => pick(balance(s, e, t)))
+}
+
+/**
+ * Short-circuit current density of a step absorber (A = 1 above Eg) in the detailed-balance limit: every incident
+ * photon above the gap gives one electron, Jsc = q·∫_(λ ≤ hc/Eg) Φ dλ (the last interval cut at hc/Eg). Same model
+ * and arguments as detailedBalance; it does not depend on Tcell (which is still checked).
+ *
+ * - `Eg`: gap, J (> 0; an array gives one value per gap); `Tcell`: cell temperature, K (> 0)
+ * - `lambda`: wavelength grid, m; `flux`: spectral photon flux on that grid, photons m⁻² s⁻¹ m⁻¹
+ * - result: current density, A/m² (10 A/m² = 1 mA/cm²)
+ *
+ * Source: W. Shockley, H. J. Queisser, J. Appl. Phys. 32, 510 (1961); tabulated for AM1.5G by S. Rühle, Solar Energy
+ * 130, 139 (2016) (about 34.5 mA/cm² at 1.34 eV; from memory).
+ *
+ * @example detailedBalanceJsc(1.34 eV, 300, λ, Φ of ASTM G173-03 AM1.5G) → 350.3 A/m² (35.0 mA/cm²)
+ */
+export function detailedBalanceJsc(Eg: Num, Tcell: Num, lambda: Num, flux: Num): Num {
+  return balanceField('detailed_balance_jsc', Eg, Tcell, lambda, flux, (r) => r.Jsc)
+}
+
+/**
+ * Open-circuit voltage of a step absorber in the detailed-balance limit, Voc = (kTcell/q)·ln(1 + Jsc/J0), with J0 the
+ * radiative dark current of a black body at Tcell above Eg into a hemisphere (see detailedBalance). Same arguments.
+ *
+ * - `Eg`: gap, J (> 0); `Tcell`: cell temperature, K (> 0); `lambda`, `flux` as for detailedBalance
+ * - result: voltage, V (0 when no photon is above the gap)
+ *
+ * Source: Shockley & Queisser (1961); Rühle, Solar Energy 130, 139 (2016) (about 1.07 V at 1.34 eV, AM1.5G, 300 K;
+ * from memory).
+ *
+ * @example detailedBalanceVoc(1.34 eV, 300, λ, Φ of ASTM G173-03 AM1.5G) → 1.082 V
+ */
+export function detailedBalanceVoc(Eg: Num, Tcell: Num, lambda: Num, flux: Num): Num {
+  return balanceField('detailed_balance_voc', Eg, Tcell, lambda, flux, (r) => r.Voc)
+}
+
+/**
+ * Fill factor of a step absorber in the detailed-balance limit, FF = Vmp·Jmp/(Voc·Jsc), the ideal diode's
+ * maximum-power point solved exactly (see detailedBalance). Same arguments.
+ *
+ * - `Eg`: gap, J (> 0); `Tcell`: cell temperature, K (> 0); `lambda`, `flux` as for detailedBalance
+ * - result: fraction 0–1 (0 when no photon is above the gap)
+ *
+ * Source: Shockley & Queisser (1961); Rühle, Solar Energy 130, 139 (2016) (about 0.89 at 1.34 eV, AM1.5G, 300 K;
+ * from memory).
+ *
+ * @example detailedBalanceFf(1.34 eV, 300, λ, Φ of ASTM G173-03 AM1.5G) → 0.889
+ */
+export function detailedBalanceFf(Eg: Num, Tcell: Num, lambda: Num, flux: Num): Num {
+  return balanceField('detailed_balance_ff', Eg, Tcell, lambda, flux, (r) => r.FF)
+}

@@ -9,7 +9,7 @@ import * as optics from '../../optics/index'
 import type { Num } from '../../optics/num'
 import {
   AREA, CURRENT_DENSITY, DIMENSIONLESS as D, ENERGY, ENERGY_PER_TEMPERATURE, FREQUENCY, INV_LENGTH, LENGTH,
-  SPECTRAL_IRRADIANCE, SPECTRAL_PHOTON_FLUX, TEMPERATURE, dimPow,
+  SPECTRAL_IRRADIANCE, SPECTRAL_PHOTON_FLUX, TEMPERATURE, VOLTAGE, dimPow,
 } from '../dimensions'
 import type { ArgDim, Builtin, ResultDim } from './spec'
 
@@ -123,4 +123,10 @@ export const PHYSICS: Builtin[] = [
     CURRENT_DENSITY, 'photocurrent density q∫A·Φ dλ, A/m²'),
   phys('detailed_balance', 'detailedBalance', 'spectra and devices', ['Eg', 'T_cell', 'lambda', 'flux'], [E, T, L, SPECTRAL_PHOTON_FLUX],
     D, 'Shockley–Queisser efficiency (fraction) of a step absorber under that spectral photon flux'),
+  phys('detailed_balance_jsc', 'detailedBalanceJsc', 'spectra and devices', ['Eg', 'T_cell', 'lambda', 'flux'], [E, T, L, SPECTRAL_PHOTON_FLUX],
+    CURRENT_DENSITY, 'detailed-balance short-circuit current density of a step absorber, A/m²'),
+  phys('detailed_balance_voc', 'detailedBalanceVoc', 'spectra and devices', ['Eg', 'T_cell', 'lambda', 'flux'], [E, T, L, SPECTRAL_PHOTON_FLUX],
+    VOLTAGE, 'detailed-balance open-circuit voltage of a step absorber, V'),
+  phys('detailed_balance_ff', 'detailedBalanceFf', 'spectra and devices', ['Eg', 'T_cell', 'lambda', 'flux'], [E, T, L, SPECTRAL_PHOTON_FLUX],
+    D, 'detailed-balance fill factor (fraction) of a step absorber'),
 ]

@@ -15,7 +15,7 @@ const DESIGN_FUNCTIONS: Record<string, string[]> = {
   'optical constants': ['alpha_from_k', 'k_from_alpha', 'n_from_eps', 'k_from_eps', 'cauchy_n', 'sellmeier_n', 'drude_eps1', 'drude_eps2', 'tauc_lorentz_eps2', 'tauc_lorentz_eps1'],
   'films and slabs': ['reflectance', 'absorbed_fraction', 'absorption_depth', 'thickness_for', 'transmittance_slab', 'reflectance_slab', 'absorptance_slab', 'alpha_from_transmittance', 'alpha_from_absorbance', 'absorptance_lambertian', 'film_reflectance', 'film_transmittance'],
   temperature: ['varshni'],
-  'spectra and devices': ['planck_photon_radiance', 'photon_flux', 'photocurrent', 'detailed_balance'],
+  'spectra and devices': ['planck_photon_radiance', 'photon_flux', 'photocurrent', 'detailed_balance', 'detailed_balance_jsc', 'detailed_balance_voc', 'detailed_balance_ff'],
 }
 
 describe('libraryCatalog', () => {

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest'
 import {
-  boseIntegral2, detailedBalance, photocurrent, photonFlux, planckPhotonRadiance, shockleyQueisserPoint,
+  boseIntegral2, detailedBalance, detailedBalanceFf, detailedBalanceJsc, detailedBalanceVoc, photocurrent, photonFlux, planckPhotonRadiance, shockleyQueisserPoint,
 } from '../../../shared/optics/spectra'
 import { c0, h, kB, q, sigmaSB } from '../../../shared/optics/constants'
 import { astmSI, loadAstmG173 } from '../../utils/referenceData'
@@ -109,6 +109,14 @@ describe('detailed balance of a step absorber', () => {
     expect(() => detailedBalance(0, 300, lam, phi)).toThrow(/the gap Eg must be positive/)
     expect(() => detailedBalance(1 * eV, 0, lam, phi)).toThrow(/the cell temperature/)
   })
+  it('the companions are 0 with no photon above the gap and refuse bad input in their own names', () => {
+    const lam = arr(1000e-9, 1100e-9, 1200e-9)
+    const phi = arr(1e27, 1e27, 1e27)
+    expect([detailedBalanceJsc(2 * eV, 300, lam, phi), detailedBalanceVoc(2 * eV, 300, lam, phi), detailedBalanceFf(2 * eV, 300, lam, phi)]).toEqual([0, 0, 0])
+    expect(() => detailedBalanceJsc(0, 300, lam, phi)).toThrow(/detailed_balance_jsc: .*the gap Eg/)
+    expect(() => detailedBalanceVoc(1 * eV, -1, lam, phi)).toThrow(/detailed_balance_voc: .*cell temperature/)
+    expect(() => detailedBalanceFf(1 * eV, 300, 500e-9, 1e27)).toThrow(/detailed_balance_ff: needs a wavelength grid/)
+  })
 })
 
 const astm = loadAstmG173()
@@ -156,6 +164,33 @@ describeAstm('ASTM G173-03 reference spectrum (../shared/data/astm-g173-03.csv)'
     expect(Math.abs(Egs[best] / eV - 1.34)).toBeLessThan(0.01)
     // silicon's gap sits near the second maximum, 33.4 % (Rühle 2016, from memory)
     expect(el(detailedBalance(arr(1.12 * eV), 300, si.lambda, flux), 0)).toBeCloseTo(0.334, 3)
+  })
+  it('detailedBalanceJsc, Voc and FF are the fields of the same calculation, and η = Jsc·Voc·FF/Pin', () => {
+    const Egs = arr(1.12 * eV, 1.34 * eV, 1.6 * eV)
+    const J = detailedBalanceJsc(Egs, 300, si.lambda, flux) as Float64Array
+    const V = detailedBalanceVoc(Egs, 300, si.lambda, flux) as Float64Array
+    const F = detailedBalanceFf(Egs, 300, si.lambda, flux) as Float64Array
+    const eta = detailedBalance(Egs, 300, si.lambda, flux) as Float64Array
+    for (let i = 0; i < 3; i++) {
+      const r = shockleyQueisserPoint(Egs[i], 300, si.lambda, flux)
+      expect([J[i], V[i], F[i]]).toEqual([r.Jsc, r.Voc, r.FF])
+      expectRel((J[i] * V[i] * F[i]) / r.Pin, eta[i], 1e-12)
+    }
+    // a wider gap: less current, more voltage (Rühle 2016, Fig. 2 trends; common practice)
+    expect(J[0]).toBeGreaterThan(J[1])
+    expect(J[1]).toBeGreaterThan(J[2])
+    expect(V[0]).toBeLessThan(V[1])
+    expect(V[1]).toBeLessThan(V[2])
+  })
+  it('detailed balance at 1.34 eV, 300 K: Jsc ≈ 34.5 mA/cm², Voc ≈ 1.07 V, FF ≈ 0.89 (Rühle, Solar Energy 130, 139 (2016); from memory)', () => {
+    expectRel((detailedBalanceJsc(1.34 * eV, 300, si.lambda, flux) as number) / 10, 34.5, 0.02)
+    expectRel(detailedBalanceVoc(1.34 * eV, 300, si.lambda, flux) as number, 1.07, 0.02)
+    expect(Math.abs((detailedBalanceFf(1.34 * eV, 300, si.lambda, flux) as number) - 0.89)).toBeLessThan(0.005)
+  })
+  it('the worked examples of the companions’ doc comments (350.3 A/m², 1.082 V, 0.889)', () => {
+    expect((detailedBalanceJsc(1.34 * eV, 300, si.lambda, flux) as number).toFixed(1)).toBe('350.3')
+    expect((detailedBalanceVoc(1.34 * eV, 300, si.lambda, flux) as number).toFixed(3)).toBe('1.082')
+    expect((detailedBalanceFf(1.34 * eV, 300, si.lambda, flux) as number).toFixed(3)).toBe('0.889')
   })
   it('detailedBalance does not depend on the direction of the wavelength grid', () => {
     const rev = si.lambda.slice().reverse()
