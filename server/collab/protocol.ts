@@ -121,7 +121,7 @@ export function decodeAwarenessUpdate(update: Uint8Array): AwarenessEntry[] {
 /** A presence colour: `#rgb`, `#rrggbb`, or either with an alpha digit pair (`#rrggbbaa`, the light caret tint). */
 const HEX_COLOUR = /^#(?:[0-9a-fA-F]{3}|[0-9a-fA-F]{6}|[0-9a-fA-F]{8})$/
 /** A short plain name: no control characters and nothing that could open markup. */
-const PLAIN_NAME = /^[^\u0000-\u001f\u007f<>]{1,80}$/
+const PLAIN_NAME = /^[^\p{Cc}<>]{1,80}$/u
 /** A cell id as the sheet document holds them. */
 const CELL_ID = /^[\w-]{1,64}$/
 

@@ -18,7 +18,7 @@ const EDITORS_ONLY = 'Only owners and editors may do that.'
 
 /** The sheet file a create request carries (or a blank one), or a 400 with every problem by path. */
 export function sheetFileFromRequest(req: Request): SheetFile {
-  let parsed: ParseResult<SheetFile> | null = null
+  let parsed: ParseResult<SheetFile>
   let title: unknown
   if (req.file) {
     parsed = parseSheetFileText(req.file.buffer.toString('utf8'))

@@ -90,7 +90,7 @@ export function exportSheet(deps: Pick<AppDeps, 'db'>, row: SheetRow): SheetFile
  * → `Film B: edge model.penumbra.json`); browsers adapt the rest to the file system they save on.
  */
 export function downloadName(title: string): string {
-  const base = title.replace(/[\\/\u0000-\u001f\u007f]+/g, ' ').replace(/\s+/g, ' ').trim().slice(0, 150) || 'sheet'
+  const base = title.replace(/[\\/\p{Cc}]+/gu, ' ').replace(/\s+/g, ' ').trim().slice(0, 150) || 'sheet'
   return `${base}.penumbra.json`
 }
 

@@ -136,7 +136,7 @@ export function tidyLocalCopiesAtSignIn(userId: string, now = Date.now()): Promi
     const plan = planExpiry(present ? present.filter((n) => parseLocalCopyName(n) !== null) : null, readRegister(), now)
     await Promise.all(plan.remove.map(deleteDatabase))
     writeRegister(plan.register)
-    let last: string | null = null
+    let last: string | null
     try {
       last = localStorage.getItem(LAST_USER_KEY)
       localStorage.setItem(LAST_USER_KEY, userId)

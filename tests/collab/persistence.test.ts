@@ -105,7 +105,10 @@ describe('collab: update log', () => {
     source.on('update', (u: Uint8Array) => updates.push(u))
     sheetFileToDoc(DEMO_SHEET, source)
     const t = formulaText(source)
-    for (let i = 0; i < 1234; i++) i % 3 === 2 ? t.delete(0, 1) : t.insert(t.length, 'q')
+    for (let i = 0; i < 1234; i++) {
+      if (i % 3 === 2) t.delete(0, 1)
+      else t.insert(t.length, 'q')
+    }
     const state = updates.splice(0, 1)[0]
     const built = buildDocument(state, updates)
     expect(docToSheetFile(built)).toEqual(docToSheetFile(source))

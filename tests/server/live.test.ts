@@ -22,6 +22,7 @@ const clients: Client[] = []
 const sessions: Record<string, string> = {}
 let labId = ''
 
+// eslint-disable-next-line @typescript-eslint/no-explicit-any -- reply bodies of many routes, read field by field below
 async function api(method: string, url: string, who: string, body?: unknown): Promise<{ status: number; body: any; headers: Headers; text: string }> {
   const res = await fetch(`${server.url}${url}`, {
     method,
