@@ -81,6 +81,11 @@ export const fitCell = z.object({
   /** method `model`: the formula cell evaluated as the model, and its free parameter cells. */
   model: cellRef.optional(),
   parameters: z.array(fitParameter).max(20).optional(),
+  /**
+   * A cell holding the standard deviation σ of each y value (same length as y, in the y cell's units). When given,
+   * the fit minimises χ² = Σ((y − f)/σ)² and its errors come from the weights.
+   */
+  sigma: cellRef.optional(),
   description: description.optional(),
 })
 
