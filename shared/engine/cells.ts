@@ -4,7 +4,7 @@
  * Values are SI; showing them in display units is display.ts's job, turning states into result objects results.ts's.
  */
 import type { SheetCell, ParameterCell, SpectrumCell, StackCell } from '../schema/sheet'
-import { CELL_KINDS, fitCell, formulaCell, parameterCell, stackCell, sweepCell, toSchemaIssues } from '../schema/sheet'
+import { CELL_KINDS, fitCell, formulaCell, parameterCell, stackCell, stackFormulas, sweepCell, toSchemaIssues } from '../schema/sheet'
 import type { Num } from '../optics/num'
 import { compileFormula, inferDims, type CompiledFormula, type InputDim } from './compile'
 import { INPUT_DIGITS, formatNumber, formatPair } from './describe'
@@ -135,6 +135,7 @@ export function prepareCell(cell: SheetCell): PreparedCell {
         break
       case 'fit': {
         const names = [cell.x, cell.y]
+        if (cell.sigma) names.push(cell.sigma)
         if (cell.method === 'model') {
           if (!cell.model) throw new CellError('a model fit needs "model": the formula cell to fit', 'input')
           if (!cell.parameters?.length) throw new CellError('a model fit needs at least one free parameter in "parameters"', 'input')
@@ -179,17 +180,6 @@ function checkUnit(unit: string | undefined, what = 'unit'): void {
   if (unit === undefined) return
   const u = parseUnit(unit)
   if (!u.ok) throw new CellError(`the ${what} ${u.error}`, 'input')
-}
-
-/** The formula fields of a stack cell, keyed by path: wavelength, ambient, angle, layers.i.thickness|n|k, substrate.*. */
-export function stackFormulas(cell: StackCell): [string, string][] {
-  const out: [string, string][] = [['wavelength', cell.wavelength]]
-  if (cell.ambient !== undefined) out.push(['ambient', cell.ambient])
-  if (cell.angle !== undefined) out.push(['angle', cell.angle])
-  cell.layers.forEach((l, i) => out.push([`layers.${i}.thickness`, l.thickness], [`layers.${i}.n`, l.n], [`layers.${i}.k`, l.k]))
-  out.push(['substrate.n', cell.substrate.n], ['substrate.k', cell.substrate.k])
-  if (cell.substrate.thickness !== undefined) out.push(['substrate.thickness', cell.substrate.thickness])
-  return out
 }
 
 /** "the thickness of layer absorber", "the wavelength" … for messages about one field of a stack. */

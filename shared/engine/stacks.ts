@@ -95,7 +95,7 @@ export function evaluateStack(p: PreparedCell, env: Env): CellState {
     if (names.has(l.name)) throw new CellError(`two layers are named ${l.name}; give each layer its own name (its absorptance is ${cell.name}.A_${l.name})`, 'input')
     names.add(l.name)
   }
-  const layers = cell.layers.map((l, i) => ({
+  const layers = cell.layers.map((_, i) => ({
     d: length_(`layers.${i}.thickness`, '500*nm'),
     n: plain(`layers.${i}.n`, '2.5'),
     k: plain(`layers.${i}.k`, '0.1'),

@@ -193,6 +193,17 @@ export const stackCell = z
   })
   .strict()
 
+/** The formula fields of a stack cell, keyed by path: wavelength, ambient, angle, layers.i.thickness|n|k, substrate.*. */
+export function stackFormulas(cell: z.infer<typeof stackCell>): [string, string][] {
+  const out: [string, string][] = [['wavelength', cell.wavelength]]
+  if (cell.ambient !== undefined) out.push(['ambient', cell.ambient])
+  if (cell.angle !== undefined) out.push(['angle', cell.angle])
+  cell.layers.forEach((l, i) => out.push([`layers.${i}.thickness`, l.thickness], [`layers.${i}.n`, l.n], [`layers.${i}.k`, l.k]))
+  out.push(['substrate.n', cell.substrate.n], ['substrate.k', cell.substrate.k])
+  if (cell.substrate.thickness !== undefined) out.push(['substrate.thickness', cell.substrate.thickness])
+  return out
+}
+
 export const cell = z.discriminatedUnion('kind', [
   parameterCell,
   formulaCell,
