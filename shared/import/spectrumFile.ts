@@ -484,7 +484,7 @@ function groupSamples(columns: readonly ImportColumn[], labels: readonly string[
   const xs = columns.filter((c) => X_QUANTITIES.has(c.quantity))
   const nameOf = (c: ImportColumn, i: number) => {
     const l = labels[columns.indexOf(c)]
-    const stripped = l ? l.replace(/\(.*?\)|\[.*?\]|%|\/.*$/g, ' ').replace(/\b(?:t|r|abs|a|transmittance|reflectance|absorbance)\b/gi, ' ').replace(/\s+/g, ' ').trim() : ''
+    const stripped = l ? l.replace(/\(.*?\)|\[.*?\]|%|\/.*$/g, ' ').replace(/\b(?:t|r|abs|transmittance|reflectance|absorbance)\b/gi, ' ').replace(/\s+/g, ' ').trim() : ''
     return stripped || `sample ${i + 1}`
   }
   if (xs.length > 1) {
