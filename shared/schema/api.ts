@@ -14,6 +14,7 @@
  * - The session is an httpOnly cookie (`penumbra_session`); the client never reads it.
  */
 import { z } from 'zod'
+import { IDENTIFIER, SPECTRUM_QUANTITIES, type SpectrumQuantity } from './sheet'
 
 /** Lab roles, most powerful first (DESIGN §2). Kept in step with server/db/schema.ts. */
 export const LAB_ROLES = ['owner', 'editor', 'reviewer', 'viewer'] as const
@@ -332,3 +333,74 @@ export type DevMail = z.infer<typeof devMailSchema>
 /** GET /dev/mail.json → 200, newest first. GET /dev/mail is the same list as an HTML page. */
 export const devMailReply = z.object({ messages: z.array(devMailSchema) })
 export type DevMailReply = z.infer<typeof devMailReply>
+
+// ---------------------------------------------------------------------------------------------------------------
+// datasets (measured spectra)
+
+const quantityCode = z.enum(SPECTRUM_QUANTITIES)
+
+/**
+ * The `options` field of POST /api/sheets/:sheetId/datasets(/preview): the confirmed mapping (which columns, their
+ * names, quantities and units; which sample) and what to do with duplicate x and empty cells.
+ */
+export const datasetImportOptions = z.object({
+  columns: z
+    .array(z.object({
+      key: z.string().max(16),
+      name: z.string().regex(IDENTIFIER, 'must start with a letter and use only letters, digits and _').max(64).optional(),
+      quantity: quantityCode.optional(),
+      unit: z.string().max(64).optional(),
+    }))
+    .max(200)
+    .optional(),
+  sample: z.string().max(200).optional(),
+  /** The spectrum's name (the cell's name in formulas); default from the file name. */
+  name: z.string().regex(IDENTIFIER, 'must start with a letter and use only letters, digits and _').max(64).optional(),
+  averageDuplicates: z.boolean().optional(),
+  dropEmptyRows: z.boolean().optional(),
+})
+export type DatasetImportOptions = z.infer<typeof datasetImportOptions>
+
+export interface DatasetPreviewColumn {
+  key: string
+  label: string
+  quantity: SpectrumQuantity
+  unit: string
+  guessed: boolean
+  note: string
+  count: number
+  min: number
+  max: number
+}
+
+export interface DatasetPreview {
+  columns: DatasetPreviewColumn[]
+  samples: { key: string; name: string; columns: string[] }[]
+  /** The first rows of the numbers (null for an empty cell). */
+  rows: (number | null)[][]
+  warnings: string[]
+  dialect: { separator: string; decimal: string; encoding: string; firstLine: number; headerLine?: number }
+  /** Every column thinned to at most a few hundred points, by key, for the preview's plot. */
+  plot: Record<string, (number | null)[]>
+  /** A name for the spectrum, from the file name. */
+  name: string
+  /** The mapping's problem, when the guesses cannot be imported as they are (duplicate x, empty cells …). */
+  problem?: { error: string; issues: ApiIssue[]; offer?: 'averageDuplicates' | 'dropEmptyRows' }
+}
+
+export interface DatasetCreated {
+  id: string
+  name: string
+  source: string
+  sample: string
+  columns: { name: string; quantity: string; unit: string; count: number; min?: number; max?: number }[]
+  warnings: string[]
+}
+
+export interface DatasetReply {
+  id: string
+  name: string
+  source: string | null
+  createdAt: number
+  columns: { name: string; quantity?: string; unit: string; values: (number | null)[] }[]
+}
