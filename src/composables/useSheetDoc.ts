@@ -286,6 +286,25 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     return ok ? id : null
   }
 
+  /**
+   * Inserts several new cells at `index` (end when omitted) as one undo step (e.g. the cells of an α extraction);
+   * returns their ids in order.
+   */
+  function insertCells(next: Cell[], index = cells.length): string[] | null {
+    const ids = next.map(() => newCellId())
+    const ok = transactStep(() => cells.insert(Math.max(0, Math.min(index, cells.length)), next.map((c, i) => cellToMap({ ...c, id: ids[i] }, ids[i]))))
+    return ok ? ids : null
+  }
+
+  /** Writes plain fields of a cell as an undo step of its own (a fit window set on the figure, a value taken over). */
+  function setFieldsStep(id: string, fields: Record<string, unknown>): boolean {
+    if (readonly) return false
+    undoManager.stopCapturing()
+    const ok = setFields(id, fields)
+    undoManager.stopCapturing()
+    return ok
+  }
+
   function deleteCell(id: string): boolean {
     const i = indexOf(id)
     if (i < 0) return false
@@ -362,6 +381,8 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     indexOf,
     setFields,
     insertCell,
+    insertCells,
+    setFieldsStep,
     deleteCell,
     moveCell,
     duplicateCell,
