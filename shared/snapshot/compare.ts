@@ -46,18 +46,18 @@ export function compareSheets(a: CompareSide, b: CompareSide): Body {
   for (const [id, { cell }] of byIdA) if (!byIdB.has(id)) out.removed.push(cellLabel(cell))
   for (const [id, { cell }] of byIdB) if (!byIdA.has(id)) out.added.push(cellLabel(cell))
 
-  // positions among the cells both sides share, so one insertion does not "move" every cell after it
+  // a cell moved when it is not among the longest run of shared cells that kept their order, so one insertion,
+  // removal or move does not "move" every cell after it
   const common = [...byIdA.keys()].filter((id) => byIdB.has(id))
-  const orderB = common.slice().sort((x, y) => byIdB.get(x)!.index - byIdB.get(y)!.index)
-  const rankA = new Map(common.map((id, i) => [id, i]))
-  const rankB = new Map(orderB.map((id, i) => [id, i]))
+  const stay = longestIncreasing(common.map((id) => byIdB.get(id)!.index)).map((i) => common[i])
+  const stayed = new Set(stay)
 
   for (const id of common) {
     const { cell: ca, index: ia } = byIdA.get(id)!
     const { cell: cb, index: ib } = byIdB.get(id)!
     const name = cellLabel(cb)
     if (cellLabel(ca) !== name) out.renamed.push({ from: cellLabel(ca), to: name })
-    if (rankA.get(id) !== rankB.get(id)) out.moved.push({ name, from: ia, to: ib })
+    if (!stayed.has(id)) out.moved.push({ name, from: ia, to: ib })
     if (ca.kind !== cb.kind) {
       out.settings.push({ name, kind: cb.kind, fields: ['kind'] })
       continue
@@ -83,6 +83,26 @@ export function compareSheets(a: CompareSide, b: CompareSide): Body {
 
   out.results = compareResults(a, b)
   return out
+}
+
+/** Indexes of one longest strictly increasing subsequence of `xs` (patience sorting, O(n log n)). */
+function longestIncreasing(xs: readonly number[]): number[] {
+  const tails: number[] = []
+  const prev: number[] = new Array(xs.length).fill(-1)
+  xs.forEach((x, i) => {
+    let lo = 0
+    let hi = tails.length
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1
+      if (xs[tails[mid]] < x) lo = mid + 1
+      else hi = mid
+    }
+    if (lo > 0) prev[i] = tails[lo - 1]
+    tails[lo] = i
+  })
+  const out: number[] = []
+  for (let i = tails.length ? tails[tails.length - 1] : -1; i >= 0; i = prev[i]) out.push(i)
+  return out.reverse()
 }
 
 // ---------------------------------------------------------------------------------------------------------------
