@@ -5,6 +5,7 @@
  */
 import { z } from 'zod'
 import { cellResultSchema, timestampSchema } from './api'
+import type { CellResult } from './result'
 
 export const REVIEW_STATES = ['open', 'approved', 'changes-requested'] as const
 export type ReviewState = (typeof REVIEW_STATES)[number]
@@ -39,7 +40,12 @@ export type SnapshotSummary = z.infer<typeof snapshotSummary>
 
 export const snapshotsReply = z.object({ snapshots: z.array(snapshotSummary) })
 
-export const snapshotResults = z.looseObject({ title: z.string().optional(), cells: z.array(cellResultSchema), engine: z.string().optional() })
+/** The stored result object (DESIGN §5); each cell's value is checked by the views that draw it. */
+export const snapshotResults = z.looseObject({
+  title: z.string().optional(),
+  cells: z.array(cellResultSchema).transform((cells) => cells as unknown as CellResult[]),
+  engine: z.string().optional(),
+})
 
 /** GET /api/snapshots/:id and GET /api/guest/:token: the summary with the sheet file and its stored results. */
 export const snapshotDetail = snapshotSummary.extend({
