@@ -1,5 +1,7 @@
 /** Snapshots of a sheet: freeze, timeline, one snapshot with its file and stored results, compare, the file download. */
 import { compareReply, snapshotDetail, snapshotSummary, snapshotsReply, type CompareReply, type SnapshotDetail, type SnapshotSummary } from '../../shared/schema/review'
+import { z } from 'zod'
+import { evaluationReply, type EvaluationReply } from '../../shared/schema/api'
 import { api, download, seg } from './client'
 
 export type { CompareReply, SnapshotDetail, SnapshotSummary }
@@ -27,4 +29,13 @@ export function compareSnapshots(a: string, b: string | 'live'): Promise<Compare
 export function downloadSnapshotFile(snapshot: { id: string; hash: string }, title: string): Promise<string> {
   const safe = title.replace(/[\\/:*?"<>|]+/g, '_') || 'snapshot'
   return download(`/api/snapshots/${seg(snapshot.id)}/file`, `${safe}-${snapshot.hash.slice(0, 8)}.penumbra.json`)
+}
+
+const fileReply = z.looseObject({ cells: z.array(z.unknown()) })
+
+/** The live sheet as a version to compare: its file now, and the server's evaluation of it. */
+export async function liveVersion(sheetId: string): Promise<{ file: unknown; results: EvaluationReply }> {
+  const file = await api.get(`/api/sheets/${seg(sheetId)}/file`, fileReply)
+  const results = await api.post('/api/evaluate', file, evaluationReply)
+  return { file, results }
 }
