@@ -39,8 +39,20 @@ export interface ServerEnv {
   DEV_SMTP_PORT?: string
 }
 
+/**
+ * The address the server listens on: HOST when set (e.g. `0.0.0.0` to let the lab's other machines in); otherwise
+ * every interface in production, and only this machine (127.0.0.1) outside it, so a development server with its
+ * mailbox of sign-in links is not reachable from the network by accident.
+ */
+export function listenHost(env: Pick<ServerEnv, 'HOST' | 'NODE_ENV'>): string | undefined {
+  if (env.HOST) return env.HOST
+  return env.NODE_ENV === 'production' ? undefined : '127.0.0.1'
+}
+
 export interface RunningServer {
   url: string
+  /** The address listened on (see listenHost). */
+  host: string
   port: number
   dataDir: string
   handle: DbHandle
@@ -117,6 +129,7 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
   const hooks: AppHooks = {
     membershipChanged: (labId, userId) => collab.membershipChanged(labId, userId),
     sheetDeleted: (sheetId) => collab.sheetDeleted(sheetId),
+    sessionsEnded: (userId) => collab.sessionsEnded(userId),
   }
   const app = createApp({ db: handle.db, secret, mailer, config, hooks })
   const server = http.createServer(app)
@@ -134,7 +147,7 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
 
   await new Promise<void>((resolve, reject) => {
     server.once('error', reject)
-    server.listen(port, env.HOST, () => {
+    server.listen(port, listenHost(env), () => {
       server.off('error', reject)
       resolve()
     })
@@ -164,7 +177,8 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
       handle.close()
     })())
 
-  return { url, port: actualPort, dataDir, handle, mailer, config, collab, close }
+  const address = server.address()
+  return { url, host: typeof address === 'object' && address ? address.address : '', port: actualPort, dataDir, handle, mailer, config, collab, close }
 }
 
 async function main(): Promise<void> {

@@ -8,7 +8,7 @@ import type { Role } from '../db/schema'
 import { canWrite } from '../services/access'
 import type { Admission } from './auth'
 import type { DocEntry, DocumentRegistry, RegistryPeer } from './registry'
-import { checkUpdate, decodeClientMessage, encodePermissionDenied, type AwarenessEntry } from './protocol'
+import { checkUpdate, decodeClientMessage, encodePermissionDenied, presenceProblem, type AwarenessEntry } from './protocol'
 
 /** Close codes. 44xx tell the y-websocket client not to reconnect (the server decided); the others are transient. */
 export const CLOSE = {
@@ -301,8 +301,11 @@ export class CollabConnection implements RegistryPeer {
         return
       }
       case 'awareness': {
-        const refused = this.registry.applyAwareness(this.entry, this, message.entries.map((e) => this.stamp(e)))
-        this.counters.awarenessRefused += refused
+        // presence that other clients would put into style attributes and labels is checked first; a bad entry is
+        // dropped and counted, the rest go on
+        const valid = message.entries.filter((e) => presenceProblem(e.state) === null)
+        const refused = this.registry.applyAwareness(this.entry, this, valid.map((e) => this.stamp(e)))
+        this.counters.awarenessRefused += refused + message.entries.length - valid.length
         return
       }
       case 'query-awareness':

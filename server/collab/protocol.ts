@@ -118,6 +118,33 @@ export function decodeAwarenessUpdate(update: Uint8Array): AwarenessEntry[] {
   return entries
 }
 
+/** A presence colour: `#rgb`, `#rrggbb`, or either with an alpha digit pair (`#rrggbbaa`, the light caret tint). */
+const HEX_COLOUR = /^#(?:[0-9a-fA-F]{3}|[0-9a-fA-F]{6}|[0-9a-fA-F]{8})$/
+/** A short plain name: no control characters and nothing that could open markup. */
+const PLAIN_NAME = /^[^\u0000-\u001f\u007f<>]{1,80}$/
+/** A cell id as the sheet document holds them. */
+const CELL_ID = /^[\w-]{1,64}$/
+
+/**
+ * Checks one client's own presence before it is relayed (other clients put these fields in style attributes and
+ * labels): `user.color` and `user.colorLight` hex colours, `user.name` a short plain string, `cell` null or a cell id.
+ * Returns the problem, or null. A state of null (the client left) is always fine.
+ */
+export function presenceProblem(state: Record<string, unknown> | null): string | null {
+  if (state === null) return null
+  const user = state.user
+  if (user !== undefined) {
+    if (user === null || typeof user !== 'object' || Array.isArray(user)) return 'presence user must be an object'
+    const u = user as Record<string, unknown>
+    for (const key of ['color', 'colorLight'])
+      if (u[key] !== undefined && (typeof u[key] !== 'string' || !HEX_COLOUR.test(u[key]))) return `presence ${key} must be a hex colour like #1f6feb`
+    if (u.name !== undefined && (typeof u.name !== 'string' || !PLAIN_NAME.test(u.name))) return 'presence name must be plain text of at most 80 characters'
+  }
+  const cell = state.cell
+  if (cell !== undefined && cell !== null && (typeof cell !== 'string' || !CELL_ID.test(cell))) return 'presence cell must be a cell id or null'
+  return null
+}
+
 /** Re-encodes awareness entries in the y-protocols format. */
 export function encodeAwarenessEntries(entries: readonly AwarenessEntry[]): Uint8Array {
   const encoder = encoding.createEncoder()

@@ -7,7 +7,7 @@
  * one path.
  */
 import * as Y from 'yjs'
-import { SHEET_FORMAT, SHEET_VERSION, type Cell, type CellKind, type DatasetColumn, type SheetCell, type SheetFile } from '../schema/sheet'
+import { CELL_SCHEMAS, SHEET_FORMAT, SHEET_VERSION, keepsUnknownFields, type Cell, type CellKind, type DatasetColumn, type SheetCell, type SheetFile } from '../schema/sheet'
 
 /** Fields held as Y.Text for concurrent typing. */
 export const TEXT_FIELDS = ['source', 'text'] as const
@@ -148,6 +148,10 @@ export function docToSheetFile(doc: Y.Doc, options: ExportOptions = {}): SheetFi
       if (!(item instanceof Y.Map)) return
       const cell = mapToCell(item) as SheetCell & Record<string, unknown>
       if (typeof cell.id !== 'string' || cell.id.length === 0) cell.id = `cell-${index}`
+      // the file is strict: a field the cell's schema does not name (a client's own, or one stored before the server
+      // checked edits) stays in the document but not in the file, so an export always imports again
+      const schema = CELL_SCHEMAS.get(cell.kind)
+      if (schema && !keepsUnknownFields(schema)) for (const key of Object.keys(cell)) if (!Object.hasOwn(schema.shape, key)) delete cell[key]
       if (cell.kind === 'spectrum' && typeof cell.datasetId === 'string' && options.datasetColumns) {
         const columns = options.datasetColumns(cell.datasetId)
         if (columns) cell.columns = columns
