@@ -76,7 +76,8 @@ function handRun(): Record<string, number[]> {
       T[i] += 0.5 * ((fwd.T * x * (1 - bare.R)) / D)
       for (let j = 0; j < q; j++) {
         const r = q - 1 - j
-        absorbed[j][i] += 0.5 * (Math.max(0, fwd.flux[j] - fwd.flux[j + 1]) + Math.max(0, rev.flux[r] - rev.flux[r + 1]) * up)
+        // a layer with k = 0 absorbs nothing (its flux difference is rounding)
+        if (fwd.k[j] !== 0) absorbed[j][i] += 0.5 * (Math.max(0, fwd.flux[j] - fwd.flux[j + 1]) + Math.max(0, rev.flux[r] - rev.flux[r + 1]) * up)
       }
       absorbed[q][i] += 0.5 * (((1 - x) * (1 + x * bare.R) * fwd.T) / D)
     }

@@ -90,7 +90,7 @@ export function stackFigureCell(cell: StackCell, result: CellResult | undefined)
   return {
     kind: 'figure',
     traces: keys.map((k) => ({ x: `${cell.name}.wavelength`, y: `${cell.name}.${k}`, label: label(k), style: 'line' as const })),
-    x: { visibleBand: true },
+    x: { label: 'Wavelength', visibleBand: true },
     y: { label: 'fraction of the incident light', min: 0, max: 1 },
   }
 }
