@@ -120,7 +120,7 @@ export function stackResponse(
         else solveTmmPoint(front, lam, n0, s2, p, ns, ks)
         R += weight * front.R
         T += weight * front.T
-        for (let j = 0; j < front.q; j++) out.absorbed[j][i] += weight * Math.max(0, front.flux[j] - front.flux[j + 1])
+        for (let j = 0; j < front.q; j++) out.absorbed[j][i] += weight * layerShare(front, j)
         continue
       }
       // thick incoherent substrate: coherent front both ways, bare back face, intensities summed
@@ -139,10 +139,9 @@ export function stackResponse(
       R += weight * (Rf + Tr * up)
       T += weight * ((Tf * x * (1 - Rb)) / D)
       for (let j = 0; j < q; j++) {
-        const fromFront = Math.max(0, front.flux[j] - front.flux[j + 1])
+        const fromFront = layerShare(front, j)
         // layer j is layer q − 1 − j of the reversed stack
-        const r = q - 1 - j
-        const fromBack = Math.max(0, (back as TmmPoint).flux[r] - (back as TmmPoint).flux[r + 1])
+        const fromBack = layerShare(back as TmmPoint, q - 1 - j)
         out.absorbed[j][i] += weight * (fromFront + fromBack * up)
       }
       out.absorbed[q][i] += weight * (((1 - x) * (1 + x * Rb) * Tf) / D)
@@ -154,6 +153,11 @@ export function stackResponse(
     out.A[i] = A
   }
   return out
+}
+
+/** The share of the light absorbed in layer j: the flux into it less the flux out; exactly 0 when k = 0 (no rounding noise). */
+function layerShare(pt: TmmPoint, j: number): number {
+  return pt.k[j] === 0 ? 0 : Math.max(0, pt.flux[j] - pt.flux[j + 1])
 }
 
 function formatDeg(rad: number): string {
