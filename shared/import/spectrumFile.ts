@@ -185,9 +185,9 @@ function whitespaceToTabs(text: string): string {
   return text.replace(/^[ \t]+|[ \t]+$/gm, '').replace(/[ \t]+/g, '\t')
 }
 
-function splitLines(text: string, dialect: Dialect, preview?: number): string[][] {
+function splitLines(text: string, dialect: Dialect): string[][] {
   const body = dialect.separator === 'whitespace' ? whitespaceToTabs(text) : text
-  const res = Papa.parse<string[]>(body, { delimiter: DELIMITER[dialect.separator], newline: '\n', preview, skipEmptyLines: false })
+  const res = Papa.parse<string[]>(body, { delimiter: DELIMITER[dialect.separator], newline: '\n', skipEmptyLines: false })
   return res.data
 }
 
@@ -208,8 +208,12 @@ function numericRow(fields: readonly string[], decimal: '.' | ','): boolean {
 /** The dialect whose reading gives the longest run of numeric rows with the most columns, and where the run starts. */
 function detectDialect(text: string): { dialect: Dialect; start: number; width: number } | null {
   let best: { dialect: Dialect; start: number; width: number; score: number } | null = null
+  // the first 400 lines decide (papaparse would split the whole text even for a preview)
+  let cut = -1
+  for (let i = 0; i < 400 && (cut = text.indexOf('\n', cut + 1)) >= 0; i++);
+  const head = cut < 0 ? text : text.slice(0, cut)
   for (const dialect of DIALECTS) {
-    const rows = splitLines(text, dialect, 400)
+    const rows = splitLines(head, dialect)
     let runStart = -1
     let run = 0
     for (let i = 0; i <= rows.length; i++) {
@@ -340,7 +344,8 @@ function guessColumn(reading: LabelReading, position: number, xFound: boolean, m
 export function parseSpectrumFile(input: Uint8Array | string, options: { maxNumbers?: number } = {}): ParsedSpectrumFile {
   const maxNumbers = options.maxNumbers ?? MAX_IMPORT_NUMBERS
   const decoded = typeof input === 'string' ? { text: input.replace(/^\uFEFF/, ''), encoding: 'text' } : decodeText(input)
-  const text = decoded.text.replace(/\r\n?/g, '\n')
+  // lines split at \n; a CR before it is whitespace to every cell read (CR-only files are rewritten first)
+  const text = decoded.text.includes('\n') ? decoded.text : decoded.text.replace(/\r/g, '\n')
   if (text.trim() === '') throw new SpectrumFileError('The file is empty.', [{ message: 'no text in the file' }])
   const found = detectDialect(text)
   if (!found) {
@@ -412,9 +417,11 @@ export function parseSpectrumFile(input: Uint8Array | string, options: { maxNumb
     if (w < width && short.length < 20) short.push({ line, column: w + 1, message: `${w} value${w === 1 ? '' : 's'} on this line; the rows above have ${width}` })
     for (let c = 0; c < w; c++) {
       const raw = fields[c]
-      // fast path: a plain number (`+` and parseFloat agree only on decimal notation; '' and '0x1f' fall through)
+      // fast path: a finite non-zero number not starting with 0 or a space (so not '', '0x1f', ' 0b1' either);
+      // everything else is checked against the decimal pattern
       const f = +raw
-      let v: number | null | undefined = decimal === '.' && f === parseFloat(raw) && f - f === 0 ? f : cellNumber(raw, decimal)
+      const c0 = raw.charCodeAt(0)
+      const v: number | null | undefined = decimal === '.' && f - f === 0 && f !== 0 && c0 !== 48 && c0 !== 32 && c0 !== 9 ? f : cellNumber(raw, decimal)
       if (v === undefined) {
         issues.push({ line, column: c + 1, message: `"${raw.trim().slice(0, 40)}" is not a number${labels[c] ? ` (column ${labels[c]})` : ''}` })
         break
@@ -518,9 +525,16 @@ const COLUMN_NAME: Record<SpectrumQuantity, string> = {
   wavelength: 'wavelength', energy: 'energy', wavenumber: 'wavenumber', T: 'T', R: 'R', A: 'A', A10: 'A10', alpha: 'alpha', n: 'n', k: 'k', other: 'col',
 }
 
-function identifierFrom(text: string, fallback: string): string {
+/** A name formulas can use, made from free text: `Film B 2024-03` → `Film_B_2024_03`; `2024 run` → `s_2024_run`. */
+export function identifierFrom(text: string, fallback: string): string {
   const cleaned = text.normalize('NFKD').replace(/[^A-Za-z0-9_]+/g, '_').replace(/^_+|_+$/g, '').slice(0, 40)
-  return IDENTIFIER.test(cleaned) ? cleaned : fallback
+  if (IDENTIFIER.test(cleaned)) return cleaned
+  return /^[0-9]/.test(cleaned) && IDENTIFIER.test(`s_${cleaned}`) ? `s_${cleaned}` : fallback
+}
+
+/** A spectrum's name from its file's name, without the extension. */
+export function nameFromFile(fileName: string): string {
+  return identifierFrom(fileName.replace(/\.[A-Za-z0-9]{1,5}$/, ''), 'spectrum')
 }
 
 /**
@@ -599,7 +613,8 @@ export function mapSpectrum(file: ParsedSpectrumFile, options: MappingOptions = 
   let order: number[] | null = null
   if (!ascending) {
     if (descending) {
-      order = Array.from({ length: n }, (_, i) => n - 1 - i)
+      order = new Array<number>(n)
+      for (let i = 0; i < n; i++) order[i] = n - 1 - i
       warnings.push(`The ${taken[xi].name} column was descending (${fmt(x[0])} to ${fmt(x[n - 1])}); the rows were reversed so it ascends.`)
     } else {
       order = Array.from({ length: n }, (_, i) => i).sort((a, b) => x[a] - x[b] || a - b)
@@ -607,7 +622,12 @@ export function mapSpectrum(file: ParsedSpectrumFile, options: MappingOptions = 
       if (!dupes) warnings.push(`The ${taken[xi].name} column was not in order; the rows were sorted by it.`)
       else warnings.push(`The rows were sorted by ${taken[xi].name}.`)
     }
-    columns = columns.map((c) => Float64Array.from(order!, (i) => c[i]))
+    const o = order
+    columns = columns.map((c) => {
+      const out = new Float64Array(n)
+      for (let i = 0; i < n; i++) out[i] = c[o[i]]
+      return out
+    })
   }
   // duplicate x
   const xs = columns[xi]

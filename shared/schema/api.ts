@@ -14,7 +14,7 @@
  * - The session is an httpOnly cookie (`penumbra_session`); the client never reads it.
  */
 import { z } from 'zod'
-import { IDENTIFIER, SPECTRUM_QUANTITIES, type SpectrumQuantity } from './sheet'
+import { IDENTIFIER, SPECTRUM_QUANTITIES } from './sheet'
 
 /** Lab roles, most powerful first (DESIGN §2). Kept in step with server/db/schema.ts. */
 export const LAB_ROLES = ['owner', 'editor', 'reviewer', 'viewer'] as const
@@ -361,49 +361,48 @@ export const datasetImportOptions = z.object({
 })
 export type DatasetImportOptions = z.infer<typeof datasetImportOptions>
 
-export interface DatasetPreviewColumn {
-  key: string
-  label: string
-  quantity: SpectrumQuantity
-  unit: string
-  guessed: boolean
-  note: string
-  count: number
-  min: number
-  max: number
-}
+const nullableNumbers = z.array(z.number().nullable())
 
-export interface DatasetPreview {
-  columns: DatasetPreviewColumn[]
-  samples: { key: string; name: string; columns: string[] }[]
+export const datasetPreviewReply = z.object({
+  columns: z.array(z.object({
+    key: z.string(), label: z.string(), quantity: quantityCode, unit: z.string(), guessed: z.boolean(), note: z.string(),
+    count: z.number(), min: z.number().nullable(), max: z.number().nullable(),
+  })),
+  samples: z.array(z.object({ key: z.string(), name: z.string(), columns: z.array(z.string()) })),
   /** The first rows of the numbers (null for an empty cell). */
-  rows: (number | null)[][]
-  warnings: string[]
-  dialect: { separator: string; decimal: string; encoding: string; firstLine: number; headerLine?: number }
+  rows: z.array(nullableNumbers),
+  warnings: z.array(z.string()),
+  dialect: z.object({ separator: z.string(), decimal: z.string(), encoding: z.string(), firstLine: z.number(), headerLine: z.number().optional() }),
   /** Every column thinned to at most a few hundred points, by key, for the preview's plot. */
-  plot: Record<string, (number | null)[]>
+  plot: z.record(z.string(), nullableNumbers),
   /** A name for the spectrum, from the file name. */
-  name: string
+  name: z.string(),
   /** The mapping's problem, when the guesses cannot be imported as they are (duplicate x, empty cells …). */
-  problem?: { error: string; issues: ApiIssue[]; offer?: 'averageDuplicates' | 'dropEmptyRows' }
-}
+  problem: z.object({ error: z.string(), issues: z.array(issueSchema), offer: z.enum(['averageDuplicates', 'dropEmptyRows']).optional() }).optional(),
+})
+export type DatasetPreview = z.infer<typeof datasetPreviewReply>
+export type DatasetPreviewColumn = DatasetPreview['columns'][number]
 
-export interface DatasetCreated {
-  id: string
-  name: string
-  source: string
-  sample: string
-  columns: { name: string; quantity: string; unit: string; count: number; min?: number; max?: number }[]
-  warnings: string[]
-}
+export const datasetCreatedReply = z.object({
+  id: z.string(),
+  name: z.string(),
+  source: z.string(),
+  sample: z.string(),
+  columns: z.array(z.object({ name: z.string(), quantity: z.string(), unit: z.string(), count: z.number(), min: z.number().optional(), max: z.number().optional() })),
+  warnings: z.array(z.string()),
+})
+export type DatasetCreated = z.infer<typeof datasetCreatedReply>
 
-export interface DatasetReply {
-  id: string
-  name: string
-  source: string | null
-  createdAt: number
-  columns: { name: string; quantity?: string; unit: string; values: (number | null)[] }[]
-}
+export const datasetReply = z.object({
+  id: z.string(),
+  name: z.string(),
+  source: z.string().nullable(),
+  createdAt: z.number(),
+  columns: z.array(z.object({ name: z.string(), quantity: z.string().optional(), unit: z.string(), values: nullableNumbers })),
+})
+export type DatasetReply = z.infer<typeof datasetReply>
+
+// ---------------------------------------------------------------------------------------------------------------
 // snapshots (DESIGN §11 item 5)
 
 /** Routes the SPA serves for snapshots and guests (the pages then call the API). */
