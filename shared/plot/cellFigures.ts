@@ -86,6 +86,13 @@ export function fitFigure(spec: FitSpec, results: Record<string, CellResult | un
   base.x = { title: `${spec.x} (${prettyUnit(p.xUnit)})`, unit: p.xUnit, scale: 'linear', quantity: 'energy' }
   base.y = { title: p.yTitle, unit: '', scale: 'linear', quantity: null }
   base.series.push({ name: 'data', x: p.x, y: p.y, style: 'points', color: traceColor(0) })
+  // the x axis spans the data, not the fitted line: a window dragged across the plot must not move the axis under it
+  const xs = p.x.filter(Number.isFinite)
+  if (xs.length > 1) {
+    const [lo, hi] = [Math.min(...xs), Math.max(...xs)]
+    const pad = 0.02 * (hi - lo)
+    if (hi > lo) base.x.range = [lo - pad, hi + pad]
+  }
   if (live) {
     const f = live.fit
     const text = f ? `${f.quantity} = ${formatWithError(f.value, f.err)} ${prettyUnit(p.xUnit)}` : ''

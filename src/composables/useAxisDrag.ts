@@ -53,7 +53,11 @@ export function useAxisDrag(root: Ref<HTMLElement | null | undefined>, opts: Axi
     const xa = gd?._fullLayout?.xaxis
     if (!gd || !xa || !root.value) return
     const shift = gd.getBoundingClientRect().left - root.value.getBoundingClientRect().left
-    area.value = { left: shift + xa._offset, width: xa._length, range: [xa.range[0], xa.range[1]] }
+    const next: PlotArea = { left: shift + xa._offset, width: xa._length, range: [xa.range[0], xa.range[1]] }
+    const now = area.value
+    // only a real change is reported: what is drawn from it changes elements inside root, which calls this again
+    if (now && now.left === next.left && now.width === next.width && now.range[0] === next.range[0] && now.range[1] === next.range[1]) return
+    area.value = next
   }
 
   /**
