@@ -305,6 +305,7 @@ export const cellResultSchema = z
     status: z.enum(['ok', 'error', 'blocked']),
     value: z.unknown().optional(),
     unit: z.string().optional(),
+    units: z.record(z.string(), z.string()).optional(),
     dimension: z.string().optional(),
     warnings: z.array(z.string()).optional(),
     error: z.string().optional(),

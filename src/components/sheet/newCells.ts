@@ -19,6 +19,7 @@ export const ADDABLE_KINDS: KindInfo[] = [
   { kind: 'fit', label: 'Fit', hint: 'Tauc, Urbach or a model fit', key: 't' },
   { kind: 'sweep', label: 'Sweep', hint: 'one parameter over a range', key: 's' },
   { kind: 'figure', label: 'Figure', hint: 'a chart of other cells', key: 'g' },
+  { kind: 'stack', label: 'Stack', hint: 'layers on a substrate: R, T and each layer\'s absorptance', key: 'l' },
   { kind: 'note', label: 'Note', hint: 'free text in Markdown', key: 'n' },
 ]
 
@@ -104,7 +105,14 @@ export function newCell(kind: CellKind, cells: readonly SheetCell[], above: read
       return { kind, text: '' }
     case 'spectrum':
       return { kind, name, columns: {} }
-    case 'stack':
-      return { kind, name, layers: [] }
+    case 'stack': {
+      // the nearest length-valued grid above is the usual wavelength grid; a working start otherwise
+      const lam = arrays.find((c) => c.kind === 'formula' && /^(nm|um)$|^lam|wavelength/i.test(c.unit ?? c.name ?? ''))?.name
+      return {
+        kind, name, wavelength: lam ?? 'grid(300*nm, 1100*nm, 401)', ambient: '1', angle: '0*deg', polarization: 'unpolarized',
+        layers: [{ name: 'film', thickness: '500*nm', n: '2.5', k: '0.05' }],
+        substrate: { name: 'glass', n: '1.52', k: '0', thickness: '1*mm', coherent: false },
+      }
+    }
   }
 }
