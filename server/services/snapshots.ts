@@ -7,6 +7,7 @@ import { createHash } from 'node:crypto'
 import { and, count, desc, eq, gt, isNull } from 'drizzle-orm'
 import * as Y from 'yjs'
 import type { AppDeps } from '../deps'
+import type { AppConfig } from '../config'
 import type { Db } from '../db/client'
 import { guestLinks, reviews, snapshots, users } from '../db/schema'
 import { docToSheetFile, newCellId } from '../../shared/doc/sheetDoc'
@@ -67,7 +68,7 @@ export interface FreezeOptions {
 }
 
 /** Freezes the sheet's live document as a new snapshot. */
-export async function freezeSnapshot(deps: Pick<AppDeps, 'db' | 'config'>, sheet: SheetRow, userId: string, message: string, options: FreezeOptions = {}): Promise<SnapshotRow> {
+export async function freezeSnapshot(deps: { db: Db; config: Pick<AppConfig, 'evaluate'> }, sheet: SheetRow, userId: string, message: string, options: FreezeOptions = {}): Promise<SnapshotRow> {
   const doc = loadDocument(deps.db, sheet.id)
   const docState = Buffer.from(Y.encodeStateAsUpdate(doc))
   const file = canonicalJson(liveSheetFile(deps.db, sheet, doc))
