@@ -18,7 +18,9 @@ import { shortHash, type SnapshotDetail, type SnapshotSummary } from '../../shar
 import { conflict, HttpError } from '../errors'
 import type { SheetRow } from '../types'
 import { loadDocument } from './documents'
-import { sharedEvaluator, type SheetEvaluator } from './evaluation'
+import { sharedEvaluator, type Evaluator } from './evaluation'
+import { evaluateSheet } from '../../shared/engine/index'
+import { parseSheetFileText } from '../../shared/schema/sheet'
 import { reviewStateOf } from './reviews'
 import { createSheet } from './sheets'
 import { newId } from './tokens'
@@ -44,7 +46,7 @@ export function liveSheetFile(db: Db, sheet: Pick<SheetRow, 'id' | 'labId' | 'ti
 }
 
 /** Evaluates a sheet file's text with the server's engine (the evaluation worker): the result object's JSON text. */
-export async function evaluateOnServer(evaluator: SheetEvaluator, text: string, budgetMs: number): Promise<string> {
+export async function evaluateOnServer(evaluator: Evaluator, text: string, budgetMs: number): Promise<string> {
   const outcome = await evaluator.evaluate(text, budgetMs)
   if (outcome.ok) return new TextDecoder().decode(outcome.json)
   switch (outcome.reason) {
@@ -62,8 +64,20 @@ export async function evaluateOnServer(evaluator: SheetEvaluator, text: string, 
   }
 }
 
+/**
+ * The same parse and engine as the evaluation worker, on the calling thread and without its time budget: for the
+ * demo seed at start, where starting a worker thread costs more than the sheets it evaluates.
+ */
+export const inProcessEvaluator: Evaluator = {
+  evaluate(text) {
+    const parsed = parseSheetFileText(text)
+    if (!parsed.ok) return Promise.resolve({ ok: false, reason: 'invalid', issues: parsed.issues })
+    return Promise.resolve({ ok: true, json: new TextEncoder().encode(JSON.stringify(evaluateSheet(parsed.value))) })
+  },
+}
+
 export interface FreezeOptions {
-  evaluator?: SheetEvaluator
+  evaluator?: Evaluator
   now?: number
 }
 
