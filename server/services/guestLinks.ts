@@ -3,7 +3,7 @@
  * account, until it expires (1 to 90 days) or is revoked. Each view is counted.
  */
 import { desc, eq, sql } from 'drizzle-orm'
-import type { AppDeps } from '../deps'
+import type { AppConfig } from '../config'
 import type { Db } from '../db/client'
 import { guestLinks } from '../db/schema'
 import { SNAPSHOT_PAGE_ROUTES, type GuestLink, type GuestLinkCreated, type GuestSnapshot } from '../../shared/schema/api'
@@ -26,12 +26,12 @@ export function guestLinkReply(db: Db, row: GuestLinkRow): GuestLink {
   }
 }
 
-export function guestUrl(deps: Pick<AppDeps, 'config'>, token: string): string {
+export function guestUrl(deps: { config: Pick<AppConfig, 'publicUrl'> }, token: string): string {
   return `${deps.config.publicUrl}${SNAPSHOT_PAGE_ROUTES.guest.replace(':token', encodeURIComponent(token))}`
 }
 
 export function createGuestLink(
-  deps: Pick<AppDeps, 'db' | 'config'>,
+  deps: { db: Db; config: Pick<AppConfig, 'publicUrl'> },
   snapshot: SnapshotRow,
   userId: string,
   o: { expiresInDays: number; note: string; token?: string; now?: number },

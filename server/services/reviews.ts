@@ -92,7 +92,7 @@ export function createReview(deps: Pick<AppDeps, 'db' | 'mailer' | 'config'>, sn
     if (!(DECIDING_ROLES as readonly string[]).includes(m.role)) return [{ path: `reviewerIds[${i}]`, message: `is ${m.role === 'editor' ? 'an editor' : 'a viewer'}; only reviewers and owners review` }]
     return []
   })
-  if (issues.length > 0) throw badRequest(`Only reviewers and owners of this lab can be asked to review: reviewerIds ${issues[0].path.slice('reviewerIds'.length)} ${issues[0].message}.`, issues)
+  if (issues.length > 0) throw badRequest(`Only reviewers and owners of this lab can be asked to review: ${issues[0].path} ${issues[0].message}.`, issues)
   const row: ReviewRow = { id: newId(), snapshotId: snapshot.id, sheetId: snapshot.sheetId, labId: snapshot.labId, requestedBy: requesterId, note, createdAt: Date.now() }
   db.transaction(() => {
     db.insert(reviews).values(row).run()
