@@ -16,6 +16,7 @@ import { createApp } from './app'
 import { defaultConfig, type AppConfig } from './config'
 import { openDb, type DbHandle } from './db/client'
 import { demoAccountsPresent, formatDemoTable, isEmpty, seedDemo } from './db/seed'
+import { demoGuestUrl } from './db/seedSnapshots'
 import { createDevMailer, smtpMailer, type Mailer } from './mail/mailer'
 import { pruneExpired } from './services/housekeeping'
 import { closeSharedEvaluator } from './services/evaluation'
@@ -41,6 +42,8 @@ export interface ServerEnv {
 
 export interface RunningServer {
   url: string
+  /** The demo lab's guest link while it is usable (printed at start), else null. */
+  demoGuestUrl: string | null
   port: number
   dataDir: string
   handle: DbHandle
@@ -103,7 +106,7 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
   })
 
   if (isEmpty(handle.db)) {
-    const seeded = await seedDemo({ db: handle.db, config }, { warn })
+    const seeded = await seedDemo({ db: handle.db, config }, { warn, secret })
     log(`Seeded the demo lab with ${seeded.sheets.length} sheet(s).`)
   }
 
@@ -164,7 +167,7 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
       handle.close()
     })())
 
-  return { url, port: actualPort, dataDir, handle, mailer, config, collab, close }
+  return { url, demoGuestUrl: demoGuestUrl(handle.db, secret, config), port: actualPort, dataDir, handle, mailer, config, collab, close }
 }
 
 async function main(): Promise<void> {
@@ -178,6 +181,7 @@ async function main(): Promise<void> {
   console.log(`Penumbra is running at ${running.url}`)
   const demo = demoAccountsPresent(running.handle.db)
   if (demo.length > 0) console.log(`\nDemo sign-ins (fictional lab "Halvorsen Thin-Film Lab"):\n${formatDemoTable(demo)}\n`)
+  if (running.demoGuestUrl) console.log(`Demo guest link (a snapshot of Film H-17, no sign-in): ${running.demoGuestUrl}`)
   if (!running.config.production) console.log(`Mail sent while developing: ${running.url}/dev/mail`)
 
   let stopping = false
