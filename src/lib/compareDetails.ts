@@ -86,17 +86,12 @@ function fitOutputs(r: CellResult | undefined): Record<string, number> {
   if (!r || r.status !== 'ok' || !r.value || typeof r.value !== 'object' || Array.isArray(r.value)) return {}
   const out: Record<string, number> = {}
   for (const [k, v] of Object.entries(r.value)) if (typeof v === 'number') out[k] = v
-  const params = (r.value as { parameters?: unknown }).parameters
-  if (params && typeof params === 'object')
-    for (const [k, v] of Object.entries(params as Record<string, unknown>)) {
-      if (typeof v === 'number') out[k] = v
-      else if (v && typeof v === 'object') {
-        const p = v as { value?: unknown; error?: unknown; stderr?: unknown }
-        if (typeof p.value === 'number') out[k] = p.value
-        const e = typeof p.error === 'number' ? p.error : p.stderr
-        if (typeof e === 'number') out[`${k}_err`] = e
-      }
-    }
+  // model fits carry their free parameters as `params` with standard errors in `errors`
+  const rec = r.value as { params?: unknown; errors?: unknown }
+  if (rec.params && typeof rec.params === 'object')
+    for (const [k, v] of Object.entries(rec.params as Record<string, unknown>)) if (typeof v === 'number') out[k] = v
+  if (rec.errors && typeof rec.errors === 'object')
+    for (const [k, v] of Object.entries(rec.errors as Record<string, unknown>)) if (typeof v === 'number') out[`${k}_err`] = v
   return out
 }
 
