@@ -259,7 +259,8 @@ function dataUnitShow(p: PreparedCell, env: Env): (si: number) => string {
     const target = env.cellNamed(x.name)
     const dim = target ? env.stateOf(target.id)?.dim ?? null : null
     if (!target) continue
-    const shown = 'unit' in target.cell ? target.cell.unit : undefined
+    const shownUnit = (target.cell as { unit?: unknown }).unit
+    const shown = typeof shownUnit === 'string' ? shownUnit : undefined
     const u = shown ? parseUnit(shown) : undefined
     if (u?.ok && dim && dimEquals(u.dim, dim)) return (si) => `${formatNumber(si / u.factor)} ${prettyUnit(shown!)}`
     return (si) => formatQuantity(si, dim)

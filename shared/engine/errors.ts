@@ -16,6 +16,9 @@ export class CellError extends Error {
   }
 }
 
+/** The error of a formula cell with nothing in it yet; the page shows a hint instead of an error for it. */
+export const EMPTY_FORMULA = 'the formula is empty'
+
 /**
  * A query point of `interpolate` outside the range of its data (no extrapolation). Thrown with SI numbers; the cell
  * that called it rewrites the message in the display unit of its data where it knows it (cells.ts).

@@ -8,7 +8,7 @@
  * `parser.functions` (see functions/registry.ts), never in an evaluation scope.
  */
 import { Parser } from 'expr-eval-fork'
-import { CellError } from './errors'
+import { CellError, EMPTY_FORMULA } from './errors'
 import { MAX_FORMULA_LENGTH, MAX_NODES } from './limits'
 import { formulaUnitTable } from './units'
 
@@ -85,7 +85,7 @@ interface Instr {
 export function parseFormula(source: string): Node {
   if (source.length > MAX_FORMULA_LENGTH)
     throw new CellError(`the formula is ${source.length.toLocaleString('en-US')} characters long; the limit is ${MAX_FORMULA_LENGTH.toLocaleString('en-US')}: split it into several formula cells`, 'limit')
-  if (source.trim() === '') throw new CellError('the formula is empty', 'syntax')
+  if (source.trim() === '') throw new CellError(EMPTY_FORMULA, 'syntax')
   const juxtaposed = numberBesideName(source)
   if (juxtaposed) throw new CellError(juxtaposed, 'syntax')
   let tokens: Instr[]

@@ -93,6 +93,8 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
   const synced = ref(false)
   /** Set when the server closed the connection for good (access revoked, sheet deleted): a plain sentence. */
   const closedReason = ref('')
+  /** The server closed the connection because this person may no longer see the sheet (removed, or the sheet is gone). */
+  const accessLost = ref(false)
   /** Set when the server refused an edit (the role was changed to a reader while the page was open). */
   const denied = ref('')
   const canUndo = ref(false)
@@ -132,6 +134,7 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
   p.on('closed', ({ code, reason }) => {
     connection.value = 'offline'
     if (code === 4403 || code === 4404) {
+      accessLost.value = true
       // the sheet is gone or no longer ours to see: its copy must not stay on this device
       void localCopy?.clear()
       keptOnDevice.value = false
@@ -373,6 +376,7 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     connection,
     synced,
     closedReason,
+    accessLost,
     denied,
     canUndo,
     canRedo,
