@@ -12,6 +12,7 @@ import type { FromWorker, ToWorker } from '@/workers/protocol'
 import { dependentsOf } from '@/components/sheet/references'
 import { unpackResults } from '@/workers/pack'
 import type { useSheetStore } from '@/stores/sheet'
+import { mark } from '@/lib/marks'
 
 type SheetStore = ReturnType<typeof useSheetStore>
 
@@ -71,11 +72,13 @@ export function useEvaluator(cells: Y.Array<CellMap>, store: SheetStore, title: 
   function onMessage(message: FromWorker): void {
     switch (message.type) {
       case 'ready':
+        mark('pn:evaluator-ready')
         state.value = 'ready'
         store.catalog = message.catalog
         store.engineVersion = message.engine
         break
       case 'partial': {
+        mark('pn:first-results')
         // cells done before a long sweep or fit of the batch in flight: shown now, no longer stale
         const results = unpackResults(message.results)
         store.applyResults(results, false)
@@ -88,6 +91,8 @@ export function useEvaluator(cells: Y.Array<CellMap>, store: SheetStore, title: 
         store.setProgress(message.id, message.fraction)
         break
       case 'results': {
+        mark('pn:first-results')
+        mark('pn:all-results')
         restarts = 0
         store.applyResults(unpackResults(message.results), message.complete)
         for (const id of message.recomputed) store.setProgress(id, null)

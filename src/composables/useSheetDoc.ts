@@ -25,6 +25,7 @@ import { keepPageForOffline, openLocalCopy } from '@/lib/localCopy'
 import { NO_PENDING_EDITS, noteChange, noteSent, restoredPending, type PendingEdits } from '@/lib/localCopyPending'
 import { reportWaitingEdits } from '@/lib/waitingEdits'
 import { useSessionStore } from '@/stores/session'
+import { mark } from '@/lib/marks'
 
 export type ConnectionState = 'connecting' | 'online' | 'offline'
 
@@ -123,6 +124,7 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     if (status !== 'connected') synced.value = false
   })
   p.on('sync', (state) => {
+    if (state) mark('pn:sheet-synced')
     synced.value = state
   })
   // an attempt that never got through (the server is away when the page opens) says "offline", not "connecting"
@@ -162,6 +164,7 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
   if (localCopy) {
     const waited = setTimeout(start, LOCAL_COPY_WAIT_MS)
     void localCopy.ready.then(({ available, pending: stored }) => {
+      mark('pn:sheet-kept-copy')
       clearTimeout(waited)
       if (disposed) return
       keptOnDevice.value = available
