@@ -26,6 +26,8 @@ import { NO_PENDING_EDITS, noteChange, noteSent, restoredPending, type PendingEd
 import { reportWaitingEdits } from '@/lib/waitingEdits'
 import { useSessionStore } from '@/stores/session'
 import { mark } from '@/lib/marks'
+import { packKeptResults, unpackKeptResults } from '@/lib/keptResults'
+import type { CellResult } from '../../shared/schema/result'
 
 export type ConnectionState = 'connecting' | 'online' | 'offline'
 
@@ -331,6 +333,16 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     return transactStep(() => cells.push(next.map((c) => cellToMap(c, c.id))))
   }
 
+  /** The results kept with the copy in this browser at the last visit ([] when none). */
+  async function readKeptResults(): Promise<CellResult[]> {
+    return localCopy ? unpackKeptResults(await localCopy.readResults()) : []
+  }
+
+  /** Keeps the latest results with the copy in this browser, for the next opening. */
+  function keepResults(results: Record<string, CellResult>): void {
+    if (!disposed) localCopy?.writeResults(packKeptResults(results))
+  }
+
   function undo(): void {
     if (!readonly) undoManager.undo()
   }
@@ -368,6 +380,8 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     undo,
     redo,
     transact,
+    readKeptResults,
+    keepResults,
   }
 }
 
