@@ -25,6 +25,9 @@ import { keepPageForOffline, openLocalCopy } from '@/lib/localCopy'
 import { NO_PENDING_EDITS, noteChange, noteSent, restoredPending, type PendingEdits } from '@/lib/localCopyPending'
 import { reportWaitingEdits } from '@/lib/waitingEdits'
 import { useSessionStore } from '@/stores/session'
+import { mark } from '@/lib/marks'
+import { packKeptResults, unpackKeptResults } from '@/lib/keptResults'
+import type { CellResult } from '../../shared/schema/result'
 
 export type ConnectionState = 'connecting' | 'online' | 'offline'
 
@@ -125,6 +128,7 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     if (status !== 'connected') synced.value = false
   })
   p.on('sync', (state) => {
+    if (state) mark('pn:sheet-synced')
     synced.value = state
   })
   // an attempt that never got through (the server is away when the page opens) says "offline", not "connecting"
@@ -165,6 +169,7 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
   if (localCopy) {
     const waited = setTimeout(start, LOCAL_COPY_WAIT_MS)
     void localCopy.ready.then(({ available, pending: stored }) => {
+      mark('pn:sheet-kept-copy')
       clearTimeout(waited)
       if (disposed) return
       keptOnDevice.value = available
@@ -355,6 +360,16 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     return transactStep(() => cells.push(next.map((c) => cellToMap(c, c.id))))
   }
 
+  /** The results kept with the copy in this browser at the last visit ([] when none). */
+  async function readKeptResults(): Promise<CellResult[]> {
+    return localCopy ? unpackKeptResults(await localCopy.readResults()) : []
+  }
+
+  /** Keeps the latest results with the copy in this browser, for the next opening. */
+  function keepResults(results: Record<string, CellResult>): void {
+    if (!disposed) localCopy?.writeResults(packKeptResults(results))
+  }
+
   function undo(): void {
     if (!readonly) undoManager.undo()
   }
@@ -395,6 +410,8 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     undo,
     redo,
     transact,
+    readKeptResults,
+    keepResults,
   }
 }
 
