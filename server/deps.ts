@@ -2,6 +2,7 @@
 import type { Db } from './db/client'
 import type { AppConfig } from './config'
 import type { Mailer } from './mail/mailer'
+import type { Evaluator } from './services/evaluation'
 
 /** Called after the change is stored, so the live collaboration layer can disconnect or downgrade people. */
 export interface AppHooks {
@@ -17,6 +18,8 @@ export interface AppDeps {
   mailer: Mailer
   config: AppConfig
   hooks?: AppHooks
+  /** The server's evaluator for freezing and comparing (default: the process's shared worker pool). */
+  evaluator?: Evaluator
 }
 
 /** Calls a hook without letting its failure undo or fail the request that triggered it. */

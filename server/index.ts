@@ -16,6 +16,7 @@ import { createApp } from './app'
 import { defaultConfig, type AppConfig } from './config'
 import { openDb, type DbHandle } from './db/client'
 import { demoAccountsPresent, formatDemoTable, isEmpty, seedDemo } from './db/seed'
+import { demoGuestUrl } from './db/seedSnapshots'
 import { createDevMailer, smtpMailer, type Mailer } from './mail/mailer'
 import { pruneExpired } from './services/housekeeping'
 import { closeSharedEvaluator } from './services/evaluation'
@@ -53,6 +54,8 @@ export interface RunningServer {
   url: string
   /** The address listened on (see listenHost). */
   host: string
+  /** The demo lab's guest link while it is usable (printed at start), else null. */
+  demoGuestUrl: string | null
   port: number
   dataDir: string
   handle: DbHandle
@@ -115,7 +118,7 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
   })
 
   if (isEmpty(handle.db)) {
-    const seeded = await seedDemo({ db: handle.db, config }, { warn })
+    const seeded = await seedDemo({ db: handle.db, config }, { warn, secret })
     log(`Seeded the demo lab with ${seeded.sheets.length} sheet(s).`)
   }
 
@@ -178,7 +181,18 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
     })())
 
   const address = server.address()
-  return { url, host: typeof address === 'object' && address ? address.address : '', port: actualPort, dataDir, handle, mailer, config, collab, close }
+  return {
+    url,
+    host: typeof address === 'object' && address ? address.address : '',
+    demoGuestUrl: demoGuestUrl(handle.db, secret, config),
+    port: actualPort,
+    dataDir,
+    handle,
+    mailer,
+    config,
+    collab,
+    close,
+  }
 }
 
 async function main(): Promise<void> {
@@ -192,6 +206,7 @@ async function main(): Promise<void> {
   console.log(`Penumbra is running at ${running.url}`)
   const demo = demoAccountsPresent(running.handle.db)
   if (demo.length > 0) console.log(`\nDemo sign-ins (fictional lab "Halvorsen Thin-Film Lab"):\n${formatDemoTable(demo)}\n`)
+  if (running.demoGuestUrl) console.log(`Demo guest link (a snapshot of Film H-17, no sign-in): ${running.demoGuestUrl}`)
   if (!running.config.production) console.log(`Mail sent while developing: ${running.url}/dev/mail`)
 
   let stopping = false

@@ -183,3 +183,38 @@ export function docFromUpdates(updates: Iterable<Uint8Array>): Y.Doc {
 function structuredCloneJson<T>(value: T): T {
   return value === null || typeof value !== 'object' ? value : (JSON.parse(JSON.stringify(value)) as T)
 }
+
+/**
+ * Restores a snapshot's cells into a live document as ONE transaction with the caller's origin, so the person's undo
+ * manager (which tracks that origin) takes the whole restore back in one step, and other people see one change.
+ * Cells the snapshot has unchanged (same id, same content) are kept as they are, so nobody's cursor in them jumps;
+ * the others are replaced, and the order becomes the snapshot's. The title is the sheet's, not the snapshot's.
+ */
+export function restoreCells(doc: Y.Doc, cells: readonly Cell[], origin: unknown): void {
+  doc.transact(() => {
+    const live = cellsOf(doc)
+    const wanted = cells.map((c, i) => ({ cell: c, id: c.id ?? `cell-${i}` }))
+    const sameContent = (map: CellMap, cell: Cell) => JSON.stringify(sortedCell(mapToCell(map))) === JSON.stringify(sortedCell({ ...cell, id: map.get('id') as string }))
+    // walk the snapshot's order; keep a live cell only where it is already next in line and unchanged
+    let at = 0
+    for (const { cell, id } of wanted) {
+      const current = at < live.length ? live.get(at) : undefined
+      if (current instanceof Y.Map && current.get('id') === id && sameContent(current, cell)) {
+        at++
+        continue
+      }
+      // remove a stale copy of this cell further down, then insert the snapshot's version here
+      for (let j = live.length - 1; j >= at; j--) {
+        const m = live.get(j)
+        if (m instanceof Y.Map && m.get('id') === id) live.delete(j, 1)
+      }
+      live.insert(at, [cellToMap(cell, id)])
+      at++
+    }
+    if (live.length > at) live.delete(at, live.length - at)
+  }, origin)
+}
+
+function sortedCell(cell: object): Record<string, unknown> {
+  return Object.fromEntries(Object.entries(cell).filter(([, v]) => v !== undefined).sort(([a], [b]) => (a < b ? -1 : 1)))
+}

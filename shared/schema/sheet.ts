@@ -40,21 +40,65 @@ export const formulaCell = z.strictObject({
   description: description.optional(),
 })
 
+/**
+ * What a spectrum column measures (the `quantity` of a dataset column): wavelength, photon energy, wavenumber,
+ * transmittance T, reflectance R, absorbance A10 (base 10), absorptance A, absorption coefficient alpha, refractive
+ * index n, extinction coefficient k, or other.
+ */
+export const SPECTRUM_QUANTITIES = ['wavelength', 'energy', 'wavenumber', 'T', 'R', 'A10', 'A', 'alpha', 'n', 'k', 'other'] as const
+export type SpectrumQuantity = (typeof SPECTRUM_QUANTITIES)[number]
+
+/** Words for each quantity code, for the interface. */
+export const QUANTITY_LABELS: Record<SpectrumQuantity, string> = {
+  wavelength: 'wavelength',
+  energy: 'photon energy',
+  wavenumber: 'wavenumber',
+  T: 'transmittance',
+  R: 'reflectance',
+  A10: 'absorbance (base 10)',
+  A: 'absorptance',
+  alpha: 'absorption coefficient α',
+  n: 'refractive index n',
+  k: 'extinction coefficient k',
+  other: 'other',
+}
+
+/**
+ * One column of a spectrum. In a sheet file it carries its `values` (in `unit`; null for an empty entry). In the live
+ * document of a sheet the numbers stay in the database: the column carries only its metadata (`unit`, `quantity`,
+ * `count`, `min`, `max`) and the cell's `datasetId` names the stored dataset the engine loads the values from.
+ */
 export const datasetColumn = z.strictObject({
   unit: unit,
-  values: z.array(z.number().nullable()).max(1_000_000),
-  /** What the column measures, when known: wavelength, energy, T (transmittance), R, A10 (absorbance), alpha … */
+  values: z.array(z.number().nullable()).max(1_000_000).optional(),
+  /** What the column measures: one of SPECTRUM_QUANTITIES when known (other strings are kept as they are). */
   quantity: z.string().max(64).optional(),
+  /** Points in the column, and the range of its finite values (in `unit`): metadata for the live document. */
+  count: z.number().int().nonnegative().optional(),
+  min: finite.optional(),
+  max: finite.optional(),
 })
 
+/**
+ * A measured spectrum. Sheet file form: `{ "kind": "spectrum", "name": "filmB", "columns": { "wavelength": { "unit":
+ * "nm", "quantity": "wavelength", "values": [...] }, "T": { "unit": "%", "quantity": "T", "values": [...] } } }`.
+ * Live document form: the same with `datasetId` set and no `values` in the columns (metadata only), e.g.
+ * `{ "kind": "spectrum", "name": "filmB", "datasetId": "ds_…", "source": "filmB.csv", "sample": "film B",
+ *    "columns": { "wavelength": { "unit": "nm", "quantity": "wavelength", "count": 401, "min": 300, "max": 700 }, … } }`.
+ * Formulas read the columns as `filmB.wavelength`, `filmB.T` (in SI). Export inlines the values; importing a file with
+ * inline values stores them as a dataset. A column without values in a cell without `datasetId` is an error.
+ */
 export const spectrumCell = z.strictObject({
   id: id.optional(),
   kind: z.literal('spectrum'),
   name,
   columns: z.record(z.string().regex(IDENTIFIER, 'column names must be identifiers'), datasetColumn),
-  /** The stored dataset this cell shows, when the app keeps it in the database; export inlines `columns`. */
+  /** The stored dataset holding this cell's numbers (live document); export inlines them into `columns`. */
   datasetId: z.string().max(64).optional(),
+  /** The name of the file the data came from. */
   source: z.string().max(500).optional(),
+  /** Which sample of the file, when it held several. */
+  sample: z.string().max(200).optional(),
   description: description.optional(),
 })
 
@@ -84,6 +128,11 @@ export const fitCell = z.strictObject({
   /** method `model`: the formula cell evaluated as the model, and its free parameter cells. */
   model: cellRef.optional(),
   parameters: z.array(fitParameter).max(20).optional(),
+  /**
+   * A cell holding the standard deviation σ of each y value (same length as y, in the y cell's units). When given,
+   * the fit minimises χ² = Σ((y − f)/σ)² and its errors come from the weights.
+   */
+  sigma: cellRef.optional(),
   description: description.optional(),
 })
 
@@ -139,23 +188,68 @@ export const noteCell = z.strictObject({
   text: z.string().max(100000),
 })
 
-export const stackLayer = z.object({
-  name: z.string().max(64).optional(),
-  d: z.union([finite, z.string().max(2000)]),
-  n: z.union([finite, z.string().max(2000)]),
-  k: z.union([finite, z.string().max(2000)]).optional(),
-})
+/** A formula written in a stack cell's field (a constant such as "1.52", a dispersion model, a spectrum column). */
+const stackFormula = z.string().min(1, 'must not be empty: write a formula').max(2000)
 
-/** Accepted now so files written by later versions import; evaluated once the stack cell lands. */
+/** One coherent layer of a stack: its thickness, refractive index n and extinction coefficient k, all formulas. */
+export const stackLayer = z
+  .object({
+    name,
+    thickness: stackFormula,
+    n: stackFormula,
+    k: stackFormula,
+  })
+  .strict()
+
+/**
+ * The substrate under a stack's layers. Without `thickness` it is semi-infinite (T is the light entering it); with a
+ * thickness it is a slab with the ambient behind it, its two faces summed by intensity unless `coherent` is true.
+ */
+export const stackSubstrate = z
+  .object({
+    name,
+    n: stackFormula,
+    k: stackFormula,
+    thickness: stackFormula.optional(),
+    coherent: z.boolean().optional(),
+  })
+  .strict()
+
+export const STACK_POLARIZATIONS = ['s', 'p', 'unpolarized'] as const
+
+/**
+ * A multilayer optical stack: layers from ambient to substrate over a wavelength grid, at an angle of incidence, for
+ * s-, p- or unpolarised light. Every field but `polarization` and `coherent` is a formula. Its outputs are
+ * `name.R`, `name.T`, `name.A` and `name.A_<layer>` over the grid (and `name.wavelength`, the grid itself).
+ */
 export const stackCell = z
   .object({
     id: id.optional(),
     kind: z.literal('stack'),
     name,
-    layers: z.array(stackLayer).max(100).optional(),
+    /** The wavelength grid (a length, usually a cell such as `lam`). */
+    wavelength: stackFormula,
+    /** Ambient index (default 1). */
+    ambient: stackFormula.optional(),
+    /** Angle of incidence in the ambient (default 0; `45*deg`). */
+    angle: stackFormula.optional(),
+    polarization: z.enum(STACK_POLARIZATIONS).optional(),
+    layers: z.array(stackLayer).max(50),
+    substrate: stackSubstrate,
     description: description.optional(),
   })
-  .passthrough()
+  .strict()
+
+/** The formula fields of a stack cell, keyed by path: wavelength, ambient, angle, layers.i.thickness|n|k, substrate.*. */
+export function stackFormulas(cell: z.infer<typeof stackCell>): [string, string][] {
+  const out: [string, string][] = [['wavelength', cell.wavelength]]
+  if (cell.ambient !== undefined) out.push(['ambient', cell.ambient])
+  if (cell.angle !== undefined) out.push(['angle', cell.angle])
+  cell.layers.forEach((l, i) => out.push([`layers.${i}.thickness`, l.thickness], [`layers.${i}.n`, l.n], [`layers.${i}.k`, l.k]))
+  out.push(['substrate.n', cell.substrate.n], ['substrate.k', cell.substrate.k])
+  if (cell.substrate.thickness !== undefined) out.push(['substrate.thickness', cell.substrate.thickness])
+  return out
+}
 
 export const cell = z.discriminatedUnion('kind', [
   parameterCell,
@@ -227,6 +321,8 @@ export type FigureCell = z.infer<typeof figureCell>
 export type FigureTrace = z.infer<typeof figureTrace>
 export type NoteCell = z.infer<typeof noteCell>
 export type StackCell = z.infer<typeof stackCell>
+export type StackLayer = z.infer<typeof stackLayer>
+export type StackSubstrate = z.infer<typeof stackSubstrate>
 export type Cell = z.infer<typeof cell>
 export type CellKind = Cell['kind']
 export type SheetFile = z.infer<typeof sheetFile>

@@ -25,6 +25,9 @@ import { keepPageForOffline, openLocalCopy } from '@/lib/localCopy'
 import { NO_PENDING_EDITS, noteChange, noteSent, restoredPending, type PendingEdits } from '@/lib/localCopyPending'
 import { reportWaitingEdits } from '@/lib/waitingEdits'
 import { useSessionStore } from '@/stores/session'
+import { mark } from '@/lib/marks'
+import { packKeptResults, unpackKeptResults } from '@/lib/keptResults'
+import type { CellResult } from '../../shared/schema/result'
 
 export type ConnectionState = 'connecting' | 'online' | 'offline'
 
@@ -93,6 +96,8 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
   const synced = ref(false)
   /** Set when the server closed the connection for good (access revoked, sheet deleted): a plain sentence. */
   const closedReason = ref('')
+  /** The server closed the connection because this person may no longer see the sheet (removed, or the sheet is gone). */
+  const accessLost = ref(false)
   /** Set when the server refused an edit (the role was changed to a reader while the page was open). */
   const denied = ref('')
   const canUndo = ref(false)
@@ -123,6 +128,7 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     if (status !== 'connected') synced.value = false
   })
   p.on('sync', (state) => {
+    if (state) mark('pn:sheet-synced')
     synced.value = state
   })
   // an attempt that never got through (the server is away when the page opens) says "offline", not "connecting"
@@ -132,6 +138,7 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
   p.on('closed', ({ code, reason }) => {
     connection.value = 'offline'
     if (code === 4403 || code === 4404) {
+      accessLost.value = true
       // the sheet is gone or no longer ours to see: its copy must not stay on this device
       void localCopy?.clear()
       keptOnDevice.value = false
@@ -162,6 +169,7 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
   if (localCopy) {
     const waited = setTimeout(start, LOCAL_COPY_WAIT_MS)
     void localCopy.ready.then(({ available, pending: stored }) => {
+      mark('pn:sheet-kept-copy')
       clearTimeout(waited)
       if (disposed) return
       keptOnDevice.value = available
@@ -286,6 +294,25 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     return ok ? id : null
   }
 
+  /**
+   * Inserts several new cells at `index` (end when omitted) as one undo step (e.g. the cells of an α extraction);
+   * returns their ids in order.
+   */
+  function insertCells(next: Cell[], index = cells.length): string[] | null {
+    const ids = next.map(() => newCellId())
+    const ok = transactStep(() => cells.insert(Math.max(0, Math.min(index, cells.length)), next.map((c, i) => cellToMap({ ...c, id: ids[i] }, ids[i]))))
+    return ok ? ids : null
+  }
+
+  /** Writes plain fields of a cell as an undo step of its own (a fit window set on the figure, a value taken over). */
+  function setFieldsStep(id: string, fields: Record<string, unknown>): boolean {
+    if (readonly) return false
+    undoManager.stopCapturing()
+    const ok = setFields(id, fields)
+    undoManager.stopCapturing()
+    return ok
+  }
+
   function deleteCell(id: string): boolean {
     const i = indexOf(id)
     if (i < 0) return false
@@ -333,6 +360,16 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     return transactStep(() => cells.push(next.map((c) => cellToMap(c, c.id))))
   }
 
+  /** The results kept with the copy in this browser at the last visit ([] when none). */
+  async function readKeptResults(): Promise<CellResult[]> {
+    return localCopy ? unpackKeptResults(await localCopy.readResults()) : []
+  }
+
+  /** Keeps the latest results with the copy in this browser, for the next opening. */
+  function keepResults(results: Record<string, CellResult>): void {
+    if (!disposed) localCopy?.writeResults(packKeptResults(results))
+  }
+
   function undo(): void {
     if (!readonly) undoManager.undo()
   }
@@ -354,6 +391,7 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     connection,
     synced,
     closedReason,
+    accessLost,
     denied,
     canUndo,
     canRedo,
@@ -362,6 +400,8 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     indexOf,
     setFields,
     insertCell,
+    insertCells,
+    setFieldsStep,
     deleteCell,
     moveCell,
     duplicateCell,
@@ -370,6 +410,8 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     undo,
     redo,
     transact,
+    readKeptResults,
+    keepResults,
   }
 }
 
