@@ -7,12 +7,13 @@ import type { SheetCell, ParameterCell, SpectrumCell, StackCell } from '../schem
 import { CELL_KINDS, fitCell, formulaCell, parameterCell, stackCell, stackFormulas, sweepCell, toSchemaIssues } from '../schema/sheet'
 import type { Num } from '../optics/num'
 import { compileFormula, inferDims, type CompiledFormula, type InputDim } from './compile'
-import { INPUT_DIGITS, formatNumber, formatPair } from './describe'
-import type { Dim } from './dimensions'
-import { CellError, messageOf } from './errors'
+import { INPUT_DIGITS, formatNumber, formatPair, formatQuantity, prettyUnit } from './describe'
+import { dimEquals, type Dim } from './dimensions'
+import { CellError, OutsideDataError, messageOf, outsideDataMessage } from './errors'
 import type { Budget } from './limits'
 import { CONSTANTS, builtinName } from './names'
-import { isReserved } from './parse'
+import { isReserved, type Node } from './parse'
+import { builtinFunction } from './functions/registry'
 import { parseUnit, formulaUnitTable } from './units'
 import { RecordValue, type Field, type Value } from './values'
 
@@ -91,6 +92,11 @@ function malformed(cell: SheetCell): string | undefined {
       const c = col as { unit?: unknown; values?: unknown } | null
       if (!c || typeof c !== 'object') return `invalid cell: columns.${name}: must be an object with unit and values`
       if (typeof c.unit !== 'string') return `invalid cell: columns.${name}.unit: required`
+      if (c.values === undefined) {
+        const id = (cell as { datasetId?: unknown }).datasetId
+        if (typeof id === 'string' && id) return datasetNotLoaded(id)
+        return `invalid cell: columns.${name}.values: required (an array of numbers)`
+      }
       if (!Array.isArray(c.values)) return `invalid cell: columns.${name}.values: required (an array of numbers)`
     }
     return undefined
@@ -112,6 +118,8 @@ export function prepareCell(cell: SheetCell): PreparedCell {
       p.staticWarnings.push(`the name ${cell.name} shadows the built-in constant ${cell.name} (${c.doc.split(', ')[0]}) in this sheet's formulas; rename the cell if formulas should use the constant`)
     else if (SHADOW_UNITS.has(cell.name))
       p.staticWarnings.push(`the name ${cell.name} shadows the unit ${cell.name} in this sheet's formulas; rename the cell if formulas should use the unit`)
+    else if (builtinFunction(cell.name))
+      p.staticWarnings.push(`the name ${cell.name} is also a library function: ${cell.name}(…) still calls the function, while ${cell.name} alone means this cell; rename the cell to keep formulas clear`)
     else if (isReserved(cell.name))
       p.staticWarnings.push(`the name ${cell.name} is reserved: formulas cannot refer to it; choose another name`)
   }
@@ -229,6 +237,37 @@ export function valuesOfNames(names: readonly string[], env: Env): Value[] {
   })
 }
 
+/**
+ * How the numbers of an "outside the data" message read: in the display unit of the cell holding interpolate's x
+ * (`interpolate(q, E, alpha)` with E shown in eV → "2.5 eV"), else in the usual unit of its dimension, else bare.
+ */
+function dataUnitShow(p: PreparedCell, env: Env): (si: number) => string {
+  const calls: Node[] = []
+  const walk = (n: Node): void => {
+    if (n.t === 'call') {
+      if (n.fn === 'interpolate') calls.push(n)
+      n.args.forEach(walk)
+    } else if (n.t === 'unary') walk(n.arg)
+    else if (n.t === 'binary') (walk(n.left), walk(n.right))
+    else if (n.t === 'cond') (walk(n.test), walk(n.then), walk(n.else))
+    else if (n.t === 'array') n.items.forEach(walk)
+  }
+  if (p.compiled) walk(p.compiled.tree)
+  for (const call of calls) {
+    const x = call.t === 'call' ? call.args[1] : undefined
+    if (x?.t !== 'name') continue
+    const target = env.cellNamed(x.name)
+    const dim = target ? env.stateOf(target.id)?.dim ?? null : null
+    if (!target) continue
+    const shownUnit = (target.cell as { unit?: unknown }).unit
+    const shown = typeof shownUnit === 'string' ? shownUnit : undefined
+    const u = shown ? parseUnit(shown) : undefined
+    if (u?.ok && dim && dimEquals(u.dim, dim)) return (si) => `${formatNumber(si / u.factor)} ${prettyUnit(shown!)}`
+    return (si) => formatQuantity(si, dim)
+  }
+  return (si) => formatNumber(si)
+}
+
 /** SI value of a parameter cell. */
 export function parameterValue(cell: ParameterCell): { value: number; dim: Dim } {
   const u = parseUnit(cell.unit ?? '')
@@ -269,10 +308,24 @@ export function formulaValue(p: PreparedCell, env: Env): Num {
 }
 
 export function evaluateFormula(p: PreparedCell, env: Env): CellState {
-  const value = formulaValue(p, env)
+  let value: Num
+  try {
+    value = formulaValue(p, env)
+  } catch (err) {
+    if (err instanceof OutsideDataError) throw new CellError(outsideDataMessage(err.point, err.lo, err.hi, dataUnitShow(p, env)), 'value')
+    throw err
+  }
   const dims = inferDims(p.compiled as CompiledFormula, inputDims(p, env))
   const warnings = [...dims.warnings]
   return { status: 'ok', value, dim: dims.dim, warnings }
+}
+
+/**
+ * The error of a spectrum cell whose numbers are in a stored dataset that the caller has not loaded into its columns
+ * (the page's worker and the server load them by id before evaluating; a file carries them inline).
+ */
+export function datasetNotLoaded(datasetId: string): string {
+  return `the numbers of this spectrum are kept in dataset ${datasetId}, which is not loaded here; open the sheet in the app or export it (export writes the numbers into the file)`
 }
 
 /** A spectrum cell's columns in SI as a record (`filmB.T`); empty entries (null) become NaN. */
@@ -281,18 +334,20 @@ export function evaluateSpectrum(cell: SpectrumCell): CellState {
   const warnings: string[] = []
   let length = -1
   for (const [name, col] of Object.entries(cell.columns)) {
+    if (!col.values) throw new CellError(cell.datasetId ? datasetNotLoaded(cell.datasetId) : `column ${name} has no values`, 'input')
     const u = parseUnit(col.unit)
     if (!u.ok) throw new CellError(`the unit of column ${name} ${u.error}`, 'input')
-    const values = new Float64Array(col.values.length)
+    const raw = col.values
+    const values = new Float64Array(raw.length)
     let gaps = 0
-    col.values.forEach((x, i) => {
+    raw.forEach((x, i) => {
       if (x === null) gaps++
       else if (typeof x !== 'number') throw new CellError(`column ${name}: entry ${i} is not a number (${JSON.stringify(x)?.slice(0, 40)})`, 'input')
       values[i] = x === null ? NaN : x * u.factor
     })
     if (gaps) warnings.push(`column ${name} has ${gaps} empty entr${gaps === 1 ? 'y' : 'ies'} (read as NaN)`)
-    if (length >= 0 && col.values.length !== length) warnings.push(`the columns have different lengths (${length} and ${col.values.length} in ${name})`)
-    length = Math.max(length, col.values.length)
+    if (length >= 0 && raw.length !== length) warnings.push(`the columns have different lengths (${length} and ${raw.length} in ${name})`)
+    length = Math.max(length, raw.length)
     fields.set(name, { value: values, dim: u.dim })
   }
   if (fields.size === 0) warnings.push('the spectrum has no columns')
