@@ -62,6 +62,11 @@ function staticDoc(file: SheetFile): SheetDoc {
     undo: () => undefined,
     redo: () => undefined,
     transact: refuse,
+    accessLost: ref(false),
+    insertCells: () => null,
+    setFieldsStep: refuse,
+    readKeptResults: async () => [],
+    keepResults: () => undefined,
   }
 }
 
@@ -85,7 +90,10 @@ export function useStaticSheet(file: SheetFile, results: readonly CellResult[], 
     vocabulary: shallowRef(buildVocabulary(null, cells, byId)),
     vocabularyVersion: ref(0),
     focusCard: () => undefined,
-    ops: { move: () => undefined, duplicate: () => undefined, remove: () => undefined, addAfter: () => undefined, edit: () => undefined },
+    ops: {
+      move: () => undefined, duplicate: () => undefined, remove: () => undefined, addAfter: () => undefined, edit: () => undefined,
+      replaceData: () => undefined, downloadCsv: () => undefined,
+    },
     cellAddon: options.cellAddon,
   }
   onScopeDispose(() => {
