@@ -40,60 +40,8 @@ export interface LinearFit {
  * @throws FitError when there are fewer than 3 points, a value is not finite, or all x are equal
  */
 export function linearFit(x: ArrayLike<number>, y: ArrayLike<number>): LinearFit {
-  const n = x.length
-  if (y.length !== n) throw new FitError(`x and y have different lengths (${n} and ${y.length}).`)
-  if (n < 3) throw new FitError(`A straight-line fit with uncertainties needs at least 3 points; it got ${n}.`)
-  let sx = 0
-  let sy = 0
-  for (let i = 0; i < n; i++) {
-    if (!Number.isFinite(x[i]) || !Number.isFinite(y[i])) {
-      throw new FitError(`Point ${i + 1} of the fit is not a finite number (x = ${x[i]}, y = ${y[i]}).`)
-    }
-    sx += x[i]
-    sy += y[i]
-  }
-  const xm = sx / n
-  const ym = sy / n
-  let sxx = 0
-  let sxy = 0
-  let syy = 0
-  for (let i = 0; i < n; i++) {
-    const dx = x[i] - xm
-    const dy = y[i] - ym
-    sxx += dx * dx
-    sxy += dx * dy
-    syy += dy * dy
-  }
-  if (!(sxx > 0) || !(sxx > 1e-28 * n * xm * xm)) {
-    throw new FitError('All x values of the fit are equal, so no slope can be fitted.')
-  }
-  const slope = sxy / sxx
-  const intercept = ym - slope * xm
-  let ssr = 0
-  for (let i = 0; i < n; i++) {
-    const r = y[i] - (intercept + slope * x[i])
-    ssr += r * r
-  }
-  const s2 = ssr / (n - 2)
-  const varSlope = s2 / sxx
-  const varIntercept = s2 * (1 / n + (xm * xm) / sxx)
-  const cov = (-xm * s2) / sxx
-  const r2 = syy > 0 ? 1 - ssr / syy : ssr === 0 ? 1 : 0
-  return {
-    slope,
-    intercept,
-    slopeErr: Math.sqrt(varSlope),
-    interceptErr: Math.sqrt(varIntercept),
-    covariance: [[varSlope, cov], [cov, varIntercept]],
-    r2,
-    n,
-    xMean: xm,
-    yMean: ym,
-    sxx,
-    sigma: Math.sqrt(s2),
-    meanErr: Math.sqrt(s2 / n),
-    chi2: ssr,
-  }
+  if (y.length !== x.length) throw new FitError(`x and y have different lengths (${x.length} and ${y.length}).`)
+  return fitLine(x, y)
 }
 
 /**
@@ -113,17 +61,28 @@ export function linearFit(x: ArrayLike<number>, y: ArrayLike<number>): LinearFit
  * @throws FitError for fewer than 3 points, a value that is not finite, a σ that is not above zero, or equal x
  */
 export function weightedLinearFit(x: ArrayLike<number>, y: ArrayLike<number>, sigma: ArrayLike<number>): LinearFit {
+  if (y.length !== x.length || sigma.length !== x.length)
+    throw new FitError(`x, y and σ have different lengths (${x.length}, ${y.length} and ${sigma.length}).`)
+  return fitLine(x, y, sigma)
+}
+
+/**
+ * The straight line of both fits from weighted centred sums (weights 1 without σ). The errors are scaled by
+ * s² = SSR/(n − 2) for an ordinary fit and by 1 (σ as given) for a weighted one; with unit weights Σw = n and the
+ * formulas are Draper & Smith's.
+ */
+function fitLine(x: ArrayLike<number>, y: ArrayLike<number>, sigma?: ArrayLike<number>): LinearFit {
   const n = x.length
-  if (y.length !== n || sigma.length !== n) throw new FitError(`x, y and σ have different lengths (${n}, ${y.length} and ${sigma.length}).`)
   if (n < 3) throw new FitError(`A straight-line fit with uncertainties needs at least 3 points; it got ${n}.`)
+  const w = new Float64Array(n)
   let sw = 0
   let swx = 0
   let swy = 0
-  const w = new Float64Array(n)
   for (let i = 0; i < n; i++) {
     if (!Number.isFinite(x[i]) || !Number.isFinite(y[i])) throw new FitError(`Point ${i + 1} of the fit is not a finite number (x = ${x[i]}, y = ${y[i]}).`)
-    if (!(sigma[i] > 0) || !Number.isFinite(sigma[i])) throw new FitError(`The standard deviation σ of point ${i + 1} must be a finite number above zero (got ${sigma[i]}).`)
-    w[i] = 1 / (sigma[i] * sigma[i])
+    if (sigma && (!(sigma[i] > 0) || !Number.isFinite(sigma[i])))
+      throw new FitError(`The standard deviation σ of point ${i + 1} must be a finite number above zero (got ${sigma[i]}).`)
+    w[i] = sigma ? 1 / (sigma[i] * sigma[i]) : 1
     sw += w[i]
     swx += w[i] * x[i]
     swy += w[i] * y[i]
@@ -148,13 +107,14 @@ export function weightedLinearFit(x: ArrayLike<number>, y: ArrayLike<number>, si
     const r = y[i] - (intercept + slope * x[i])
     chi2 += w[i] * r * r
   }
-  const varSlope = 1 / sxx
-  const varIntercept = 1 / sw + (xm * xm) / sxx
-  const cov = -xm / sxx
+  const s2 = sigma ? 1 : chi2 / (n - 2)
+  const varSlope = s2 / sxx
+  const varIntercept = s2 * (1 / sw + (xm * xm) / sxx)
+  const cov = (-xm * s2) / sxx
   return {
     slope, intercept, slopeErr: Math.sqrt(varSlope), interceptErr: Math.sqrt(varIntercept),
     covariance: [[varSlope, cov], [cov, varIntercept]],
     r2: syy > 0 ? 1 - chi2 / syy : chi2 === 0 ? 1 : 0,
-    n, xMean: xm, yMean: ym, sxx, sigma: 1, meanErr: Math.sqrt(1 / sw), chi2,
+    n, xMean: xm, yMean: ym, sxx, sigma: Math.sqrt(s2), meanErr: Math.sqrt(s2 / sw), chi2,
   }
 }

@@ -66,6 +66,26 @@ describe('stack card', () => {
     await stack.screenshot({ path: `${RESULTS_DIR}/stack-card.png` })
   }, 240_000)
 
+  it('a fit card takes a σ cell from its select and reports the weighted χ²', async () => {
+    const editor = await e2e.newBrowser({ label: 'editor' })
+    const page = editor.page
+    await signIn(page, e2e.server.url, DEMO.editor)
+    const sheetId = await createSheet(page, 'Weighted fit check', [
+      { kind: 'formula', name: 'E', source: 'grid(1.2*eV, 2.4*eV, 301)', unit: 'eV' },
+      { kind: 'formula', name: 'alpha', source: 'alpha_direct(E, 1.5*eV, 3e4/cm/sqrt(eV)) * (1 + 0.01*sin(E/(3*meV)))', unit: '1/cm' },
+      { kind: 'formula', name: 'salpha', source: '0.01*alpha + 1/cm', unit: '1/cm' },
+      { kind: 'fit', name: 'edge', method: 'tauc', x: 'E', y: 'alpha', r: 0.5, from: 1.6, to: 2.0, unit: 'eV' },
+    ])
+    await openLive(page, sheetId)
+    const fit = card(page, 'edge')
+    await expect.poll(() => fit.locator('.el-table').textContent(), { timeout: 20_000 }).toContain('eV/cm²')
+    expect(await fit.locator('.el-table').textContent()).not.toContain('χ²')
+    await fit.getByLabel('Standard deviations of y (σ)').click()
+    await page.getByRole('option', { name: 'salpha' }).click()
+    await expect.poll(() => fit.locator('.el-table').textContent(), { timeout: 20_000 }).toContain('χ²')
+    expect(await fit.locator('.el-table').textContent()).toContain('weighted by the σ cell')
+  }, 180_000)
+
   it('adds a stack from the add menu that evaluates at once', async () => {
     const editor = await e2e.newBrowser({ label: 'editor' })
     const page = editor.page

@@ -94,7 +94,7 @@ describe('parseSheetFile', () => {
     expect(p).toEqual([
       'cells[0].polarization: must be one of "s", "p", "unpolarized"',
       'cells[0].layers[0].thickness: must be a string, not a number',
-      'cells[0]: unknown field(s): colour',
+      'cells[0].colour: not a field of a stack cell (its fields: id, kind, name, wavelength, ambient, angle, polarization, layers, substrate, description)',
     ])
   })
 })

@@ -28,7 +28,7 @@ describe('parameterFromFit(fit, output, target, cells)', () => {
   const out = { key: 'Eg', value: 1.4812, err: 0.0021, unit: 'eV' }
   it('parameterFromFit makes a new parameter named after the value and the fit, saying where it came from', () => {
     const step = parameterFromFit(tauc, out, undefined, [{ id: 'a', kind: 'parameter', name: 'Eg_edge', value: 1 }])
-    if (!step.ok || !step.cell) throw new Error('expected a new cell')
+    if (!step.ok || step.cell?.kind !== 'parameter') throw new Error('expected a new parameter cell')
     expect(step.cell).toMatchObject({ kind: 'parameter', name: 'Eg_edge_2', value: 1.4812, unit: 'eV' })
     expect((step.cell as ParameterCell).description).toBe('Eg = 1.4812 ± 0.0021 eV from the fit edge, window 1.55–1.9')
   })
