@@ -19,7 +19,7 @@ import { loadSheetFile } from '../services/documents'
 import { contentDisposition } from '../services/sheets'
 import { sharedEvaluator } from '../services/evaluation'
 import { badRequest, HttpError, notFound } from '../errors'
-import { datasetImportOptions, type DatasetCreated, type DatasetImportOptions, type DatasetPreview, type DatasetReply } from '../../shared/schema/api'
+import { datasetImportOptions, inlineDatasetBody, type DatasetCreated, type DatasetImportOptions, type DatasetPreview, type DatasetReply } from '../../shared/schema/api'
 import type { SheetCell } from '../../shared/schema/sheet'
 import type { EvaluationResult } from '../../shared/schema/result'
 import { issuePath, mapSpectrum, nameFromFile, parseSpectrumFile, SpectrumFileError, type ParsedSpectrumFile } from '../../shared/import/spectrumFile'
@@ -109,6 +109,17 @@ export function datasetRoutes(deps: AppDeps): { sheetDatasets: Router; datasets:
     res.json(previewOf(file, fileName, opts))
   })
   sheetDatasets.post('/:sheetId/datasets', sheet, writers, upload.single('file'), (req, res) => {
+    if (!req.file && req.is('application/json')) {
+      // a spectrum cell's inline columns (a sheet file imported into the open sheet): stored as they are
+      const body = parse(inlineDatasetBody, req.body, 'The spectrum was not accepted')
+      const id = storeDataset(deps.db, { labId: req.lab!.id, sheetId: req.sheet!.id, name: body.name, sourceName: body.source ?? null, uploadedBy: req.user!.id, columns: body.columns })
+      const reply: DatasetCreated = {
+        id, name: body.name, source: body.source ?? '', sample: '',
+        columns: body.columns.map((c) => ({ name: c.name, quantity: c.quantity ?? '', unit: c.unit, ...columnSummary(c.values) })), warnings: [],
+      }
+      res.status(201).location(`/api/datasets/${id}`).json(reply)
+      return
+    }
     const { bytes, fileName } = uploaded(req)
     const opts = options(req)
     const { file, spectrum } = withFileErrors(() => {

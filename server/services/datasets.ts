@@ -8,7 +8,7 @@ import { eq } from 'drizzle-orm'
 import type { Db } from '../db/client'
 import { datasets } from '../db/schema'
 import type { SheetFile, SpectrumCell } from '../../shared/schema/sheet'
-import { inlineColumns, metadataColumns, needsDataset, withValues, type StoredColumn } from '../../shared/import/spectrumCell'
+import { fileForm, inlineColumns, metadataColumns, needsDataset, type StoredColumn } from '../../shared/import/spectrumCell'
 import { newId } from './tokens'
 
 export interface DatasetColumnMeta {
@@ -116,7 +116,7 @@ export function datasetById(db: Db, id: string): StoredDataset | null {
 
 /**
  * The sheet file with every stored dataset's numbers written into its spectrum cells (DESIGN §5: a file stands
- * alone). Only datasets of `labId` are read: a document that names another lab's dataset gets nothing from it (the
+ * alone: the cells lose their `datasetId` and column metadata, as a file is written). Only datasets of `labId` are read: a document that names another lab's dataset gets nothing from it (the
  * cell then reports that its data is not loaded). Cells that already carry values are left as they are.
  */
 export function inlineDatasets<F extends SheetFile>(db: Db, file: F, labId: string): F {
@@ -126,7 +126,7 @@ export function inlineDatasets<F extends SheetFile>(db: Db, file: F, labId: stri
     const d = datasetById(db, cell.datasetId)
     if (!d || d.labId !== labId) return cell
     changed = true
-    return withValues(cell, d.columns)
+    return fileForm(cell, d.columns)
   })
   return changed ? { ...file, cells } : file
 }

@@ -52,10 +52,16 @@ export function jsonValues(values: ArrayLike<number | null>): (number | null)[] 
 export function withValues<C extends SpectrumCell>(cell: C, columns: readonly StoredColumn[]): C {
   const filled: Record<string, DatasetColumn> = {}
   for (const c of columns) {
-    const meta = cell.columns?.[c.name]
-    filled[c.name] = { ...meta, unit: c.unit, ...(c.quantity ?? meta?.quantity ? { quantity: c.quantity ?? meta?.quantity } : {}), values: jsonValues(c.values) }
+    const quantity = c.quantity ?? cell.columns?.[c.name]?.quantity
+    filled[c.name] = { unit: c.unit, values: jsonValues(c.values), ...(quantity ? { quantity } : {}) }
   }
   return { ...cell, columns: filled }
+}
+
+/** The sheet-file form of a spectrum cell with its values written in: no dataset id (the file stands alone). */
+export function fileForm<C extends SpectrumCell>(cell: C, columns: readonly StoredColumn[]): C {
+  const { datasetId: _stored, ...rest } = withValues(cell, columns)
+  return rest as C
 }
 
 /** True when the cell's numbers live in a stored dataset that has not been written into its columns. */

@@ -9,6 +9,8 @@ import { DEMO, signIn, useBrowserSuite } from '../utils/browser'
 import { card, resultText, sheetPage } from '../utils/sheetPage'
 
 const e2e = useBrowserSuite()
+/** A folder for screenshots of the dialog and the card, when set (to look at them; nothing is compared). */
+const SHOTS = process.env.PENUMBRA_SCREENSHOTS
 const { createSheet, openLive } = sheetPage(() => e2e.server)
 
 const EXPORT = [
@@ -57,6 +59,7 @@ describe('a measured spectrum on the sheet page', () => {
     // "T" names its quantity but no unit: a guess, marked as one (values up to 81.5 read as percent)
     expect(await mapping.getByTestId('guess').count()).toBe(1)
     expect(await dialog.innerText()).toContain('descending (700 to 500)')
+    if (SHOTS) await page.screenshot({ path: `${SHOTS}/spectrum-dialog.png`, fullPage: true })
     await dialog.getByLabel('Spectrum name').fill('filmB')
     await page.getByTestId('import-spectrum').click()
 
@@ -66,7 +69,7 @@ describe('a measured spectrum on the sheet page', () => {
     expect(spectrum).toContain('film B.csv')
     await expect.poll(() => resultText(page, 'Tmax'), { timeout: 20_000 }).toMatch(/81\.5\s*%/)
     await expect.poll(() => resultText(page, 'lam_min'), { timeout: 20_000 }).toMatch(/500\s*nm/)
-    await page.screenshot({ path: '/tmp/penumbra-spectrum-import.png', fullPage: true })
+    if (SHOTS) await page.screenshot({ path: `${SHOTS}/spectrum-imported.png`, fullPage: true })
 
     // the live document holds metadata only; the sheet file written on export carries the numbers
     const file = (await (await page.request.get(`${e2e.server.url}/api/sheets/${sheetId}/file`)).json()) as { cells: { name?: string; columns?: Record<string, { values?: number[] }> }[] }
