@@ -361,6 +361,26 @@ export const datasetImportOptions = z.object({
 })
 export type DatasetImportOptions = z.infer<typeof datasetImportOptions>
 
+/**
+ * POST /api/sheets/:sheetId/datasets with a JSON body instead of a file: a spectrum cell's inline columns (from a sheet
+ * file imported into an open sheet), stored as they are.
+ */
+export const inlineDatasetBody = z.object({
+  name: z.string().regex(IDENTIFIER, 'must start with a letter and use only letters, digits and _').max(64),
+  source: z.string().max(500).optional(),
+  columns: z
+    .array(z.object({
+      name: z.string().regex(IDENTIFIER, 'must start with a letter and use only letters, digits and _').max(64),
+      quantity: z.string().max(64).optional(),
+      unit: z.string().max(64),
+      values: z.array(z.number().nullable()).max(1_000_000),
+    }))
+    .min(1)
+    .max(200)
+    .refine((cols) => cols.reduce((n, c) => n + c.values.length, 0) <= 1_000_000, 'more than 1,000,000 numbers in one dataset'),
+})
+export type InlineDatasetBody = z.infer<typeof inlineDatasetBody>
+
 const nullableNumbers = z.array(z.number().nullable())
 
 export const datasetPreviewReply = z.object({

@@ -4,6 +4,8 @@ import {
   type DatasetCreated, type DatasetImportOptions, type DatasetPreview, type DatasetReply,
 } from '../../shared/schema/api'
 import { api, download, seg } from './client'
+import type { SpectrumCell } from '../../shared/schema/sheet'
+import { inlineColumns, jsonValues, metadataColumns } from '../../shared/import/spectrumCell'
 
 export type { DatasetCreated, DatasetImportOptions, DatasetPreview, DatasetReply }
 
@@ -31,4 +33,18 @@ export function getDataset(datasetId: string): Promise<DatasetReply> {
 /** Downloads a cell's series or table as CSV, evaluated by the server from the live sheet. */
 export function downloadCellCsv(sheetId: string, cellId: string, fallbackName: string): Promise<string> {
   return download(`/api/sheets/${seg(sheetId)}/cells/${seg(cellId)}/csv`, fallbackName)
+}
+
+/**
+ * A spectrum cell with its numbers written in (from a sheet file) as the live document holds it: the columns stored
+ * as a dataset of the sheet's lab, the cell keeping their metadata and the dataset's id. Other cells pass unchanged.
+ */
+export async function storeInlineSpectrum<C extends { kind: string }>(sheetId: string, cell: C): Promise<C> {
+  if (cell.kind !== 'spectrum') return cell
+  const spectrum = cell as unknown as SpectrumCell
+  const columns = inlineColumns(spectrum)
+  if (!columns || columns.length === 0) return cell
+  const body = { name: spectrum.name, source: spectrum.source, columns: columns.map((c) => ({ name: c.name, quantity: c.quantity, unit: c.unit, values: jsonValues(c.values) })) }
+  const reply = await api.post(`/api/sheets/${seg(sheetId)}/datasets`, body, datasetCreatedReply)
+  return { ...cell, datasetId: reply.id, columns: metadataColumns(columns) }
 }

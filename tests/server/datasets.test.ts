@@ -172,3 +172,23 @@ describe('sheet files with inline spectra', () => {
     expect(res.status).toBe(404)
   })
 })
+
+describe('POST /api/sheets/:sheetId/datasets with a JSON body', () => {
+  it('stores a spectrum cell\'s inline columns as they are and answers their metadata', async () => {
+    const res = await call(t, lab.users.editor.cookie).post(`/api/sheets/${lab.editorSheetId}/datasets`, {
+      name: 'filmB', source: 'filmB.csv', columns: [{ name: 'wavelength', quantity: 'wavelength', unit: 'nm', values: [420, 400] }, { name: 'T', unit: '%', values: [81, null] }],
+    })
+    expect(res.status).toBe(201)
+    expect(res.body.columns).toEqual([{ name: 'wavelength', quantity: 'wavelength', unit: 'nm', count: 2, min: 400, max: 420 }, { name: 'T', quantity: '', unit: '%', count: 2, min: 81, max: 81 }])
+    const got = await call(t, lab.users.viewer.cookie).get(`/api/datasets/${res.body.id}`)
+    expect(got.body.columns[1]).toEqual({ name: 'T', unit: '%', values: [81, null] })
+  })
+
+  it('answers 400 naming the column whose name formulas cannot use, and 403 for a reviewer', async () => {
+    const bad = await call(t, lab.users.editor.cookie).post(`/api/sheets/${lab.editorSheetId}/datasets`, { name: 'filmB', columns: [{ name: '2T', unit: '%', values: [1] }] })
+    expect(bad.status).toBe(400)
+    expect(bad.body.issues[0].path).toBe('columns[0].name')
+    const reviewer = await call(t, lab.users.reviewer.cookie).post(`/api/sheets/${lab.editorSheetId}/datasets`, { name: 'filmB', columns: [{ name: 'T', unit: '%', values: [1] }] })
+    expect(reviewer.status).toBe(403)
+  })
+})
