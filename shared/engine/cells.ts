@@ -7,12 +7,13 @@ import type { SheetCell, ParameterCell, SpectrumCell, StackCell } from '../schem
 import { CELL_KINDS, fitCell, formulaCell, parameterCell, stackCell, stackFormulas, sweepCell, toSchemaIssues } from '../schema/sheet'
 import type { Num } from '../optics/num'
 import { compileFormula, inferDims, type CompiledFormula, type InputDim } from './compile'
-import { INPUT_DIGITS, formatNumber, formatPair } from './describe'
-import type { Dim } from './dimensions'
-import { CellError, messageOf } from './errors'
+import { INPUT_DIGITS, formatNumber, formatPair, formatQuantity, prettyUnit } from './describe'
+import { dimEquals, type Dim } from './dimensions'
+import { CellError, OutsideDataError, messageOf, outsideDataMessage } from './errors'
 import type { Budget } from './limits'
 import { CONSTANTS, builtinName } from './names'
-import { isReserved } from './parse'
+import { isReserved, type Node } from './parse'
+import { builtinFunction } from './functions/registry'
 import { parseUnit, formulaUnitTable } from './units'
 import { RecordValue, type Field, type Value } from './values'
 
@@ -117,6 +118,8 @@ export function prepareCell(cell: SheetCell): PreparedCell {
       p.staticWarnings.push(`the name ${cell.name} shadows the built-in constant ${cell.name} (${c.doc.split(', ')[0]}) in this sheet's formulas; rename the cell if formulas should use the constant`)
     else if (SHADOW_UNITS.has(cell.name))
       p.staticWarnings.push(`the name ${cell.name} shadows the unit ${cell.name} in this sheet's formulas; rename the cell if formulas should use the unit`)
+    else if (builtinFunction(cell.name))
+      p.staticWarnings.push(`the name ${cell.name} is also a library function: ${cell.name}(…) still calls the function, while ${cell.name} alone means this cell; rename the cell to keep formulas clear`)
     else if (isReserved(cell.name))
       p.staticWarnings.push(`the name ${cell.name} is reserved: formulas cannot refer to it; choose another name`)
   }
@@ -234,6 +237,37 @@ export function valuesOfNames(names: readonly string[], env: Env): Value[] {
   })
 }
 
+/**
+ * How the numbers of an "outside the data" message read: in the display unit of the cell holding interpolate's x
+ * (`interpolate(q, E, alpha)` with E shown in eV → "2.5 eV"), else in the usual unit of its dimension, else bare.
+ */
+function dataUnitShow(p: PreparedCell, env: Env): (si: number) => string {
+  const calls: Node[] = []
+  const walk = (n: Node): void => {
+    if (n.t === 'call') {
+      if (n.fn === 'interpolate') calls.push(n)
+      n.args.forEach(walk)
+    } else if (n.t === 'unary') walk(n.arg)
+    else if (n.t === 'binary') (walk(n.left), walk(n.right))
+    else if (n.t === 'cond') (walk(n.test), walk(n.then), walk(n.else))
+    else if (n.t === 'array') n.items.forEach(walk)
+  }
+  if (p.compiled) walk(p.compiled.tree)
+  for (const call of calls) {
+    const x = call.t === 'call' ? call.args[1] : undefined
+    if (x?.t !== 'name') continue
+    const target = env.cellNamed(x.name)
+    const dim = target ? env.stateOf(target.id)?.dim ?? null : null
+    if (!target) continue
+    const shownUnit = (target.cell as { unit?: unknown }).unit
+    const shown = typeof shownUnit === 'string' ? shownUnit : undefined
+    const u = shown ? parseUnit(shown) : undefined
+    if (u?.ok && dim && dimEquals(u.dim, dim)) return (si) => `${formatNumber(si / u.factor)} ${prettyUnit(shown!)}`
+    return (si) => formatQuantity(si, dim)
+  }
+  return (si) => formatNumber(si)
+}
+
 /** SI value of a parameter cell. */
 export function parameterValue(cell: ParameterCell): { value: number; dim: Dim } {
   const u = parseUnit(cell.unit ?? '')
@@ -274,7 +308,13 @@ export function formulaValue(p: PreparedCell, env: Env): Num {
 }
 
 export function evaluateFormula(p: PreparedCell, env: Env): CellState {
-  const value = formulaValue(p, env)
+  let value: Num
+  try {
+    value = formulaValue(p, env)
+  } catch (err) {
+    if (err instanceof OutsideDataError) throw new CellError(outsideDataMessage(err.point, err.lo, err.hi, dataUnitShow(p, env)), 'value')
+    throw err
+  }
   const dims = inferDims(p.compiled as CompiledFormula, inputDims(p, env))
   const warnings = [...dims.warnings]
   return { status: 'ok', value, dim: dims.dim, warnings }

@@ -64,7 +64,7 @@ export function resolveRef(ref: string, results: Results): Resolved<Quantity> {
   const dot = text.indexOf('.')
   const name = dot < 0 ? text : text.slice(0, dot)
   const member = dot < 0 ? undefined : text.slice(dot + 1)
-  const result = results[name]
+  const result = Object.hasOwn(results, name) ? results[name] : undefined
   const why = unusable(name, result)
   if (why || !result) return { ok: false, message: why ?? `There is no cell named "${name}" in this sheet.` }
   const value = result.value

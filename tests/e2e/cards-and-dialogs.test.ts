@@ -127,14 +127,15 @@ describe('cards', () => {
     expect(overflow).toBeLessThanOrEqual(1)
   })
 
-  it('adds a parameter from the keyboard: its name, Enter, then the number typed replaces the starting value', async () => {
+  it('adds a parameter from the keyboard through the command palette: its name, Enter, then the number typed replaces the starting value', async () => {
     const editor = await e2e.newBrowser({ label: 'editor' })
     await signIn(editor.page, e2e.server.url, DEMO.editor)
     const sheetId = await createSheet(editor.page, 'Keyboard', [])
     await openLive(editor.page, sheetId)
     const page = editor.page
-    await page.getByRole('button', { name: 'Add the first cell' }).click()
-    await page.keyboard.press('p')
+    await page.keyboard.press('Control+KeyK')
+    await page.getByLabel('Command', { exact: true }).fill('param')
+    await page.keyboard.press('Enter')
     await expect.poll(() => page.evaluate(() => document.activeElement?.getAttribute('aria-label'))).toBe('Cell name')
     await page.keyboard.type('T_cell')
     await page.keyboard.press('Enter')
