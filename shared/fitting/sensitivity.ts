@@ -16,6 +16,8 @@ export interface SensitivityOptions {
   steps?: number
   /** One step as a fraction of the window width (default 0.05: ±20 % with 4 steps). */
   fraction?: number
+  /** Standard deviations of α (α's unit) for a weighted fit, as the fit cell's σ. */
+  sigma?: ArrayLike<number>
 }
 
 export interface SensitivityPoint {
@@ -50,10 +52,10 @@ export interface WindowSensitivity {
 
 function fitOne(E: ArrayLike<number>, alpha: ArrayLike<number>, from: number, to: number, opts: SensitivityOptions): { value: number; err: number; n: number } {
   if (opts.method === 'tauc') {
-    const f = taucFit(E, alpha, opts.r ?? 0.5, from, to)
+    const f = taucFit(E, alpha, opts.r ?? 0.5, from, to, opts.sigma)
     return { value: f.Eg, err: f.Eg_err, n: f.n }
   }
-  const f = urbachFit(E, alpha, from, to)
+  const f = urbachFit(E, alpha, from, to, opts.sigma)
   return { value: f.Eu, err: f.Eu_err, n: f.n }
 }
 

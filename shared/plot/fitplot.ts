@@ -21,6 +21,8 @@ export interface FitSpec {
   from?: number
   to?: number
   unit?: string
+  /** A cell of standard deviations of y (weighted fits). */
+  sigma?: string
 }
 
 export interface FitPlotData {
@@ -33,6 +35,8 @@ export interface FitPlotData {
   alpha: number[]
   /** Tauc exponent (1/2 when not given). */
   r: number
+  /** Standard deviation of α at each x, in cm⁻¹, when the fit is weighted. */
+  sigma?: number[]
   xUnit: string
   /** The x cell's display unit: the unit of the fit cell's from/to. */
   windowUnit: string
@@ -119,6 +123,12 @@ export function fitPlotData(spec: FitSpec, results: Results): Resolved<FitPlotDa
   }
 
   const data: FitPlotData = { method, x, y, alpha, r, xUnit: fitUnit, windowUnit: xs.unit, yTitle, window, notes }
+  if (spec.sigma) {
+    const sr = resolveRef(spec.sigma, results)
+    const toCm = sr.ok ? converter(sr.value.unit || '1/m', '1/cm') : null
+    if (sr.ok && sr.value.kind === 'array' && sr.value.values.length === xs.values.length && toCm?.ok) data.sigma = sr.value.values.map(toCm.value)
+    else notes.push(`The σ cell "${spec.sigma}" is not a series of α's length in a unit of α, so the window refit drawn here is unweighted.`)
+  }
   const why = unusable(spec.name, fitResult)
   if (why) {
     notes.push(why)
@@ -173,7 +183,8 @@ export interface WindowFit {
 /**
  * Refits a Tauc or Urbach plot over the window [lo, hi] (x unit of the plot), as the figure does while a window is
  * dragged: the value ± standard error from shared/fitting (the same numbers the fit cell gives, its x in the plot's
- * unit), and the straight line and residuals in the plot's own coordinates. Returns a plain sentence when the window
+ * unit, weighted by σ when the fit has one), and the straight line and residuals in the plot's own coordinates (an
+ * ordinary least-squares line through the plotted points). Returns a plain sentence when the window
  * gives no fit.
  */
 export function windowFit(data: FitPlotData, lo: number, hi: number): { ok: true; value: WindowFit } | { ok: false; message: string } {
@@ -201,10 +212,10 @@ export function windowFit(data: FitPlotData, lo: number, hi: number): { ok: true
   let r2: number
   try {
     if (data.method === 'tauc') {
-      const f = taucFit(data.x, data.alpha, data.r, a, b)
+      const f = taucFit(data.x, data.alpha, data.r, a, b, data.sigma)
       ;[value, err, r2] = [f.Eg, f.Eg_err, f.r2]
     } else {
-      const f = urbachFit(data.x, data.alpha, a, b)
+      const f = urbachFit(data.x, data.alpha, a, b, data.sigma)
       ;[value, err, r2] = [f.Eu, f.Eu_err, f.r2]
     }
   } catch (e) {

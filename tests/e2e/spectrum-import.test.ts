@@ -4,9 +4,8 @@
  * on the sheet, the mapping is checked and confirmed, and the spectrum cell's columns are at once usable in a formula.
  */
 import { describe, expect, it } from 'vitest'
-import type { Page } from 'playwright-core'
 import { DEMO, signIn, useBrowserSuite } from '../utils/browser'
-import { card, resultText, sheetPage } from '../utils/sheetPage'
+import { card, dropFile, resultText, sheetPage } from '../utils/sheetPage'
 
 const e2e = useBrowserSuite()
 /** A folder for screenshots of the dialog and the card, when set (to look at them; nothing is compared). */
@@ -24,20 +23,6 @@ const EXPORT = [
   '500;31,5',
   '',
 ].join('\r\n')
-
-/** Drops a text file on the sheet page the way a file manager does (dragover, then drop with the file). */
-async function dropFile(page: Page, name: string, text: string): Promise<void> {
-  await page.evaluate(
-    ([fileName, body]) => {
-      const target = document.querySelector('.sheet-page')!
-      const data = new DataTransfer()
-      data.items.add(new File([body], fileName, { type: 'text/csv' }))
-      target.dispatchEvent(new DragEvent('dragover', { dataTransfer: data, bubbles: true, cancelable: true }))
-      target.dispatchEvent(new DragEvent('drop', { dataTransfer: data, bubbles: true, cancelable: true }))
-    },
-    [name, text] as const,
-  )
-}
 
 describe('a measured spectrum on the sheet page', () => {
   it('drops an export on the sheet, confirms the mapping, and uses the spectrum’s columns in a formula', async () => {

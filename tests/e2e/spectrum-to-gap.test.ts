@@ -1,12 +1,12 @@
 /**
- * From a measured spectrum to a band gap on the sheet page, as a researcher does it: a spectrum cell (made here from a
- * sheet file with inline columns), "Extract α" on its card, a Tauc window dragged across the fit's plot, and the gap
+ * From a measured spectrum to a band gap on the sheet page, as a researcher does it: an instrument export dropped on
+ * the sheet and its mapping confirmed, "Extract α" on the spectrum's card, a Tauc window dragged across the fit's plot, and the gap
  * with its standard error and the window sensitivity read off the fit card; then the gap taken over as a parameter.
  */
 import { describe, expect, it } from 'vitest'
 import type { Page } from 'playwright-core'
 import { DEMO, RESULTS_DIR, signIn, useBrowserSuite } from '../utils/browser'
-import { card, sheetPage } from '../utils/sheetPage'
+import { card, dropFile, sheetPage } from '../utils/sheetPage'
 import { alphaEdge, photonEnergy, reflectance, transmittanceSlab } from '../../shared/optics'
 
 const e2e = useBrowserSuite()
@@ -15,24 +15,18 @@ const eV = 1.602176634e-19 // J, exact (2019 SI)
 
 /**
  * An invented film of the Halvorsen lab: a direct edge at 1.5 eV with a 30 meV Urbach tail, 500 nm thick, index 3,
- * measured as T in % (rounded to 0.001 %, as an instrument export would be) and R of one face as a fraction. T comes
+ * exported as wavelength, T in % (rounded to 0.001 %, as an instrument would) and R of one face as a fraction. T comes
  * from the incoherent slab formula transmittance_slab (J. I. Pankove, Optical Processes in Semiconductors (1971),
  * ch. 4), R from Fresnel at normal incidence.
  */
-function filmSpectrum() {
+function filmExport(): string {
   const nm = Array.from({ length: 301 }, (_, i) => 400 + 2 * i)
   const E = photonEnergy(Float64Array.from(nm, (x) => x * 1e-9)) as Float64Array
   const alpha = alphaEdge(E, 1.5 * eV, (4e9 * eV) / 1e-4, 0.5, 0.03 * eV) as Float64Array
   const R = reflectance(3, 0) as number
   const T = transmittanceSlab(alpha, 500e-9, R) as Float64Array
-  return {
-    kind: 'spectrum', name: 'filmB', source: 'filmB-T.csv',
-    columns: {
-      wavelength: { unit: 'nm', quantity: 'wavelength', values: nm },
-      T: { unit: '%', quantity: 'T', values: Array.from(T, (t) => Math.round(t * 1e5) / 1e3) },
-      R: { unit: '', quantity: 'R', values: nm.map(() => R) },
-    },
-  }
+  const rows = nm.map((x, i) => `${x},${(Math.round(T[i] * 1e5) / 1e3).toFixed(3)},${R.toFixed(4)}`)
+  return ['Wavelength (nm),T (%),R', ...rows, ''].join('\r\n')
 }
 
 /** Client coordinates of photon energy `x` (eV) on the x axis of the plot inside a card, halfway up the plot area. */
@@ -52,7 +46,13 @@ describe('from a spectrum to a band gap', () => {
     const editor = await e2e.newBrowser({ label: 'editor', viewport: { width: 1280, height: 1000 } })
     const page = editor.page
     await signIn(page, e2e.server.url, DEMO.editor)
-    await openLive(page, await createSheet(page, 'Film B band gap', [filmSpectrum()]))
+    await openLive(page, await createSheet(page, 'Film B band gap', [{ kind: 'note', text: 'Film B, annealed: transmission and reflection.' }]))
+    await dropFile(page, 'filmB.csv', filmExport())
+    const importing = page.locator('.spectrum-import')
+    await expect.poll(() => importing.isVisible(), { timeout: 20_000 }).toBe(true)
+    await importing.getByLabel('Spectrum name').fill('filmB')
+    await page.getByTestId('import-spectrum').click()
+    await expect.poll(() => card(page, 'filmB').count(), { timeout: 20_000 }).toBe(1)
 
     await card(page, 'filmB').getByRole('button', { name: 'Extract α…' }).click()
     const dialog = page.getByRole('dialog', { name: 'Extract α from filmB' })
@@ -67,7 +67,7 @@ describe('from a spectrum to a band gap', () => {
 
     for (const name of ['d_filmB', 'alpha_filmB', 'E_filmB', 'gap_filmB', 'fig_alpha_filmB']) await expect.poll(() => card(page, name).count()).toBe(1)
     // the α cell is an ordinary formula, carrying its validity note
-    expect(await card(page, 'alpha_filmB').innerText()).toContain('alpha_from_transmittance(filmB.T, filmB.R, d_filmB)')
+    expect(await card(page, 'alpha_filmB').innerText()).toMatch(/alpha_from_transmittance\(filmB\.\w+, filmB\.\w+, d_filmB\)/)
 
     // no window yet: the Tauc plot is open for dragging one
     const fit = card(page, 'gap_filmB')

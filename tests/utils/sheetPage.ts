@@ -55,3 +55,17 @@ export function sheetPage(server: () => { url: string }) {
     openLive: (page: Page, sheetId: string) => openLive(page, server().url, sheetId),
   }
 }
+
+/** Drops a text file on the sheet page the way a file manager does (dragover, then drop with the file). */
+export async function dropFile(page: Page, name: string, text: string): Promise<void> {
+  await page.evaluate(
+    ([fileName, body]) => {
+      const target = document.querySelector('.sheet-page')!
+      const data = new DataTransfer()
+      data.items.add(new File([body], fileName, { type: 'text/csv' }))
+      target.dispatchEvent(new DragEvent('dragover', { dataTransfer: data, bubbles: true, cancelable: true }))
+      target.dispatchEvent(new DragEvent('drop', { dataTransfer: data, bubbles: true, cancelable: true }))
+    },
+    [name, text] as const,
+  )
+}

@@ -30,11 +30,15 @@ export function takeableOutputs(cell: FitCell, result: CellResult | undefined, u
   const v = result?.status === 'ok' ? result.value : undefined
   if (!isRecord(v)) return []
   const fitUnit = result?.unit ?? cell.unit ?? 'eV'
+  // the unit the result states for each output; results of an older engine state none
+  const stated = result?.units ?? {}
   const out: TakeableOutput[] = []
   for (const [key, raw] of Object.entries(v)) {
     if (typeof raw !== 'number' || !Number.isFinite(raw) || key.endsWith('_err') || NOT_PARAMETERS.has(key)) continue
     const err = typeof v[`${key}_err`] === 'number' ? (v[`${key}_err`] as number) : undefined
-    if (cell.method === 'model') {
+    if (stated[key] !== undefined) {
+      if (cell.method !== 'model' || err !== undefined) out.push({ key, value: raw, err, unit: stated[key] === '1' ? '' : stated[key] })
+    } else if (cell.method === 'model') {
       if (err === undefined) continue
       const own = unitOf(key) ?? ''
       out.push({ key, value: raw, err, unit: cell.unit && isEnergyUnit(own) ? cell.unit : own })

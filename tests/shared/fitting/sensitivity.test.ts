@@ -88,4 +88,16 @@ describe('windowSensitivity(E, alpha, from, to, options)', () => {
     expect(s.points.filter((p) => p.value === undefined).length).toBe(s.failed)
     expect(windowSensitivity(E, alpha, 1.6 * eV, 1.65 * eV, { method: 'tauc', r: 0.5 })).toBeNull()
   })
+
+  it('windowSensitivity with σ giving every Tauc point one weight finds the same gaps as the unweighted fit, its errors from σ', () => {
+    // σ of α chosen so that every Tauc point y = (αE)² gets the same σ_y = 2αE²·σ (first-order propagation): equal
+    // weights leave the least-squares line unchanged (Draper & Smith (1998), ch. 9)
+    const E = grid(1.2, 2.4, 601)
+    const alpha = alphaEdge(E, 1.48 * eV, B5, 0.5, 0.05 * eV) as Float64Array
+    const sigma = Float64Array.from(E, (e, i) => 1e-30 / (2 * alpha[i] * e * e))
+    const plain = windowSensitivity(E, alpha, 1.5 * eV, 1.8 * eV, { method: 'tauc', r: 0.5 })!
+    const weighted = windowSensitivity(E, alpha, 1.5 * eV, 1.8 * eV, { method: 'tauc', r: 0.5, sigma })!
+    weighted.points.forEach((p, i) => expectRel(p.value!, plain.points[i].value!, 1e-9))
+    expect(weighted.base.err).not.toBe(plain.base.err)
+  })
 })

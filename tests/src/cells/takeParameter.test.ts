@@ -30,7 +30,7 @@ describe('parameterFromFit(fit, output, target, cells)', () => {
     const step = parameterFromFit(tauc, out, undefined, [{ id: 'a', kind: 'parameter', name: 'Eg_edge', value: 1 }])
     if (!step.ok || !step.cell) throw new Error('expected a new cell')
     expect(step.cell).toMatchObject({ kind: 'parameter', name: 'Eg_edge_2', value: 1.4812, unit: 'eV' })
-    expect((step.cell as { description?: string }).description).toBe('Eg = 1.4812 ± 0.0021 eV from the fit edge, window 1.55–1.9')
+    expect(step.cell.kind === 'parameter' && step.cell.description).toBe('Eg = 1.4812 ± 0.0021 eV from the fit edge, window 1.55–1.9')
   })
   it('parameterFromFit converts into an existing parameter\'s unit (1.4812 eV = 1481.2 meV)', () => {
     const target: ParameterCell = { kind: 'parameter', name: 'Eg0', value: 1500, unit: 'meV' }
@@ -42,5 +42,21 @@ describe('parameterFromFit(fit, output, target, cells)', () => {
     const step = parameterFromFit(tauc, out, { kind: 'parameter', name: 'd', value: 500, unit: 'nm' }, [])
     expect(step.ok).toBe(false)
     if (!step.ok) expect(step.message).toMatch(/^Eg is energy eV but d is length nm; choose a parameter of the same kind/)
+  })
+})
+
+describe('takeableOutputs with the units a result states', () => {
+  it('takeableOutputs takes each output in the unit the result states for it (α0 in the α cell\'s 1/cm)', () => {
+    const urbach: FitCell = { ...tauc, method: 'urbach', unit: 'meV' }
+    const out = takeableOutputs(
+      urbach,
+      { ...result, unit: 'meV', value: { Eu: 22, Eu_err: 0.4, alpha0: 1e4, E0: 1480, r2: 0.99, n: 20 }, units: { Eu: 'meV', Eu_err: 'meV', alpha0: '1/cm', E0: 'meV', r2: '1', n: '1' } },
+      () => undefined,
+    )
+    expect(out).toEqual([
+      { key: 'Eu', value: 22, err: 0.4, unit: 'meV' },
+      { key: 'alpha0', value: 1e4, err: undefined, unit: '1/cm' },
+      { key: 'E0', value: 1480, err: undefined, unit: 'meV' },
+    ])
   })
 })
