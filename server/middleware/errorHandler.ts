@@ -25,7 +25,7 @@ export function errorHandler(maxBodyBytes: number): ErrorRequestHandler {
   return (err: unknown, req, res, next) => {
     if (res.headersSent) return next(err)
     if (err instanceof HttpError) {
-      res.status(err.status).json(err.issues ? { error: err.message, issues: err.issues } : { error: err.message })
+      res.status(err.status).json({ ...err.extra, error: err.message, ...(err.issues ? { issues: err.issues } : {}) })
       return
     }
     const e = err as BodyParserError & MulterLikeError

@@ -87,6 +87,11 @@ function malformed(cell: SheetCell): string | undefined {
       const c = col as { unit?: unknown; values?: unknown } | null
       if (!c || typeof c !== 'object') return `invalid cell: columns.${name}: must be an object with unit and values`
       if (typeof c.unit !== 'string') return `invalid cell: columns.${name}.unit: required`
+      if (c.values === undefined) {
+        const id = (cell as { datasetId?: unknown }).datasetId
+        if (typeof id === 'string' && id) return datasetNotLoaded(id)
+        return `invalid cell: columns.${name}.values: required (an array of numbers)`
+      }
       if (!Array.isArray(c.values)) return `invalid cell: columns.${name}.values: required (an array of numbers)`
     }
     return undefined
@@ -238,24 +243,34 @@ export function evaluateFormula(p: PreparedCell, env: Env): CellState {
   return { status: 'ok', value, dim: dims.dim, warnings }
 }
 
+/**
+ * The error of a spectrum cell whose numbers are in a stored dataset that the caller has not loaded into its columns
+ * (the page's worker and the server load them by id before evaluating; a file carries them inline).
+ */
+export function datasetNotLoaded(datasetId: string): string {
+  return `the numbers of this spectrum are kept in dataset ${datasetId}, which is not loaded here; open the sheet in the app or export it (export writes the numbers into the file)`
+}
+
 /** A spectrum cell's columns in SI as a record (`filmB.T`); empty entries (null) become NaN. */
 export function evaluateSpectrum(cell: SpectrumCell): CellState {
   const fields = new Map<string, Field>()
   const warnings: string[] = []
   let length = -1
   for (const [name, col] of Object.entries(cell.columns)) {
+    if (!col.values) throw new CellError(cell.datasetId ? datasetNotLoaded(cell.datasetId) : `column ${name} has no values`, 'input')
     const u = parseUnit(col.unit)
     if (!u.ok) throw new CellError(`the unit of column ${name} ${u.error}`, 'input')
-    const values = new Float64Array(col.values.length)
+    const raw = col.values
+    const values = new Float64Array(raw.length)
     let gaps = 0
-    col.values.forEach((x, i) => {
+    raw.forEach((x, i) => {
       if (x === null) gaps++
       else if (typeof x !== 'number') throw new CellError(`column ${name}: entry ${i} is not a number (${JSON.stringify(x)?.slice(0, 40)})`, 'input')
       values[i] = x === null ? NaN : x * u.factor
     })
     if (gaps) warnings.push(`column ${name} has ${gaps} empty entr${gaps === 1 ? 'y' : 'ies'} (read as NaN)`)
-    if (length >= 0 && col.values.length !== length) warnings.push(`the columns have different lengths (${length} and ${col.values.length} in ${name})`)
-    length = Math.max(length, col.values.length)
+    if (length >= 0 && raw.length !== length) warnings.push(`the columns have different lengths (${length} and ${raw.length} in ${name})`)
+    length = Math.max(length, raw.length)
     fields.set(name, { value: values, dim: u.dim })
   }
   if (fields.size === 0) warnings.push('the spectrum has no columns')

@@ -42,7 +42,7 @@ export function toCellJson(p: PreparedCell, s: CellState): CellJson {
       const columns: Record<string, (number | null)[]> = {}
       const units: Record<string, string> = {}
       for (const [name, col] of Object.entries(cell.columns)) {
-        columns[name] = col.values
+        columns[name] = col.values ?? []
         units[name] = col.unit
       }
       return { ...base, value: { columns, units }, warnings }

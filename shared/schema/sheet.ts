@@ -37,21 +37,65 @@ export const formulaCell = z.object({
   description: description.optional(),
 })
 
+/**
+ * What a spectrum column measures (the `quantity` of a dataset column): wavelength, photon energy, wavenumber,
+ * transmittance T, reflectance R, absorbance A10 (base 10), absorptance A, absorption coefficient alpha, refractive
+ * index n, extinction coefficient k, or other.
+ */
+export const SPECTRUM_QUANTITIES = ['wavelength', 'energy', 'wavenumber', 'T', 'R', 'A10', 'A', 'alpha', 'n', 'k', 'other'] as const
+export type SpectrumQuantity = (typeof SPECTRUM_QUANTITIES)[number]
+
+/** Words for each quantity code, for the interface. */
+export const QUANTITY_LABELS: Record<SpectrumQuantity, string> = {
+  wavelength: 'wavelength',
+  energy: 'photon energy',
+  wavenumber: 'wavenumber',
+  T: 'transmittance',
+  R: 'reflectance',
+  A10: 'absorbance (base 10)',
+  A: 'absorptance',
+  alpha: 'absorption coefficient α',
+  n: 'refractive index n',
+  k: 'extinction coefficient k',
+  other: 'other',
+}
+
+/**
+ * One column of a spectrum. In a sheet file it carries its `values` (in `unit`; null for an empty entry). In the live
+ * document of a sheet the numbers stay in the database: the column carries only its metadata (`unit`, `quantity`,
+ * `count`, `min`, `max`) and the cell's `datasetId` names the stored dataset the engine loads the values from.
+ */
 export const datasetColumn = z.object({
   unit: unit,
-  values: z.array(z.number().nullable()).max(1_000_000),
-  /** What the column measures, when known: wavelength, energy, T (transmittance), R, A10 (absorbance), alpha … */
+  values: z.array(z.number().nullable()).max(1_000_000).optional(),
+  /** What the column measures: one of SPECTRUM_QUANTITIES when known (other strings are kept as they are). */
   quantity: z.string().max(64).optional(),
+  /** Points in the column, and the range of its finite values (in `unit`): metadata for the live document. */
+  count: z.number().int().nonnegative().optional(),
+  min: finite.optional(),
+  max: finite.optional(),
 })
 
+/**
+ * A measured spectrum. Sheet file form: `{ "kind": "spectrum", "name": "filmB", "columns": { "wavelength": { "unit":
+ * "nm", "quantity": "wavelength", "values": [...] }, "T": { "unit": "%", "quantity": "T", "values": [...] } } }`.
+ * Live document form: the same with `datasetId` set and no `values` in the columns (metadata only), e.g.
+ * `{ "kind": "spectrum", "name": "filmB", "datasetId": "ds_…", "source": "filmB.csv", "sample": "film B",
+ *    "columns": { "wavelength": { "unit": "nm", "quantity": "wavelength", "count": 401, "min": 300, "max": 700 }, … } }`.
+ * Formulas read the columns as `filmB.wavelength`, `filmB.T` (in SI). Export inlines the values; importing a file with
+ * inline values stores them as a dataset. A column without values in a cell without `datasetId` is an error.
+ */
 export const spectrumCell = z.object({
   id: id.optional(),
   kind: z.literal('spectrum'),
   name,
   columns: z.record(z.string().regex(IDENTIFIER, 'column names must be identifiers'), datasetColumn),
-  /** The stored dataset this cell shows, when the app keeps it in the database; export inlines `columns`. */
+  /** The stored dataset holding this cell's numbers (live document); export inlines them into `columns`. */
   datasetId: z.string().max(64).optional(),
+  /** The name of the file the data came from. */
   source: z.string().max(500).optional(),
+  /** Which sample of the file, when it held several. */
+  sample: z.string().max(200).optional(),
   description: description.optional(),
 })
 

@@ -8,8 +8,14 @@ import { CALLERS, call, makeTestApp, seedLab, type Caller, type SeededLab, type 
 import { requestReset, requestSignUp } from '../../server/services/accounts'
 import { createInvitation } from '../../server/services/invitations'
 import { labById } from '../../server/services/labs'
+import { storeDataset } from '../../server/services/datasets'
 import { createSheet } from '../../server/services/sheets'
+import { loadSheetFile } from '../../server/services/documents'
 import { freezeSnapshot } from '../../server/services/snapshots'
+
+/** A small instrument export (invented values) for the upload routes. */
+const CSV = 'Wavelength (nm),%T\n400,80\n410,81\n420,82\n'
+const upload = (c: Ctx, path: string) => call(c.t, c.lab.cookie(c.caller)).post(path).attach('file', Buffer.from(CSV), 'filmB.csv')
 import { createReview } from '../../server/services/reviews'
 import { createComment } from '../../server/services/comments'
 import { createGuestLink, revokeGuestLink, guestLinkById } from '../../server/services/guestLinks'
@@ -34,6 +40,10 @@ interface Ctx {
   confirmToken: string
   invitationToken: string
   invitationId: string
+  /** A dataset of the lab, and a sheet with a spectrum cell whose CSV can be downloaded. */
+  datasetId: string
+  csvSheetId: string
+  csvCellId: string
 }
 
 type Send = (c: Ctx) => PromiseLike<{ status: number; body: unknown }>
@@ -77,6 +87,11 @@ const ROUTES: { route: string; send: Send; expect: Expect }[] = [
   { route: 'DELETE /api/sheets/:sheetId (made by the editor)', send: (c) => call(c.t, c.lab.cookie(c.caller)).del(`/api/sheets/${c.lab.editorSheetId}`), expect: [204, 204, 403, 403, 404, 401] },
   { route: 'DELETE /api/sheets/:sheetId (made by the owner)', send: (c) => call(c.t, c.lab.cookie(c.caller)).del(`/api/sheets/${c.lab.ownerSheetId}`), expect: [204, 403, 403, 403, 404, 401] },
   { route: 'GET /api/sheets/:sheetId/file', send: (c) => call(c.t, c.lab.cookie(c.caller)).get(`/api/sheets/${c.lab.editorSheetId}/file`), expect: [200, 200, 200, 200, 404, 401] },
+  { route: 'POST /api/sheets/:sheetId/datasets/preview', send: (c) => upload(c, `/api/sheets/${c.lab.editorSheetId}/datasets/preview`), expect: [200, 200, 403, 403, 404, 401] },
+  { route: 'POST /api/sheets/:sheetId/datasets', send: (c) => upload(c, `/api/sheets/${c.lab.editorSheetId}/datasets`), expect: [201, 201, 403, 403, 404, 401] },
+  { route: 'GET /api/datasets/:datasetId', send: (c) => call(c.t, c.lab.cookie(c.caller)).get(`/api/datasets/${c.datasetId}`), expect: [200, 200, 200, 200, 404, 401] },
+  { route: 'GET /api/datasets/:unknownDataset', send: (c) => call(c.t, c.lab.cookie(c.caller)).get('/api/datasets/no-such-dataset'), expect: [404, 404, 404, 404, 404, 401] },
+  { route: 'GET /api/sheets/:sheetId/cells/:cellId/csv', send: (c) => call(c.t, c.lab.cookie(c.caller)).get(`/api/sheets/${c.csvSheetId}/cells/${c.csvCellId}/csv`), expect: [200, 200, 200, 200, 404, 401] },
   { route: 'POST /api/evaluate', send: (c) => call(c.t, c.lab.cookie(c.caller)).post('/api/evaluate', SHEET_FILE), expect: [200, 200, 200, 200, 200, 401] },
   { route: 'GET /dev/mail.json', send: (c) => call(c.t, c.lab.cookie(c.caller)).get('/dev/mail.json'), expect: [200, 200, 200, 200, 200, 200] },
 ]
@@ -92,7 +107,16 @@ async function context(caller: Caller): Promise<Ctx> {
   const invitedEmail = caller === 'anonymous' ? 'brand-new@elsewhere.example' : caller === 'outsider' ? lab.users.outsider.email : 'member-invited@elsewhere.example'
   const invitation = createInvitation(t.deps, labById(t.deps, lab.labId)!, lab.users.owner, invitedEmail, 'viewer')
   const invitationToken = t.mailer.tokenFor(invitedEmail, '/invitations/')
-  return { t, lab, caller, resetToken, confirmToken, invitationToken, invitationId: invitation.id }
+  const datasetId = storeDataset(t.db, {
+    labId: lab.labId, sheetId: lab.editorSheetId, name: 'filmB', uploadedBy: lab.users.editor.id,
+    columns: [{ name: 'wavelength', quantity: 'wavelength', unit: 'nm', values: [400, 410] }, { name: 'T', quantity: 'T', unit: '%', values: [80, 81] }],
+  })
+  const csvSheet = createSheet(t.deps, lab.labId, lab.users.editor.id, {
+    format: 'penumbra.sheet', version: 1, title: 'Film B',
+    cells: [{ kind: 'spectrum', name: 'filmB', columns: { wavelength: { unit: 'nm', values: [400, 410] }, T: { unit: '%', values: [80, 81] } } }],
+  })
+  const csvCellId = loadSheetFile(t.db, csvSheet.id).cells[0].id
+  return { t, lab, caller, resetToken, confirmToken, invitationToken, invitationId: invitation.id, datasetId, csvSheetId: csvSheet.id, csvCellId }
 }
 
 describe('role matrix', () => {

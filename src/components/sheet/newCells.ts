@@ -12,10 +12,11 @@ export interface KindInfo {
   key: string
 }
 
-/** Kinds a person can add from the page (spectrum cells come from an upload or an imported file). */
+/** Kinds a person can add from the page (a spectrum opens the import of a measured file). */
 export const ADDABLE_KINDS: KindInfo[] = [
   { kind: 'parameter', label: 'Parameter', hint: 'a named input with unit and range', key: 'p' },
   { kind: 'formula', label: 'Formula', hint: 'a named computed quantity', key: 'f' },
+  { kind: 'spectrum', label: 'Spectrum', hint: 'measured data from an instrument file', key: 'm' },
   { kind: 'fit', label: 'Fit', hint: 'Tauc, Urbach or a model fit', key: 't' },
   { kind: 'sweep', label: 'Sweep', hint: 'one parameter over a range', key: 's' },
   { kind: 'figure', label: 'Figure', hint: 'a chart of other cells', key: 'g' },
