@@ -126,20 +126,21 @@ describe('DELETE /api/snapshots/:snapshotId', () => {
 })
 
 describe('GET /api/snapshots/:snapshotId/cells/:cellId/csv', () => {
-  it('downloads a formula array as one column with its unit, and answers 404 for a cell without a series', async () => {
+  it('downloads a formula array as one column with its unit, and answers 422 for a cell without a series', async () => {
     const { t, lab, freeze } = await setup()
     const id = await freeze('editor', 'csv')
     const res = await call(t, lab.users.viewer.cookie).get(`/api/snapshots/${id}/cells/f-E/csv`)
     expect(res.status).toBe(200)
     expect(res.headers['content-type']).toMatch(/^text\/csv/)
-    expect(res.headers['content-disposition']).toContain('E.csv')
+    expect(res.headers['content-disposition']).toContain('Film B edge - E.csv')
     const lines = res.text.trim().split('\r\n')
     expect(lines[0]).toBe('E (eV)')
     expect(lines).toHaveLength(62)
     expect(Number(lines[1])).toBeCloseTo(1.2, 12)
     expect(Number(lines[61])).toBeCloseTo(2.4, 12)
     const none = await call(t, lab.users.viewer.cookie).get(`/api/snapshots/${id}/cells/n-1/csv`)
-    expect(none.status).toBe(404)
+    expect(none.status).toBe(422)
+    expect((await call(t, lab.users.viewer.cookie).get(`/api/snapshots/${id}/cells/no-such-cell/csv`)).status).toBe(404)
     t.close()
   })
 })
