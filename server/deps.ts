@@ -8,6 +8,8 @@ import type { Evaluator } from './services/evaluation'
 export interface AppHooks {
   membershipChanged?(labId: string, userId: string): void
   sheetDeleted?(sheetId: string): void
+  /** Some of the person's sessions ended (signed out, password changed or reset): their open websockets are checked now. */
+  sessionsEnded?(userId: string): void
 }
 
 export interface AppDeps {

@@ -20,9 +20,9 @@ import { contentDisposition } from '../services/sheets'
 import { sharedEvaluator } from '../services/evaluation'
 import { badRequest, HttpError, notFound } from '../errors'
 import { datasetImportOptions, type DatasetCreated, type DatasetImportOptions, type DatasetPreview, type DatasetReply } from '../../shared/schema/api'
-import { IDENTIFIER, type SheetCell } from '../../shared/schema/sheet'
+import type { SheetCell } from '../../shared/schema/sheet'
 import type { EvaluationResult } from '../../shared/schema/result'
-import { issuePath, mapSpectrum, parseSpectrumFile, SpectrumFileError, type ParsedSpectrumFile } from '../../shared/import/spectrumFile'
+import { issuePath, mapSpectrum, nameFromFile, parseSpectrumFile, SpectrumFileError, type ParsedSpectrumFile } from '../../shared/import/spectrumFile'
 import { columnSummary, jsonValues } from '../../shared/import/spectrumCell'
 import { cellCsvColumns, CsvError, csvFileName, toCsv } from '../../shared/export/csv'
 
@@ -63,13 +63,6 @@ function options(req: Request): DatasetImportOptions {
     throw badRequest('The field "options" is not valid JSON.', [{ path: 'options', message: 'not valid JSON' }])
   }
   return parse(datasetImportOptions, json, 'The import options were not accepted')
-}
-
-/** A spectrum name from a file name: `Film B 2024-03.csv` → `Film_B_2024_03`. */
-export function nameFromFile(fileName: string): string {
-  const base = fileName.replace(/\.[A-Za-z0-9]{1,5}$/, '').normalize('NFKD').replace(/[^A-Za-z0-9_]+/g, '_').replace(/^_+|_+$/g, '').slice(0, 40)
-  if (IDENTIFIER.test(base)) return base
-  return /^[0-9_]/.test(base) && IDENTIFIER.test(`s_${base}`) ? `s_${base}`.slice(0, 40) : 'spectrum'
 }
 
 function thin(values: Float64Array, points: number): (number | null)[] {

@@ -49,7 +49,11 @@ export function toCellJson(p: PreparedCell, s: CellState): CellJson {
     }
     case 'fit':
     case 'sweep':
-      return { ...base, value: (s.shown ?? null) as CellJson['value'], unit: s.unit, warnings }
+    case 'stack': {
+      const out: CellJson = { ...base, value: (s.shown ?? null) as CellJson['value'], unit: s.unit, warnings }
+      if (s.units) out.units = s.units
+      return out
+    }
     default:
       return { ...base, value: null, warnings }
   }

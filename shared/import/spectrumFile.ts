@@ -525,9 +525,16 @@ const COLUMN_NAME: Record<SpectrumQuantity, string> = {
   wavelength: 'wavelength', energy: 'energy', wavenumber: 'wavenumber', T: 'T', R: 'R', A: 'A', A10: 'A10', alpha: 'alpha', n: 'n', k: 'k', other: 'col',
 }
 
-function identifierFrom(text: string, fallback: string): string {
+/** A name formulas can use, made from free text: `Film B 2024-03` → `Film_B_2024_03`; `2024 run` → `s_2024_run`. */
+export function identifierFrom(text: string, fallback: string): string {
   const cleaned = text.normalize('NFKD').replace(/[^A-Za-z0-9_]+/g, '_').replace(/^_+|_+$/g, '').slice(0, 40)
-  return IDENTIFIER.test(cleaned) ? cleaned : fallback
+  if (IDENTIFIER.test(cleaned)) return cleaned
+  return /^[0-9]/.test(cleaned) && IDENTIFIER.test(`s_${cleaned}`) ? `s_${cleaned}` : fallback
+}
+
+/** A spectrum's name from its file's name, without the extension. */
+export function nameFromFile(fileName: string): string {
+  return identifierFrom(fileName.replace(/\.[A-Za-z0-9]{1,5}$/, ''), 'spectrum')
 }
 
 /**

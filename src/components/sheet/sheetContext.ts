@@ -2,7 +2,7 @@
  * What every cell card reaches through inject: the live document's editing operations, presence, the results store
  * and the formula vocabulary. SheetView provides it; cards never create documents or workers themselves.
  */
-import { inject, type InjectionKey, type Ref } from 'vue'
+import { inject, type Component, type InjectionKey, type Ref } from 'vue'
 import type { SheetDoc } from '@/composables/useSheetDoc'
 import type { Presence } from '@/composables/usePresence'
 import type { FormulaVocabulary } from '@/components/cells/formulaLanguage'
@@ -18,6 +18,8 @@ export interface SheetContext {
   focusCard: (cellId: string) => void
   /** List operations with their focus handling (buttons and keyboard share them). */
   ops: CellOps
+  /** Drawn in every card's header with the cell's id (the comment badge of the review feature). */
+  cellAddon?: Component
 }
 
 export interface CellOps {
