@@ -47,6 +47,7 @@ function staticDoc(file: SheetFile): SheetDoc {
     synced: ref(true),
     closedReason: ref(''),
     denied: ref(''),
+    accessLost: ref(false),
     canUndo: ref(false),
     canRedo: ref(false),
     origin,
@@ -54,6 +55,8 @@ function staticDoc(file: SheetFile): SheetDoc {
     indexOf: (id: string) => cells.toArray().findIndex((m) => m.get('id') === id),
     setFields: refuse,
     insertCell: () => null,
+    insertCells: () => null,
+    setFieldsStep: refuse,
     deleteCell: refuse,
     moveCell: refuse,
     duplicateCell: () => null,
@@ -62,6 +65,8 @@ function staticDoc(file: SheetFile): SheetDoc {
     undo: () => undefined,
     redo: () => undefined,
     transact: refuse,
+    readKeptResults: () => Promise.resolve([]),
+    keepResults: () => undefined,
   }
 }
 
@@ -85,7 +90,7 @@ export function useStaticSheet(file: SheetFile, results: readonly CellResult[], 
     vocabulary: shallowRef(buildVocabulary(null, cells, byId)),
     vocabularyVersion: ref(0),
     focusCard: () => undefined,
-    ops: { move: () => undefined, duplicate: () => undefined, remove: () => undefined, addAfter: () => undefined, edit: () => undefined },
+    ops: { move: () => undefined, duplicate: () => undefined, remove: () => undefined, addAfter: () => undefined, edit: () => undefined, replaceData: () => undefined, downloadCsv: () => undefined },
     cellAddon: options.cellAddon,
   }
   onScopeDispose(() => {

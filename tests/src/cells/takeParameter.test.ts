@@ -30,7 +30,7 @@ describe('parameterFromFit(fit, output, target, cells)', () => {
     const step = parameterFromFit(tauc, out, undefined, [{ id: 'a', kind: 'parameter', name: 'Eg_edge', value: 1 }])
     if (!step.ok || !step.cell) throw new Error('expected a new cell')
     expect(step.cell).toMatchObject({ kind: 'parameter', name: 'Eg_edge_2', value: 1.4812, unit: 'eV' })
-    expect(step.cell.description).toBe('Eg = 1.4812 ± 0.0021 eV from the fit edge, window 1.55–1.9')
+    expect((step.cell as { description?: string }).description).toBe('Eg = 1.4812 ± 0.0021 eV from the fit edge, window 1.55–1.9')
   })
   it('parameterFromFit converts into an existing parameter\'s unit (1.4812 eV = 1481.2 meV)', () => {
     const target: ParameterCell = { kind: 'parameter', name: 'Eg0', value: 1500, unit: 'meV' }
