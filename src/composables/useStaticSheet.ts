@@ -46,8 +46,8 @@ function staticDoc(file: SheetFile): SheetDoc {
     connection: ref('offline'),
     synced: ref(true),
     closedReason: ref(''),
-    accessLost: ref(false),
     denied: ref(''),
+    accessLost: ref(false),
     canUndo: ref(false),
     canRedo: ref(false),
     origin,
@@ -57,8 +57,6 @@ function staticDoc(file: SheetFile): SheetDoc {
     insertCell: () => null,
     insertCells: () => null,
     setFieldsStep: refuse,
-    readKeptResults: async () => [],
-    keepResults: () => undefined,
     deleteCell: refuse,
     moveCell: refuse,
     duplicateCell: () => null,
@@ -67,6 +65,8 @@ function staticDoc(file: SheetFile): SheetDoc {
     undo: () => undefined,
     redo: () => undefined,
     transact: refuse,
+    readKeptResults: () => Promise.resolve([]),
+    keepResults: () => undefined,
   }
 }
 
@@ -90,15 +90,7 @@ export function useStaticSheet(file: SheetFile, results: readonly CellResult[], 
     vocabulary: shallowRef(buildVocabulary(null, cells, byId)),
     vocabularyVersion: ref(0),
     focusCard: () => undefined,
-    ops: {
-      move: () => undefined,
-      duplicate: () => undefined,
-      remove: () => undefined,
-      addAfter: () => undefined,
-      edit: () => undefined,
-      replaceData: () => undefined,
-      downloadCsv: () => undefined,
-    },
+    ops: { move: () => undefined, duplicate: () => undefined, remove: () => undefined, addAfter: () => undefined, edit: () => undefined, replaceData: () => undefined, downloadCsv: () => undefined },
     cellAddon: options.cellAddon,
   }
   onScopeDispose(() => {
