@@ -14,6 +14,7 @@ import { authRoutes } from './routes/auth'
 import { labRoutes } from './routes/labs'
 import { invitationRoutes } from './routes/invitations'
 import { sheetRoutes } from './routes/sheets'
+import { datasetRoutes } from './routes/datasets'
 import { EVALUATE_PATH, evaluateRoutes } from './routes/evaluate'
 import { devMailRoutes } from './routes/devMail'
 import { guestHeaders, snapshotRoutes } from './routes/snapshots'
@@ -80,7 +81,10 @@ export function createApp(deps: AppDeps): Express {
   api.use('/guest', snap.guest)
   api.use('/labs', labRoutes(deps))
   api.use('/invitations', invitationRoutes(deps))
+  const { sheetDatasets, datasets } = datasetRoutes(deps)
+  api.use('/sheets', sheetDatasets)
   api.use('/sheets', sheets)
+  api.use('/datasets', datasets)
   api.use('/evaluate', evaluateRoutes(config))
   api.use(notFoundHandler)
   app.use('/api', api)

@@ -40,8 +40,20 @@ export interface ServerEnv {
   DEV_SMTP_PORT?: string
 }
 
+/**
+ * The address the server listens on: HOST when set (e.g. `0.0.0.0` to let the lab's other machines in); otherwise
+ * every interface in production, and only this machine (127.0.0.1) outside it, so a development server with its
+ * mailbox of sign-in links is not reachable from the network by accident.
+ */
+export function listenHost(env: Pick<ServerEnv, 'HOST' | 'NODE_ENV'>): string | undefined {
+  if (env.HOST) return env.HOST
+  return env.NODE_ENV === 'production' ? undefined : '127.0.0.1'
+}
+
 export interface RunningServer {
   url: string
+  /** The address listened on (see listenHost). */
+  host: string
   /** The demo lab's guest link while it is usable (printed at start), else null. */
   demoGuestUrl: string | null
   port: number
@@ -120,6 +132,7 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
   const hooks: AppHooks = {
     membershipChanged: (labId, userId) => collab.membershipChanged(labId, userId),
     sheetDeleted: (sheetId) => collab.sheetDeleted(sheetId),
+    sessionsEnded: (userId) => collab.sessionsEnded(userId),
   }
   const app = createApp({ db: handle.db, secret, mailer, config, hooks })
   const server = http.createServer(app)
@@ -137,7 +150,7 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
 
   await new Promise<void>((resolve, reject) => {
     server.once('error', reject)
-    server.listen(port, env.HOST, () => {
+    server.listen(port, listenHost(env), () => {
       server.off('error', reject)
       resolve()
     })
@@ -167,7 +180,19 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
       handle.close()
     })())
 
-  return { url, demoGuestUrl: demoGuestUrl(handle.db, secret, config), port: actualPort, dataDir, handle, mailer, config, collab, close }
+  const address = server.address()
+  return {
+    url,
+    host: typeof address === 'object' && address ? address.address : '',
+    demoGuestUrl: demoGuestUrl(handle.db, secret, config),
+    port: actualPort,
+    dataDir,
+    handle,
+    mailer,
+    config,
+    collab,
+    close,
+  }
 }
 
 async function main(): Promise<void> {

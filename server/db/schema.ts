@@ -137,6 +137,31 @@ export const pendingSignups = sqliteTable('pending_signups', {
 })
 
 /**
+ * Measured data uploaded to a lab (the numbers behind spectrum cells). The live document names a dataset by id and
+ * carries only its column metadata; the numbers are here, every column's Float64 values (little-endian) one after
+ * the other in `values`, in the order and with the counts of `columns`. Rows are never changed: replacing a
+ * spectrum's data stores a new dataset, and deleting a cell (or its sheet) leaves the dataset for snapshots.
+ */
+export const datasets = sqliteTable(
+  'datasets',
+  {
+    id: text('id').primaryKey(),
+    labId: text('lab_id').notNull().references(() => labs.id, { onDelete: 'cascade' }),
+    /** The sheet it was uploaded to (null once that sheet is deleted). */
+    sheetId: text('sheet_id').references(() => sheets.id, { onDelete: 'set null' }),
+    name: text('name').notNull(),
+    /** The uploaded file's name, or the spectrum cell's source in an imported sheet file. */
+    sourceName: text('source_name'),
+    uploadedBy: text('uploaded_by').references(() => users.id, { onDelete: 'set null' }),
+    createdAt: createdAt(),
+    /** JSON: [{ name, quantity, unit, count }] in the order of `values`. */
+    columns: text('columns').notNull(),
+    values: blob('values', { mode: 'buffer' }).notNull(),
+  },
+  (t) => [index('datasets_lab_idx').on(t.labId), index('datasets_sheet_idx').on(t.sheetId)],
+)
+
+/**
  * A snapshot: an immutable copy of a sheet with the results the server's engine computed from it. Rows are only ever
  * inserted and (by an owner, when nothing uses them) deleted; no code path updates one.
  * `file` is the canonical sheet file text (sorted keys, datasets inlined) whose SHA-256 is `hash`;

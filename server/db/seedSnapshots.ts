@@ -11,7 +11,7 @@ import type { Db } from './client'
 import { comments, guestLinks, reviewDecisions, reviews, sheets, type Role } from './schema'
 import type { AppConfig } from '../config'
 import { seedDocument, loadSheetFile } from '../services/documents'
-import { freezeSnapshot } from '../services/snapshots'
+import { freezeSnapshot, inProcessEvaluator } from '../services/snapshots'
 import { createGuestLink, guestLinkState, guestUrl } from '../services/guestLinks'
 import { hashToken, newId } from '../services/tokens'
 import type { SheetFile } from '../../shared/schema/sheet'
@@ -56,11 +56,11 @@ export async function seedSnapshotDemo(
   // first version: the Tauc window started inside the Urbach tail
   const first = structuredClone(final)
   const tauc = (first.cells as Record<string, unknown>[]).find((c) => c.id === 'h17-tauc')
-  if (tauc) tauc.from = 1.52
+  if (tauc) tauc.from = 1.48
   seedDocument(db, sheet.id, first as SheetFile)
-  const s1 = await freezeSnapshot(deps, sheet, users.editor, 'First edge model, as measured after the 450 °C anneal', { now: now - 3 * DAY })
+  const s1 = await freezeSnapshot(deps, sheet, users.editor, 'First edge model, as measured after the 450 °C anneal', { now: now - 3 * DAY, evaluator: inProcessEvaluator })
   seedDocument(db, sheet.id, final as SheetFile)
-  const s2 = await freezeSnapshot(deps, sheet, users.editor, 'Tauc window moved above the tail (1.62–1.85 eV)', { now: now - 1 * DAY })
+  const s2 = await freezeSnapshot(deps, sheet, users.editor, 'Tauc window moved above the tail (1.62–1.85 eV)', { now: now - 1 * DAY, evaluator: inProcessEvaluator })
 
   const review = (snapshotId: string, requestedBy: string, note: string, at: number, decisions: { reviewerId: string; hash: string; decision: 'approved' | 'changes-requested' | null; note: string | null; at: number }[]) => {
     const id = newId()
@@ -72,7 +72,7 @@ export async function seedSnapshotDemo(
     return id
   }
   review(s1.id, users.editor, 'Could you check the band gap before I send it to Mira?', now - 3 * DAY + HOUR, [
-    { reviewerId: users.reviewer, hash: s1.hash, decision: 'changes-requested', note: 'The Tauc window starts at 1.52 eV, inside the Urbach tail; start it above the tail.', at: now - 2 * DAY },
+    { reviewerId: users.reviewer, hash: s1.hash, decision: 'changes-requested', note: 'The Tauc window starts at 1.48 eV, inside the Urbach tail (fitted up to 1.50 eV); start it above the tail.', at: now - 2 * DAY },
   ])
   review(s2.id, users.editor, 'Window moved as you suggested.', now - 1 * DAY + HOUR, [
     { reviewerId: users.reviewer, hash: s2.hash, decision: 'approved', note: 'Eg now agrees with the edge model within its error. Approved.', at: now - 12 * HOUR },
@@ -80,7 +80,7 @@ export async function seedSnapshotDemo(
   if (lab.otherSheetId) {
     const other = db.select().from(sheets).where(eq(sheets.id, lab.otherSheetId)).get()
     if (other) {
-      const s3 = await freezeSnapshot(deps, other, users.owner, 'Thickness study for the proposal draft', { now: now - 6 * HOUR })
+      const s3 = await freezeSnapshot(deps, other, users.owner, 'Thickness study for the proposal draft', { now: now - 6 * HOUR, evaluator: inProcessEvaluator })
       db.insert(reviews).values({ id: newId(), snapshotId: s3.id, sheetId: other.id, labId: lab.labId, requestedBy: users.owner, note: 'Does 1 µm absorb enough for the proposal?', createdAt: now - 5 * HOUR }).run()
       const reviewId = db.select({ id: reviews.id }).from(reviews).where(eq(reviews.snapshotId, s3.id)).get()!.id
       db.insert(reviewDecisions).values({ reviewId, reviewerId: users.reviewer }).run()
@@ -91,8 +91,8 @@ export async function seedSnapshotDemo(
   const thread = newId()
   const comment = (id: string, parentId: string | null, authorId: string, text: string, at: number, resolved = false) =>
     db.insert(comments).values({ id, sheetId: sheet.id, labId: lab.labId, cellId: 'h17-tauc', snapshotId: s1.id, parentId, text, authorId, resolved, resolvedBy: resolved ? users.editor : null, createdAt: at, updatedAt: at }).run()
-  comment(thread, null, users.reviewer, '@tomas the fit window starts at 1.52 eV, where the tail still bends the Tauc plot. Is that on purpose?', now - 2 * DAY - HOUR, true)
-  comment(newId(), thread, users.editor, 'No — moved it to 1.62 eV in the next snapshot. Eg went up by about 3 meV.', now - 1 * DAY - HOUR)
+  comment(thread, null, users.reviewer, '@tomas the fit window starts at 1.48 eV, where the tail still bends the Tauc plot. Is that on purpose?', now - 2 * DAY - HOUR, true)
+  comment(newId(), thread, users.editor, 'No — moved it to 1.62 eV in the next snapshot. Eg went up by about 8 meV (1.512 → 1.520 eV).', now - 1 * DAY - HOUR)
 
   const link = createGuestLink(deps, s2, users.owner, { expiresInDays: 90, note: DEMO_GUEST_NOTE, token: demoGuestToken(secret), now })
   return { snapshots: [s1.id, s2.id], guestUrl: link.url }

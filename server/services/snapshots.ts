@@ -13,12 +13,13 @@ import { guestLinks, reviews, snapshots, users } from '../db/schema'
 import { docToSheetFile, newCellId } from '../../shared/doc/sheetDoc'
 import { canonicalJson, SNAPSHOT_MEMBER } from '../../shared/snapshot/canonical'
 import { parseSheetFile, withCellIds, type DatasetColumn, type SheetFile } from '../../shared/schema/sheet'
-import type { EvaluationResult } from '../../shared/schema/result'
 import { shortHash, type SnapshotDetail, type SnapshotSummary } from '../../shared/schema/api'
 import { conflict, HttpError } from '../errors'
 import type { SheetRow } from '../types'
 import { loadDocument } from './documents'
-import { sharedEvaluator, type SheetEvaluator } from './evaluation'
+import { sharedEvaluator, type Evaluator } from './evaluation'
+import { ENGINE_VERSION, evaluateSheet } from '../../shared/engine/index'
+import { parseSheetFileText } from '../../shared/schema/sheet'
 import { reviewStateOf } from './reviews'
 import { createSheet } from './sheets'
 import { newId } from './tokens'
@@ -44,9 +45,9 @@ export function liveSheetFile(db: Db, sheet: Pick<SheetRow, 'id' | 'labId' | 'ti
 }
 
 /** Evaluates a sheet file's text with the server's engine (the evaluation worker): the result object's JSON text. */
-export async function evaluateOnServer(evaluator: SheetEvaluator, text: string, budgetMs: number): Promise<string> {
+export async function evaluateOnServer(evaluator: Evaluator, text: string, budgetMs: number): Promise<string> {
   const outcome = await evaluator.evaluate(text, budgetMs)
-  if (outcome.ok) return new TextDecoder().decode(outcome.json)
+  if (outcome.ok) return Buffer.from(outcome.json.buffer, outcome.json.byteOffset, outcome.json.byteLength).toString('utf8')
   switch (outcome.reason) {
     case 'invalid':
       throw new HttpError(422, `The sheet cannot be evaluated as it is: ${outcome.issues.map((i) => `${i.path || '(sheet)'} ${i.message}`).join('; ')}. Fix it and freeze again.`)
@@ -62,8 +63,20 @@ export async function evaluateOnServer(evaluator: SheetEvaluator, text: string, 
   }
 }
 
+/**
+ * The same parse and engine as the evaluation worker, on the calling thread and without its time budget: for the
+ * demo seed at start, where starting a worker thread costs more than the sheets it evaluates.
+ */
+export const inProcessEvaluator: Evaluator = {
+  evaluate(text) {
+    const parsed = parseSheetFileText(text)
+    if (!parsed.ok) return Promise.resolve({ ok: false, reason: 'invalid', issues: parsed.issues })
+    return Promise.resolve({ ok: true, json: new TextEncoder().encode(JSON.stringify(evaluateSheet(parsed.value))) })
+  },
+}
+
 export interface FreezeOptions {
-  evaluator?: SheetEvaluator
+  evaluator?: Evaluator
   now?: number
 }
 
@@ -74,7 +87,8 @@ export async function freezeSnapshot(deps: { db: Db; config: Pick<AppConfig, 'ev
   const file = canonicalJson(liveSheetFile(deps.db, sheet, doc))
   doc.destroy()
   const results = await evaluateOnServer(options.evaluator ?? sharedEvaluator(), file, deps.config.evaluate.budgetMs)
-  const engineVersion = (JSON.parse(results) as EvaluationResult).engine ?? 'unknown'
+  // the worker runs this build's engine; its version is the last member of the result object
+  const engineVersion = /"engine":"([^"]*)"\}$/.exec(results)?.[1] ?? ENGINE_VERSION
   const row: SnapshotRow = {
     id: newId(),
     sheetId: sheet.id,

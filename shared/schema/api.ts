@@ -14,6 +14,7 @@
  * - The session is an httpOnly cookie (`penumbra_session`); the client never reads it.
  */
 import { z } from 'zod'
+import { IDENTIFIER, SPECTRUM_QUANTITIES } from './sheet'
 
 /** Lab roles, most powerful first (DESIGN §2). Kept in step with server/db/schema.ts. */
 export const LAB_ROLES = ['owner', 'editor', 'reviewer', 'viewer'] as const
@@ -304,6 +305,7 @@ export const cellResultSchema = z
     status: z.enum(['ok', 'error', 'blocked']),
     value: z.unknown().optional(),
     unit: z.string().optional(),
+    units: z.record(z.string(), z.string()).optional(),
     dimension: z.string().optional(),
     warnings: z.array(z.string()).optional(),
     error: z.string().optional(),
@@ -331,6 +333,74 @@ export type DevMail = z.infer<typeof devMailSchema>
 /** GET /dev/mail.json → 200, newest first. GET /dev/mail is the same list as an HTML page. */
 export const devMailReply = z.object({ messages: z.array(devMailSchema) })
 export type DevMailReply = z.infer<typeof devMailReply>
+
+// ---------------------------------------------------------------------------------------------------------------
+// datasets (measured spectra)
+
+const quantityCode = z.enum(SPECTRUM_QUANTITIES)
+
+/**
+ * The `options` field of POST /api/sheets/:sheetId/datasets(/preview): the confirmed mapping (which columns, their
+ * names, quantities and units; which sample) and what to do with duplicate x and empty cells.
+ */
+export const datasetImportOptions = z.object({
+  columns: z
+    .array(z.object({
+      key: z.string().max(16),
+      name: z.string().regex(IDENTIFIER, 'must start with a letter and use only letters, digits and _').max(64).optional(),
+      quantity: quantityCode.optional(),
+      unit: z.string().max(64).optional(),
+    }))
+    .max(200)
+    .optional(),
+  sample: z.string().max(200).optional(),
+  /** The spectrum's name (the cell's name in formulas); default from the file name. */
+  name: z.string().regex(IDENTIFIER, 'must start with a letter and use only letters, digits and _').max(64).optional(),
+  averageDuplicates: z.boolean().optional(),
+  dropEmptyRows: z.boolean().optional(),
+})
+export type DatasetImportOptions = z.infer<typeof datasetImportOptions>
+
+const nullableNumbers = z.array(z.number().nullable())
+
+export const datasetPreviewReply = z.object({
+  columns: z.array(z.object({
+    key: z.string(), label: z.string(), quantity: quantityCode, unit: z.string(), guessed: z.boolean(), note: z.string(),
+    count: z.number(), min: z.number().nullable(), max: z.number().nullable(),
+  })),
+  samples: z.array(z.object({ key: z.string(), name: z.string(), columns: z.array(z.string()) })),
+  /** The first rows of the numbers (null for an empty cell). */
+  rows: z.array(nullableNumbers),
+  warnings: z.array(z.string()),
+  dialect: z.object({ separator: z.string(), decimal: z.string(), encoding: z.string(), firstLine: z.number(), headerLine: z.number().optional() }),
+  /** Every column thinned to at most a few hundred points, by key, for the preview's plot. */
+  plot: z.record(z.string(), nullableNumbers),
+  /** A name for the spectrum, from the file name. */
+  name: z.string(),
+  /** The mapping's problem, when the guesses cannot be imported as they are (duplicate x, empty cells …). */
+  problem: z.object({ error: z.string(), issues: z.array(issueSchema), offer: z.enum(['averageDuplicates', 'dropEmptyRows']).optional() }).optional(),
+})
+export type DatasetPreview = z.infer<typeof datasetPreviewReply>
+export type DatasetPreviewColumn = DatasetPreview['columns'][number]
+
+export const datasetCreatedReply = z.object({
+  id: z.string(),
+  name: z.string(),
+  source: z.string(),
+  sample: z.string(),
+  columns: z.array(z.object({ name: z.string(), quantity: z.string(), unit: z.string(), count: z.number(), min: z.number().optional(), max: z.number().optional() })),
+  warnings: z.array(z.string()),
+})
+export type DatasetCreated = z.infer<typeof datasetCreatedReply>
+
+export const datasetReply = z.object({
+  id: z.string(),
+  name: z.string(),
+  source: z.string().nullable(),
+  createdAt: z.number(),
+  columns: z.array(z.object({ name: z.string(), quantity: z.string().optional(), unit: z.string(), values: nullableNumbers })),
+})
+export type DatasetReply = z.infer<typeof datasetReply>
 
 // ---------------------------------------------------------------------------------------------------------------
 // snapshots (DESIGN §11 item 5)

@@ -64,6 +64,14 @@ export const router = createRouter({
 
 router.beforeEach(async (to): Promise<RouteLocationRaw | true> => {
   const session = useSessionStore()
+  // the page's code loads while the session is checked, not after (the router fetches lazy views only once the
+  // guards have answered; the module cache makes its own import reuse this one)
+  for (const record of to.matched) {
+    const view = record.components?.default
+    // a lazy view is a bare loader function; a component written as a function carries props or a name (vue-router's own test)
+    if (typeof view === 'function' && !('props' in view) && !('displayName' in view) && !('__vccOpts' in view))
+      void (view as () => Promise<unknown>)().catch(() => undefined)
+  }
   await session.ensureLoaded()
   const access = to.meta.access ?? 'signed-in'
   if (access === 'signed-in' && !session.signedIn)

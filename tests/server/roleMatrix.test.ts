@@ -8,8 +8,14 @@ import { CALLERS, call, makeTestApp, seedLab, type Caller, type SeededLab, type 
 import { requestReset, requestSignUp } from '../../server/services/accounts'
 import { createInvitation } from '../../server/services/invitations'
 import { labById } from '../../server/services/labs'
+import { storeDataset } from '../../server/services/datasets'
 import { createSheet } from '../../server/services/sheets'
+import { loadSheetFile } from '../../server/services/documents'
 import { freezeSnapshot } from '../../server/services/snapshots'
+
+/** A small instrument export (invented values) for the upload routes. */
+const CSV = 'Wavelength (nm),%T\n400,80\n410,81\n420,82\n'
+const upload = (c: Ctx, path: string) => call(c.t, c.lab.cookie(c.caller)).post(path).attach('file', Buffer.from(CSV), 'filmB.csv')
 import { createReview } from '../../server/services/reviews'
 import { createComment } from '../../server/services/comments'
 import { createGuestLink, revokeGuestLink, guestLinkById } from '../../server/services/guestLinks'
@@ -34,6 +40,10 @@ interface Ctx {
   confirmToken: string
   invitationToken: string
   invitationId: string
+  /** A dataset of the lab, and a sheet with a spectrum cell whose CSV can be downloaded. */
+  datasetId: string
+  csvSheetId: string
+  csvCellId: string
 }
 
 type Send = (c: Ctx) => PromiseLike<{ status: number; body: unknown }>
@@ -66,8 +76,9 @@ const ROUTES: { route: string; send: Send; expect: Expect }[] = [
   { route: 'POST /api/labs/:labId/invitations', send: (c) => call(c.t, c.lab.cookie(c.caller)).post(`/api/labs/${c.lab.labId}/invitations`, { email: 'postdoc@elsewhere.example', role: 'editor' }), expect: [201, 403, 403, 403, 404, 401] },
   { route: 'DELETE /api/labs/:labId/invitations/:invitationId', send: (c) => call(c.t, c.lab.cookie(c.caller)).del(`/api/labs/${c.lab.labId}/invitations/${c.invitationId}`), expect: [204, 403, 403, 403, 404, 401] },
   { route: 'GET /api/invitations/:token', send: (c) => call(c.t, c.lab.cookie(c.caller)).get(`/api/invitations/${c.invitationToken}`), expect: [200, 200, 200, 200, 200, 200] },
-  // members are already in; the outsider joins with their account; anonymous creates the invited address's account
-  { route: 'POST /api/invitations/:token/accept', send: (c) => call(c.t, c.lab.cookie(c.caller)).post(`/api/invitations/${c.invitationToken}/accept`, { name: 'Invited Person', password: 'invited person password' }), expect: [409, 409, 409, 409, 200, 200] },
+  // members' accounts are not the invited address (refused); the outsider, invited, joins with their account;
+  // anonymous creates the invited address's account
+  { route: 'POST /api/invitations/:token/accept', send: (c) => call(c.t, c.lab.cookie(c.caller)).post(`/api/invitations/${c.invitationToken}/accept`, { name: 'Invited Person', password: 'invited person password' }), expect: [403, 403, 403, 403, 200, 200] },
   { route: 'GET /api/labs/:labId/sheets', send: (c) => call(c.t, c.lab.cookie(c.caller)).get(`/api/labs/${c.lab.labId}/sheets`), expect: [200, 200, 200, 200, 404, 401] },
   { route: 'POST /api/labs/:labId/sheets {title}', send: (c) => call(c.t, c.lab.cookie(c.caller)).post(`/api/labs/${c.lab.labId}/sheets`, { title: 'New sheet' }), expect: [201, 201, 403, 403, 404, 401] },
   { route: 'POST /api/labs/:labId/sheets <sheet file>', send: (c) => call(c.t, c.lab.cookie(c.caller)).post(`/api/labs/${c.lab.labId}/sheets`, SHEET_FILE), expect: [201, 201, 403, 403, 404, 401] },
@@ -77,6 +88,11 @@ const ROUTES: { route: string; send: Send; expect: Expect }[] = [
   { route: 'DELETE /api/sheets/:sheetId (made by the editor)', send: (c) => call(c.t, c.lab.cookie(c.caller)).del(`/api/sheets/${c.lab.editorSheetId}`), expect: [204, 204, 403, 403, 404, 401] },
   { route: 'DELETE /api/sheets/:sheetId (made by the owner)', send: (c) => call(c.t, c.lab.cookie(c.caller)).del(`/api/sheets/${c.lab.ownerSheetId}`), expect: [204, 403, 403, 403, 404, 401] },
   { route: 'GET /api/sheets/:sheetId/file', send: (c) => call(c.t, c.lab.cookie(c.caller)).get(`/api/sheets/${c.lab.editorSheetId}/file`), expect: [200, 200, 200, 200, 404, 401] },
+  { route: 'POST /api/sheets/:sheetId/datasets/preview', send: (c) => upload(c, `/api/sheets/${c.lab.editorSheetId}/datasets/preview`), expect: [200, 200, 403, 403, 404, 401] },
+  { route: 'POST /api/sheets/:sheetId/datasets', send: (c) => upload(c, `/api/sheets/${c.lab.editorSheetId}/datasets`), expect: [201, 201, 403, 403, 404, 401] },
+  { route: 'GET /api/datasets/:datasetId', send: (c) => call(c.t, c.lab.cookie(c.caller)).get(`/api/datasets/${c.datasetId}`), expect: [200, 200, 200, 200, 404, 401] },
+  { route: 'GET /api/datasets/:unknownDataset', send: (c) => call(c.t, c.lab.cookie(c.caller)).get('/api/datasets/no-such-dataset'), expect: [404, 404, 404, 404, 404, 401] },
+  { route: 'GET /api/sheets/:sheetId/cells/:cellId/csv', send: (c) => call(c.t, c.lab.cookie(c.caller)).get(`/api/sheets/${c.csvSheetId}/cells/${c.csvCellId}/csv`), expect: [200, 200, 200, 200, 404, 401] },
   { route: 'POST /api/evaluate', send: (c) => call(c.t, c.lab.cookie(c.caller)).post('/api/evaluate', SHEET_FILE), expect: [200, 200, 200, 200, 200, 401] },
   { route: 'GET /dev/mail.json', send: (c) => call(c.t, c.lab.cookie(c.caller)).get('/dev/mail.json'), expect: [200, 200, 200, 200, 200, 200] },
 ]
@@ -92,7 +108,16 @@ async function context(caller: Caller): Promise<Ctx> {
   const invitedEmail = caller === 'anonymous' ? 'brand-new@elsewhere.example' : caller === 'outsider' ? lab.users.outsider.email : 'member-invited@elsewhere.example'
   const invitation = createInvitation(t.deps, labById(t.deps, lab.labId)!, lab.users.owner, invitedEmail, 'viewer')
   const invitationToken = t.mailer.tokenFor(invitedEmail, '/invitations/')
-  return { t, lab, caller, resetToken, confirmToken, invitationToken, invitationId: invitation.id }
+  const datasetId = storeDataset(t.db, {
+    labId: lab.labId, sheetId: lab.editorSheetId, name: 'filmB', uploadedBy: lab.users.editor.id,
+    columns: [{ name: 'wavelength', quantity: 'wavelength', unit: 'nm', values: [400, 410] }, { name: 'T', quantity: 'T', unit: '%', values: [80, 81] }],
+  })
+  const csvSheet = createSheet(t.deps, lab.labId, lab.users.editor.id, {
+    format: 'penumbra.sheet', version: 1, title: 'Film B',
+    cells: [{ kind: 'spectrum', name: 'filmB', columns: { wavelength: { unit: 'nm', values: [400, 410] }, T: { unit: '%', values: [80, 81] } } }],
+  })
+  const csvCellId = loadSheetFile(t.db, csvSheet.id).cells[0].id
+  return { t, lab, caller, resetToken, confirmToken, invitationToken, invitationId: invitation.id, datasetId, csvSheetId: csvSheet.id, csvCellId }
 }
 
 describe('role matrix', () => {

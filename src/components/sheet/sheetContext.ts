@@ -31,6 +31,10 @@ export interface CellOps {
   addAfter: (cellId: string | null) => void
   /** Puts focus in the cell's main field (its formula, value or text). */
   edit: (cellId: string) => void
+  /** Opens the measured-data import to replace a spectrum cell's data. */
+  replaceData: (cellId: string) => void
+  /** Downloads the cell's series or table as CSV (readers too). */
+  downloadCsv: (cellId: string) => void
 }
 
 export const SHEET_CONTEXT: InjectionKey<SheetContext> = Symbol('penumbra-sheet')
