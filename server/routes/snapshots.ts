@@ -11,7 +11,7 @@
  *   /api/guest/:token                  GET the one snapshot, no session
  * No route changes a snapshot.
  */
-import { Router, type Response } from 'express'
+import { Router, type Request, type Response } from 'express'
 import type { AppDeps } from '../deps'
 import { requireUser } from '../middleware/auth'
 import { allowRoles, loadLab, loadSheet, loadSnapshot } from '../middleware/roles'
@@ -26,7 +26,7 @@ import { createReview, decideReview, reviewById, reviewQueue, reviewReply, snaps
 import { commentById, createComment, listComments, setResolved } from '../services/comments'
 import { subscribeComments } from '../services/commentEvents'
 import { createGuestLink, guestLinkById, guestSnapshot, listGuestLinks, openGuestLink, revokeGuestLink } from '../services/guestLinks'
-import { cellCsv } from '../services/seriesCsv'
+import { snapshotCellCsv } from '../services/seriesCsv'
 import { sharedEvaluator } from '../services/evaluation'
 import { sheetReply } from '../services/sheets'
 import { contentDisposition } from '../services/sheets'
@@ -50,9 +50,14 @@ export function guestHeaders(res: Response): void {
   res.set('Referrer-Policy', 'no-referrer')
 }
 
-function sendCsv(res: Response, name: string, csv: string): void {
+/** `?with=a,b`: further series on the same grid as the cell's (as the live sheet's CSV route takes them). */
+function extraSeries(query: Request['query']): string[] {
+  return typeof query.with === 'string' && query.with ? query.with.split(',').map((s) => s.trim()).filter(Boolean).slice(0, 20) : []
+}
+
+function sendCsv(res: Response, { fileName, csv }: { fileName: string; csv: string }): void {
   res.set('Content-Type', 'text/csv; charset=utf-8')
-  res.set('Content-Disposition', contentDisposition(`${name}.csv`))
+  res.set('Content-Disposition', contentDisposition(fileName))
   res.send(csv)
 }
 
@@ -121,8 +126,7 @@ export function snapshotRoutes(deps: AppDeps) {
     res.send(snapshotFileText(db, req.snapshot!))
   })
   snapshots.get('/:snapshotId/cells/:cellId/csv', snapshot, (req, res) => {
-    const { name, csv } = cellCsv(JSON.parse(req.snapshot!.results) as EvaluationResult, String(req.params.cellId))
-    sendCsv(res, name, csv)
+    sendCsv(res, snapshotCellCsv(req.snapshot!, String(req.params.cellId), extraSeries(req.query)))
   })
   snapshots.get('/:snapshotId/compare/:other', snapshot, async (req, res) => {
     const a = req.snapshot!
@@ -226,8 +230,7 @@ export function snapshotRoutes(deps: AppDeps) {
   })
   guest.get('/:token/cells/:cellId/csv', tokenLimit, (req, res) => {
     const { snapshot: snap } = openGuestLink(db, String(req.params.token))
-    const { name, csv } = cellCsv(JSON.parse(snap.results) as EvaluationResult, String(req.params.cellId))
-    sendCsv(res, name, csv)
+    sendCsv(res, snapshotCellCsv(snap, String(req.params.cellId), extraSeries(req.query)))
   })
 
   return { sheetScoped, snapshots, reviews, labReviews, comments: commentsRouter, links, guest }

@@ -12,11 +12,12 @@ import type { Db } from '../db/client'
 import { guestLinks, reviews, snapshots, users } from '../db/schema'
 import { docToSheetFile, newCellId } from '../../shared/doc/sheetDoc'
 import { canonicalJson, SNAPSHOT_MEMBER } from '../../shared/snapshot/canonical'
-import { parseSheetFile, withCellIds, type DatasetColumn, type SheetFile } from '../../shared/schema/sheet'
+import { parseSheetFile, withCellIds, type SheetFile } from '../../shared/schema/sheet'
 import { shortHash, type SnapshotDetail, type SnapshotSummary } from '../../shared/schema/api'
 import { conflict, HttpError } from '../errors'
 import type { SheetRow } from '../types'
 import { loadDocument } from './documents'
+import { inlineDatasets } from './datasets'
 import { sharedEvaluator, type Evaluator } from './evaluation'
 import { ENGINE_VERSION, evaluateSheet } from '../../shared/engine/index'
 import { parseSheetFileText } from '../../shared/schema/sheet'
@@ -31,17 +32,11 @@ export function sha256Hex(text: string): string {
 }
 
 /**
- * The seam for stored datasets: the columns of a dataset a spectrum cell points at (`datasetId`), so a snapshot's
- * file stands alone. Until datasets live in SQLite, spectrum cells carry their columns in the document and this
- * finds nothing (the cell's own columns are kept).
+ * The sheet file a document holds now, titled as the sheet is, with its stored datasets' numbers written into the
+ * spectrum cells (services/datasets.ts), so a snapshot's file stands alone.
  */
-export function datasetColumnsFor(_db: Db, _labId: string): (datasetId: string) => Record<string, DatasetColumn> | undefined {
-  return () => undefined
-}
-
-/** The sheet file a document holds now, titled as the sheet is, datasets inlined. */
 export function liveSheetFile(db: Db, sheet: Pick<SheetRow, 'id' | 'labId' | 'title'>, doc: Y.Doc = loadDocument(db, sheet.id)): SheetFile {
-  return { ...docToSheetFile(doc, { datasetColumns: datasetColumnsFor(db, sheet.labId) }), title: sheet.title }
+  return inlineDatasets(db, { ...docToSheetFile(doc), title: sheet.title }, sheet.labId)
 }
 
 /** Evaluates a sheet file's text with the server's engine (the evaluation worker): the result object's JSON text. */

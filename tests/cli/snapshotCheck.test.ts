@@ -85,7 +85,7 @@ describe('npm run evaluate -- <snapshot file> --check', () => {
     expect(r.status).toBe(1)
     expect(r.stdout).toContain('cell lambda_g: value: stored')
     expect(r.stdout).not.toContain('hash')
-  })
+  }, 120_000)
 
   it('exits 1 naming the changed hash and every cell downstream of an edited parameter', () => {
     const e = exported.find((x) => x.title.includes('H-17'))!
@@ -97,7 +97,7 @@ describe('npm run evaluate -- <snapshot file> --check', () => {
     expect(r.status).toBe(1)
     expect(r.stdout).toMatch(/the sheet differs from the one frozen: its hash is [0-9a-f]{10}/)
     expect(r.stdout).toContain('cell d: value: stored 900, recomputed 950')
-  })
+  }, 120_000)
 
   it('exits 2 for a sheet file without a snapshot member, and for a file that is not JSON', () => {
     const plain = cli([path.join(EXAMPLES_DIR, 'edge-model.penumbra.json'), '--check'])
@@ -108,5 +108,5 @@ describe('npm run evaluate -- <snapshot file> --check', () => {
     const r = cli([bad, '--check'])
     expect(r.status).toBe(2)
     expect(r.stderr).toContain('not valid JSON')
-  })
+  }, 120_000)
 })

@@ -126,20 +126,21 @@ describe('DELETE /api/snapshots/:snapshotId', () => {
 })
 
 describe('GET /api/snapshots/:snapshotId/cells/:cellId/csv', () => {
-  it('downloads a formula array as one column with its unit, and answers 404 for a cell without a series', async () => {
+  it('downloads a formula array as one column with its unit, and answers 422 for a cell without a series', async () => {
     const { t, lab, freeze } = await setup()
     const id = await freeze('editor', 'csv')
     const res = await call(t, lab.users.viewer.cookie).get(`/api/snapshots/${id}/cells/f-E/csv`)
     expect(res.status).toBe(200)
     expect(res.headers['content-type']).toMatch(/^text\/csv/)
-    expect(res.headers['content-disposition']).toContain('E.csv')
+    expect(res.headers['content-disposition']).toContain('Film B edge - E.csv')
     const lines = res.text.trim().split('\r\n')
     expect(lines[0]).toBe('E (eV)')
     expect(lines).toHaveLength(62)
     expect(Number(lines[1])).toBeCloseTo(1.2, 12)
     expect(Number(lines[61])).toBeCloseTo(2.4, 12)
     const none = await call(t, lab.users.viewer.cookie).get(`/api/snapshots/${id}/cells/n-1/csv`)
-    expect(none.status).toBe(404)
+    expect(none.status).toBe(422)
+    expect((await call(t, lab.users.viewer.cookie).get(`/api/snapshots/${id}/cells/no-such-cell/csv`)).status).toBe(404)
     t.close()
   })
 })
@@ -181,8 +182,36 @@ describe('GET /api/guest/:token', () => {
     expect(shown.hash).not.toBe(undefined)
     expect(text.includes(snapshotB.id)).toBe(false)
     // the token is no session: snapshot B, the lab, its sheets and its datasets stay closed
-    for (const path of [`/api/snapshots/${b}`, `/api/snapshots/${a}`, `/api/labs/${lab.labId}`, `/api/labs/${lab.labId}/sheets`, `/api/labs/${lab.labId}/datasets`, `/api/sheets/${sheetId}/file`])
+    for (const path of [`/api/snapshots/${b}`, `/api/snapshots/${a}`, `/api/labs/${lab.labId}`, `/api/labs/${lab.labId}/sheets`, `/api/sheets/${sheetId}/file`])
       expect((await call(t).get(path).set('Authorization', `Bearer ${token}`)).status).toBe(401)
+    t.close()
+  })
+
+  it('a guest link to one snapshot of a sheet with a stored spectrum cannot read that dataset', async () => {
+    const t = makeTestApp()
+    const lab = await seedLab(t)
+    const { readFileSync } = await import('node:fs')
+    const { parseSheetFileText } = await import('../../shared/schema/sheet')
+    const parsed = parseSheetFileText(readFileSync(new URL('../../examples/edge-model.penumbra.json', import.meta.url), 'utf8'))
+    if (!parsed.ok) throw new Error('example')
+    const sheetId = createSheet(t.deps, lab.labId, lab.users.editor.id, parsed.value).id
+    const snap = await call(t, lab.users.editor.cookie).post(`/api/sheets/${sheetId}/snapshots`, { message: 'x' })
+    const link = await call(t, lab.users.editor.cookie).post(`/api/snapshots/${snap.body.id}/guest-links`, { expiresInDays: 1 })
+    const token = link.body.url.split('/').pop()
+    const shown = (await call(t).get(`/api/guest/${token}`)).body
+    const datasetId = shown.file.cells.find((c: { name?: string }) => c.name === 'filmH17').datasetId
+    expect(datasetId).toEqual(expect.any(String))
+    expect((await call(t).get(`/api/datasets/${datasetId}`).set('Authorization', `Bearer ${token}`)).status).toBe(401)
+    expect((await call(t, lab.users.viewer.cookie).get(`/api/datasets/${datasetId}`)).status).toBe(200)
+    t.close()
+  })
+
+  it('counts each view of a guest link', async () => {
+    const { t, lab, freeze } = await setup()
+    const a = await freeze('editor', 'for the referee')
+    const made = await call(t, lab.users.owner.cookie).post(`/api/snapshots/${a}/guest-links`, { expiresInDays: 14, note: 'Referee copy' })
+    const token = made.body.url.split('/').pop()
+    await call(t).get(`/api/guest/${token}`)
     const list = await call(t, lab.users.viewer.cookie).get(`/api/snapshots/${a}/guest-links`)
     expect(list.body.links[0]).toMatchObject({ viewCount: 1, state: 'active', note: 'Referee copy' })
     expect(list.body.links[0].lastViewAt).toBeGreaterThan(0)
