@@ -46,6 +46,7 @@ function staticDoc(file: SheetFile): SheetDoc {
     connection: ref('offline'),
     synced: ref(true),
     closedReason: ref(''),
+    accessLost: ref(false),
     denied: ref(''),
     canUndo: ref(false),
     canRedo: ref(false),
@@ -54,6 +55,8 @@ function staticDoc(file: SheetFile): SheetDoc {
     indexOf: (id: string) => cells.toArray().findIndex((m) => m.get('id') === id),
     setFields: refuse,
     insertCell: () => null,
+    insertCells: () => null,
+    setFieldsStep: refuse,
     deleteCell: refuse,
     moveCell: refuse,
     duplicateCell: () => null,
@@ -62,6 +65,8 @@ function staticDoc(file: SheetFile): SheetDoc {
     undo: () => undefined,
     redo: () => undefined,
     transact: refuse,
+    readKeptResults: async () => [],
+    keepResults: () => undefined,
   }
 }
 
@@ -85,7 +90,15 @@ export function useStaticSheet(file: SheetFile, results: readonly { index: numbe
     vocabulary: shallowRef(buildVocabulary(null, cells, byId)),
     vocabularyVersion: ref(0),
     focusCard: () => undefined,
-    ops: { move: () => undefined, duplicate: () => undefined, remove: () => undefined, addAfter: () => undefined, edit: () => undefined },
+    ops: {
+      move: () => undefined,
+      duplicate: () => undefined,
+      remove: () => undefined,
+      addAfter: () => undefined,
+      edit: () => undefined,
+      replaceData: () => undefined,
+      downloadCsv: () => undefined,
+    },
     cellAddon: options.cellAddon,
   }
   onScopeDispose(() => {
