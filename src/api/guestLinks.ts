@@ -1,14 +1,21 @@
 /** Guest links to one snapshot: make, list, revoke; and the guest's own read of a link. */
-import { guestLinkSchema, guestLinksReply, guestReply, type GuestLinkRow, type SnapshotDetail } from '../../shared/schema/review'
+import {
+  guestLinkCreatedReply,
+  guestLinksReply,
+  guestSnapshotReply,
+  type GuestLink,
+  type GuestLinkCreated,
+  type GuestSnapshot,
+} from '../../shared/schema/api'
 import { api, seg } from './client'
 
-export type { GuestLinkRow }
+export type { GuestLink, GuestLinkCreated, GuestSnapshot }
 
-export function makeGuestLink(snapshotId: string, expiresInDays: number, note: string): Promise<GuestLinkRow> {
-  return api.post(`/api/snapshots/${seg(snapshotId)}/guest-links`, { expiresInDays, note }, guestLinkSchema)
+export function makeGuestLink(snapshotId: string, expiresInDays: number, note: string): Promise<GuestLinkCreated> {
+  return api.post(`/api/snapshots/${seg(snapshotId)}/guest-links`, { expiresInDays, note }, guestLinkCreatedReply)
 }
 
-export async function listGuestLinks(snapshotId: string): Promise<GuestLinkRow[]> {
+export async function listGuestLinks(snapshotId: string): Promise<GuestLink[]> {
   return (await api.get(`/api/snapshots/${seg(snapshotId)}/guest-links`, guestLinksReply)).links
 }
 
@@ -17,6 +24,6 @@ export function revokeGuestLink(linkId: string): Promise<void> {
 }
 
 /** The snapshot behind a guest link; an ApiError 410 when the link expired or was revoked. */
-export async function openGuestLink(token: string): Promise<SnapshotDetail> {
-  return (await api.get(`/api/guest/${seg(token)}`, guestReply, { quiet401: true })).snapshot
+export function openGuestLink(token: string): Promise<GuestSnapshot> {
+  return api.get(`/api/guest/${seg(token)}`, guestSnapshotReply, { quiet401: true })
 }

@@ -1,34 +1,57 @@
-/** Snapshots of a sheet: freeze, timeline, one snapshot with its file and stored results, compare, the file download. */
-import { compareReply, snapshotDetail, snapshotSummary, snapshotsReply, type CompareReply, type SnapshotDetail, type SnapshotSummary } from '../../shared/schema/review'
+/** Snapshots of a sheet: freeze, timeline, one snapshot with its file and stored results, compare, downloads, restore. */
 import { z } from 'zod'
-import { evaluationReply, type EvaluationReply } from '../../shared/schema/api'
+import {
+  compareReply,
+  evaluationReply,
+  sheetReply,
+  snapshotReply,
+  snapshotSummarySchema,
+  snapshotsReply,
+  type CompareReply,
+  type EvaluationReply,
+  type Sheet,
+  type SnapshotDetail,
+  type SnapshotSummary,
+} from '../../shared/schema/api'
 import { api, download, seg } from './client'
 
 export type { CompareReply, SnapshotDetail, SnapshotSummary }
 
 export function freezeSnapshot(sheetId: string, message: string): Promise<SnapshotSummary> {
-  return api.post(`/api/sheets/${seg(sheetId)}/snapshots`, { message }, snapshotSummary)
+  return api.post(`/api/sheets/${seg(sheetId)}/snapshots`, { message }, snapshotSummarySchema)
 }
 
-/** The sheet's snapshots, newest first (sorted here too, so the order never depends on the server's). */
+/** The sheet's snapshots, newest first. */
 export async function listSnapshots(sheetId: string): Promise<SnapshotSummary[]> {
-  const { snapshots } = await api.get(`/api/sheets/${seg(sheetId)}/snapshots`, snapshotsReply)
-  return [...snapshots].sort((a, b) => b.createdAt - a.createdAt)
+  return (await api.get(`/api/sheets/${seg(sheetId)}/snapshots`, snapshotsReply)).snapshots
 }
 
 export function getSnapshot(snapshotId: string): Promise<SnapshotDetail> {
-  return api.get(`/api/snapshots/${seg(snapshotId)}`, snapshotDetail)
+  return api.get(`/api/snapshots/${seg(snapshotId)}`, snapshotReply)
 }
 
-/** Compares snapshot `a` with snapshot `b`, or with the live sheet when `b` is `live`. */
+/** Compares snapshot `a` (before) with snapshot `b` (after), or with the live sheet when `b` is `live`. */
 export function compareSnapshots(a: string, b: string | 'live'): Promise<CompareReply> {
   return api.get(`/api/snapshots/${seg(a)}/compare/${seg(b)}`, compareReply)
 }
 
+function safe(text: string): string {
+  return text.replace(/[\\/:*?"<>|]+/g, '_') || 'snapshot'
+}
+
 /** Downloads the snapshot's sheet file (with `snapshot: { hash, results }`, checkable by `npm run evaluate -- --check`). */
-export function downloadSnapshotFile(snapshot: { id: string; hash: string }, title: string): Promise<string> {
-  const safe = title.replace(/[\\/:*?"<>|]+/g, '_') || 'snapshot'
-  return download(`/api/snapshots/${seg(snapshot.id)}/file`, `${safe}-${snapshot.hash.slice(0, 8)}.penumbra.json`)
+export function downloadSnapshotFile(snapshot: { id: string; hash: string; title: string }): Promise<string> {
+  return download(`/api/snapshots/${seg(snapshot.id)}/file`, `${safe(snapshot.title)}-${snapshot.hash.slice(0, 10)}.penumbra.json`)
+}
+
+/** Downloads one cell's series of a snapshot as CSV (an array, a spectrum's columns, a sweep's table, a fit's residuals). */
+export function downloadSeriesCsv(snapshot: { id: string; hash: string }, cell: { id: string; name?: string }): Promise<string> {
+  return download(`/api/snapshots/${seg(snapshot.id)}/cells/${seg(cell.id)}/csv`, `${safe(cell.name ?? 'series')}-${snapshot.hash.slice(0, 10)}.csv`)
+}
+
+/** Makes a new sheet in the same lab from the snapshot's file. */
+export function restoreIntoNewSheet(snapshotId: string, title?: string): Promise<Sheet> {
+  return api.post(`/api/snapshots/${seg(snapshotId)}/restore`, title ? { into: 'new', title } : { into: 'new' }, sheetReply)
 }
 
 const fileReply = z.looseObject({ cells: z.array(z.unknown()) })

@@ -18,7 +18,6 @@ export function useLabMembers(labId: Ref<string | null | undefined>) {
     },
     { immediate: true },
   )
-  const names = computed<ReadonlyMap<string, string>>(() => new Map(members.value.map((m) => [m.userId, m.name])))
   const people = computed(() => members.value.map((m) => ({ id: m.userId, name: m.name, role: m.role })))
-  return { members, names, people }
+  return { members, people }
 }

@@ -1,6 +1,6 @@
 /**
  * What every page about a snapshot loads: the sheet (its title, lab and the caller's role), the snapshot with its file
- * and stored results, the sheet's timeline, the lab's members (names) and reviews (states and decisions).
+ * and stored results, the sheet's timeline, the snapshot's reviews and the lab's members (reviewer picker, mentions).
  */
 import { computed, ref, shallowRef, watch, type Ref } from 'vue'
 import { getSheet, type Sheet } from '@/api/sheets'
@@ -8,8 +8,7 @@ import { messageOf } from '@/api/client'
 import { useSnapshotsStore } from '@/stores/snapshots'
 import { useReviewsStore } from '@/stores/reviews'
 import { useLabMembers } from './useLabMembers'
-import { nameOf, snapshotState } from '@/lib/reviewModel'
-import type { SnapshotDetail, SnapshotSummary } from '@/api/snapshots'
+import type { SnapshotDetail } from '@/api/snapshots'
 
 export function useSnapshotPage(sheetId: Ref<string>, snapshotId: Ref<string>) {
   const snapshots = useSnapshotsStore()
@@ -17,7 +16,7 @@ export function useSnapshotPage(sheetId: Ref<string>, snapshotId: Ref<string>) {
   const sheet = shallowRef<Sheet | null>(null)
   const snapshot = shallowRef<SnapshotDetail | null>(null)
   const error = ref('')
-  const { names, people } = useLabMembers(computed(() => sheet.value?.labId))
+  const { people } = useLabMembers(computed(() => sheet.value?.labId))
 
   watch(
     [sheetId, snapshotId],
@@ -30,22 +29,21 @@ export function useSnapshotPage(sheetId: Ref<string>, snapshotId: Ref<string>) {
         sheet.value = meta
         snapshot.value = detail
         void snapshots.loadTimeline(sid)
-        void reviews.load(meta.labId, names.value)
+        void reviews.loadSnapshot(id)
       } catch (err) {
         error.value = messageOf(err)
       }
     },
     { immediate: true },
   )
-  watch(names, (n) => {
-    if (sheet.value) void reviews.load(sheet.value.labId, n)
+
+  /** The state of the snapshot's newest review, as the reviews loaded here say (after a decision too). */
+  const state = computed(() => {
+    const s = snapshot.value
+    if (!s) return 'none' as const
+    const newest = reviews.ofSnapshot(s.id)[0]
+    return newest?.state ?? s.reviewState ?? ('none' as const)
   })
 
-  /** The author's name: from the reply, else the members list. */
-  function authorOf(s: SnapshotSummary): string {
-    return s.authorName || nameOf(s.createdBy, names.value).name
-  }
-  const state = computed(() => (snapshot.value ? snapshotState(reviews.reviews, snapshot.value.id) : 'none'))
-
-  return { sheet, snapshot, error, names, people, authorOf, state, snapshots, reviews }
+  return { sheet, snapshot, error, people, state, snapshots, reviews }
 }

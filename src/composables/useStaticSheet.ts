@@ -18,11 +18,11 @@ import type { SheetContext } from '@/components/sheet/sheetContext'
 import { NO_PENDING_EDITS } from '@/lib/localCopyPending'
 
 /** Matches stored results to cells: by id where the result carries one, otherwise by position. */
-export function resultsById(cells: readonly SheetCell[], results: readonly CellResult[]): Record<string, CellResult> {
+export function resultsById(cells: readonly SheetCell[], results: readonly { index: number; id?: string }[]): Record<string, CellResult> {
   const out: Record<string, CellResult> = {}
   for (const r of results) {
     const id = r.id ?? cells[r.index]?.id
-    if (id) out[id] = { ...r, id }
+    if (id) out[id] = { ...(r as CellResult), id }
   }
   return out
 }
@@ -46,8 +46,8 @@ function staticDoc(file: SheetFile): SheetDoc {
     connection: ref('offline'),
     synced: ref(true),
     closedReason: ref(''),
-    denied: ref(''),
     accessLost: ref(false),
+    denied: ref(''),
     canUndo: ref(false),
     canRedo: ref(false),
     origin,
@@ -65,7 +65,7 @@ function staticDoc(file: SheetFile): SheetDoc {
     undo: () => undefined,
     redo: () => undefined,
     transact: refuse,
-    readKeptResults: () => Promise.resolve([]),
+    readKeptResults: async () => [],
     keepResults: () => undefined,
   }
 }
@@ -74,7 +74,7 @@ function staticDoc(file: SheetFile): SheetDoc {
  * Fills the sheet store with a snapshot's cells and stored results and returns the context the cards need.
  * `cellAddon` is drawn in every card's header (the comment badge).
  */
-export function useStaticSheet(file: SheetFile, results: readonly CellResult[], options: { cellAddon?: Component } = {}) {
+export function useStaticSheet(file: SheetFile, results: readonly { index: number; id?: string }[], options: { cellAddon?: Component } = {}) {
   const store = useSheetStore()
   const sheet = staticDoc(file)
   const cells = sheet.cells.toArray().map(mapToCell)
@@ -90,7 +90,15 @@ export function useStaticSheet(file: SheetFile, results: readonly CellResult[], 
     vocabulary: shallowRef(buildVocabulary(null, cells, byId)),
     vocabularyVersion: ref(0),
     focusCard: () => undefined,
-    ops: { move: () => undefined, duplicate: () => undefined, remove: () => undefined, addAfter: () => undefined, edit: () => undefined, replaceData: () => undefined, downloadCsv: () => undefined },
+    ops: {
+      move: () => undefined,
+      duplicate: () => undefined,
+      remove: () => undefined,
+      addAfter: () => undefined,
+      edit: () => undefined,
+      replaceData: () => undefined,
+      downloadCsv: () => undefined,
+    },
     cellAddon: options.cellAddon,
   }
   onScopeDispose(() => {

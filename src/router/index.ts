@@ -6,6 +6,8 @@
 import { createRouter, createWebHistory, type RouteLocationRaw } from 'vue-router'
 import { useSessionStore } from '@/stores/session'
 import { safeNext } from '@/lib/navigation'
+import { getSnapshot } from '@/api/snapshots'
+import { snapshotPath } from '@/lib/reviewModel'
 
 export { safeNext }
 
@@ -37,6 +39,21 @@ export const router = createRouter({
     { path: '/sheets/:sheetId/snapshots/:snapshotId', name: 'snapshot', component: () => import('@/views/SnapshotView.vue'), meta: { access: 'signed-in', title: 'Snapshot' } },
     { path: '/sheets/:sheetId/snapshots/:snapshotId/compare/:other', name: 'compare', component: () => import('@/views/CompareView.vue'), meta: { access: 'signed-in', title: 'Compare' } },
     { path: '/sheets/:sheetId/snapshots/:snapshotId/report', name: 'report', component: () => import('@/views/ReportView.vue'), meta: { access: 'signed-in', title: 'Review report', bare: true } },
+    // mailed review requests and decisions link to a snapshot by id alone: find its sheet and go to its page
+    {
+      path: '/snapshots/:snapshotId',
+      name: 'snapshot-link',
+      component: () => import('@/views/NotFoundView.vue'),
+      meta: { access: 'signed-in', title: 'Snapshot' },
+      beforeEnter: async (to) => {
+        try {
+          const snapshot = await getSnapshot(String(to.params.snapshotId))
+          return snapshotPath(snapshot.sheetId, snapshot.id)
+        } catch {
+          return true
+        }
+      },
+    },
     { path: '/guest/:token', name: 'guest-link', component: () => import('@/views/GuestView.vue'), meta: { access: 'public', title: 'Snapshot', bare: true } },
     { path: '/sheets/:sheetId', name: 'sheet', component: () => import('@/views/SheetView.vue'), meta: { access: 'signed-in', title: 'Sheet' } },
     { path: '/profile', name: 'profile', component: () => import('@/views/ProfileView.vue'), meta: { access: 'signed-in', title: 'Profile' } },

@@ -1,28 +1,28 @@
 /**
- * The comment threads of one sheet (live and snapshot comments alike). While a page shows them, the list is asked
- * for again every few seconds, so others' comments appear without a reload.
+ * The comment threads of one sheet (live and snapshot comments alike), kept current through the sheet's comment
+ * event stream while a page shows them, plus which cell's threads the comment drawer shows.
  */
 import { computed, ref, shallowRef } from 'vue'
 import { defineStore } from 'pinia'
 import * as commentsApi from '@/api/comments'
-import { toComment, type Comment } from '@/lib/reviewModel'
-
-const POLL_MS = 4000
+import type { Comment, CreateCommentBody } from '@/api/comments'
 
 export const useCommentsStore = defineStore('comments', () => {
   const sheetId = ref('')
   const rows = shallowRef<Comment[]>([])
   const error = ref('')
-  const known = shallowRef<ReadonlyMap<string, string>>(new Map())
   /**
    * Where the page's comments belong: the live sheet (`snapshotId` null: every thread of the sheet shows, those made on
    * a snapshot say so) or one snapshot (only its threads). `canComment` is the caller's role allowing it.
    */
-  const scope = ref<{ snapshotId: string | null; canComment: boolean; hashes: Record<string, string> }>({ snapshotId: null, canComment: false, hashes: {} })
+  const scope = ref<{ snapshotId: string | null; canComment: boolean }>({ snapshotId: null, canComment: false })
   /** The cell whose threads the comment drawer shows. */
   const panel = ref<{ cellId: string; cellName: string } | null>(null)
-  let timer: ReturnType<typeof setInterval> | null = null
-  let watchers = 0
+
+  function put(comment: Comment): void {
+    if (comment.sheetId !== sheetId.value) return
+    rows.value = [...rows.value.filter((c) => c.id !== comment.id), comment]
+  }
 
   async function load(id: string = sheetId.value): Promise<void> {
     if (!id) return
@@ -30,41 +30,27 @@ export const useCommentsStore = defineStore('comments', () => {
     sheetId.value = id
     try {
       const list = await commentsApi.listComments(id)
-      if (sheetId.value === id) rows.value = list.map((c) => toComment(c, known.value))
+      if (sheetId.value === id) rows.value = list
       error.value = ''
     } catch (err) {
       error.value = err instanceof Error ? err.message : String(err)
     }
   }
 
-  /** Starts keeping the sheet's comments fresh; the returned function stops it. */
-  function follow(id: string, names?: ReadonlyMap<string, string>): () => void {
-    if (names) known.value = names
+  /** Loads the sheet's comments and follows its event stream; the returned function stops following. */
+  function follow(id: string): () => void {
     void load(id)
-    watchers++
-    if (!timer) timer = setInterval(() => void load(), POLL_MS)
-    let stopped = false
-    return () => {
-      if (stopped) return
-      stopped = true
-      watchers--
-      if (watchers <= 0 && timer) {
-        clearInterval(timer)
-        timer = null
-        watchers = 0
-      }
-    }
+    return commentsApi.followComments(id, put)
   }
 
-  async function add(comment: commentsApi.NewComment): Promise<Comment> {
-    const row = toComment(await commentsApi.addComment(sheetId.value, comment), known.value)
-    rows.value = [...rows.value.filter((c) => c.id !== row.id), row]
+  async function add(comment: CreateCommentBody): Promise<Comment> {
+    const row = await commentsApi.addComment(sheetId.value, comment)
+    put(row)
     return row
   }
 
   async function setResolved(commentId: string, resolved: boolean): Promise<void> {
-    await commentsApi.setResolved(commentId, resolved)
-    rows.value = rows.value.map((c) => (c.id === commentId ? { ...c, resolved } : c))
+    put(await commentsApi.setResolved(commentId, resolved))
   }
 
   /** The comments the page shows under its scope. */
@@ -86,5 +72,5 @@ export const useCommentsStore = defineStore('comments', () => {
     panel.value = { cellId, cellName }
   }
 
-  return { sheetId, rows, error, known, scope, panel, visible, load, follow, add, setResolved, countsByCell, openPanel }
+  return { sheetId, rows, error, scope, panel, visible, load, follow, add, setResolved, countsByCell, openPanel }
 })

@@ -2,13 +2,13 @@
 import { ref, shallowRef } from 'vue'
 import { defineStore } from 'pinia'
 import * as linksApi from '@/api/guestLinks'
-import type { GuestLinkRow } from '@/api/guestLinks'
+import type { GuestLink } from '@/api/guestLinks'
 
 export const useGuestLinksStore = defineStore('guestLinks', () => {
   const snapshotId = ref('')
-  const links = shallowRef<GuestLinkRow[]>([])
+  const links = shallowRef<GuestLink[]>([])
   const error = ref('')
-  /** The full address of a link made on this page (the server shows it once; only its hash is stored). */
+  /** The full address of each link made on this page (shown once: the server keeps only a hash of the token). */
   const fresh = ref<Record<string, string>>({})
 
   async function load(id: string): Promise<void> {
@@ -23,18 +23,16 @@ export const useGuestLinksStore = defineStore('guestLinks', () => {
     }
   }
 
-  async function make(id: string, expiresInDays: number, note: string): Promise<GuestLinkRow> {
-    const link = await linksApi.makeGuestLink(id, expiresInDays, note)
-    if (link.url) fresh.value = { ...fresh.value, [link.id]: new URL(link.url, window.location.origin).href }
+  async function make(id: string, expiresInDays: number, note: string): Promise<void> {
+    const { url, ...link } = await linksApi.makeGuestLink(id, expiresInDays, note)
+    fresh.value = { ...fresh.value, [link.id]: new URL(url, window.location.origin).href }
+    links.value = [link, ...links.value.filter((l) => l.id !== link.id)]
     await load(id)
-    if (!links.value.some((l) => l.id === link.id)) links.value = [link, ...links.value]
-    return link
   }
 
   async function revoke(linkId: string): Promise<void> {
     await linksApi.revokeGuestLink(linkId)
-    links.value = links.value.map((l) => (l.id === linkId ? { ...l, revokedAt: Date.now() } : l))
-    if (snapshotId.value) void load(snapshotId.value)
+    if (snapshotId.value) await load(snapshotId.value)
   }
 
   return { snapshotId, links, error, fresh, load, make, revoke }

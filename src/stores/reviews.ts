@@ -1,26 +1,26 @@
-/** The reviews of a lab (the queue page and every snapshot's review state), and asking for and deciding reviews. */
+/** Reviews: the caller's queue in a lab, the reviews of each snapshot opened, asking for and deciding reviews. */
 import { ref, shallowRef } from 'vue'
 import { defineStore } from 'pinia'
 import * as reviewsApi from '@/api/reviews'
-import type { Decision } from '@/api/reviews'
-import { toReview, type Review } from '@/lib/reviewModel'
+import type { Review, ReviewDecisionValue, ReviewQueue } from '@/api/reviews'
+
+const EMPTY: ReviewQueue = { waiting: [], requested: [], decided: [] }
 
 export const useReviewsStore = defineStore('reviews', () => {
   const labId = ref('')
-  const reviews = shallowRef<Review[]>([])
+  const queue = shallowRef<ReviewQueue>(EMPTY)
   const loading = ref(false)
   const error = ref('')
-  const known = shallowRef<ReadonlyMap<string, string>>(new Map())
+  const bySnapshot = shallowRef<Record<string, Review[]>>({})
 
-  async function load(id: string, names?: ReadonlyMap<string, string>): Promise<void> {
-    if (names) known.value = names
-    if (labId.value !== id) reviews.value = []
+  async function loadQueue(id: string): Promise<void> {
+    if (labId.value !== id) queue.value = EMPTY
     labId.value = id
     loading.value = true
     error.value = ''
     try {
-      const list = await reviewsApi.listLabReviews(id)
-      if (labId.value === id) reviews.value = list.map((r) => toReview(r, known.value))
+      const q = await reviewsApi.labReviewQueue(id)
+      if (labId.value === id) queue.value = q
     } catch (err) {
       error.value = err instanceof Error ? err.message : String(err)
     } finally {
@@ -28,27 +28,36 @@ export const useReviewsStore = defineStore('reviews', () => {
     }
   }
 
+  async function loadSnapshot(snapshotId: string): Promise<void> {
+    try {
+      const list = await reviewsApi.listSnapshotReviews(snapshotId)
+      bySnapshot.value = { ...bySnapshot.value, [snapshotId]: list }
+    } catch (err) {
+      error.value = err instanceof Error ? err.message : String(err)
+    }
+  }
+
   function put(review: Review): void {
-    reviews.value = [review, ...reviews.value.filter((r) => r.id !== review.id)]
+    const list = bySnapshot.value[review.snapshotId] ?? []
+    bySnapshot.value = { ...bySnapshot.value, [review.snapshotId]: [review, ...list.filter((r) => r.id !== review.id)] }
+    if (labId.value === review.labId) void loadQueue(review.labId)
   }
 
   async function request(snapshotId: string, reviewerIds: string[], note: string): Promise<Review> {
-    const review = toReview(await reviewsApi.requestReview(snapshotId, reviewerIds, note), known.value)
+    const review = await reviewsApi.requestReview(snapshotId, reviewerIds, note)
     put(review)
-    if (labId.value) void load(labId.value)
     return review
   }
 
-  async function decide(reviewId: string, decision: Decision, note: string): Promise<Review> {
-    const review = toReview(await reviewsApi.decideReview(reviewId, decision, note), known.value)
+  async function decide(reviewId: string, decision: ReviewDecisionValue, note: string): Promise<Review> {
+    const review = await reviewsApi.decideReview(reviewId, decision, note)
     put(review)
-    if (labId.value) void load(labId.value)
     return review
   }
 
   function ofSnapshot(snapshotId: string): Review[] {
-    return reviews.value.filter((r) => r.snapshotId === snapshotId).sort((a, b) => b.createdAt - a.createdAt)
+    return bySnapshot.value[snapshotId] ?? []
   }
 
-  return { labId, reviews, loading, error, known, load, request, decide, ofSnapshot }
+  return { labId, queue, loading, error, bySnapshot, loadQueue, loadSnapshot, request, decide, ofSnapshot }
 })

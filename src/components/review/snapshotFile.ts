@@ -1,6 +1,6 @@
 /**
  * A snapshot's sheet file as the client uses it: checked by the sheet schema, its cells with their ids (restoring
- * and comments need them), and a plain sheet file without the stored results for importing into a new sheet.
+ * and comments need them).
  */
 import { parseSheetFile } from '../../../shared/schema/sheet'
 import type { SheetCell, SheetFile } from '../../../shared/schema/sheet'
@@ -19,9 +19,4 @@ export function checkedFile(file: unknown): SheetFile {
 /** The cells of a snapshot's file, each with its id (a cell stored without one gets a fresh id). */
 export function snapshotCells(file: unknown): SheetCell[] {
   return checkedFile(file).cells.map((c) => ({ ...c, id: c.id ?? newCellId() }) as SheetCell)
-}
-
-/** The file to import as a new sheet: the same cells (the schema drops the snapshot's stored results and hash). */
-export function importableFile(file: unknown, title: string): SheetFile {
-  return { ...checkedFile(file), title }
 }
