@@ -6,6 +6,7 @@
 import type { SweepValue } from '../schema/result'
 import type { FigureCell, FigureTrace } from '../schema/sheet'
 import { downsample, downsampleColumns } from './downsample'
+import { formatNumber } from './format'
 import { placeMark, type Mark } from './marks'
 import { traceColor } from './palette'
 import { resolveRef, type Quantity, type Results } from './resolve'
@@ -22,6 +23,8 @@ export interface FigureSeries {
   y: number[]
   style: 'line' | 'points' | 'line+points'
   color: string
+  /** A dashed line (an earlier version's curve, drawn under the current one when two versions are compared). */
+  dashed?: boolean
   /** Points in the source series when it was thinned for drawing. */
   thinnedFrom?: number
 }
@@ -224,6 +227,14 @@ export function buildFigure(cell: FigureCell, results: Results, options: BuildOp
     const name = p.trace.label ?? p.y.ref
     if (cell.y?.scale === 'log' && !cy.value.some((v) => v > 0))
       messages.push(`${describe(p.trace, p.index)} has no positive values, so nothing of it shows on a log axis.`)
+    else if (cell.y?.scale === 'log') {
+      const note = hiddenOnLog(cy.value, 'y', yUnit)
+      if (note) messages.push(`${describe(p.trace, p.index)}: ${note}`)
+    }
+    if (cell.x?.scale === 'log' && cx.value.some((v) => v > 0)) {
+      const note = hiddenOnLog(cx.value, 'x', xUnit)
+      if (note) messages.push(`${describe(p.trace, p.index)}: ${note}`)
+    }
     const thin = downsample(cx.value, cy.value, MAX_DRAWN_POINTS)
     series.push({
       name,
@@ -300,4 +311,26 @@ export function buildFigure(cell: FigureCell, results: Results, options: BuildOp
   }
 
   return { title: cell.title, series, x, y, band, marks, markAxis, regions: [], sweep, messages }
+}
+
+/**
+ * The sentence for negative values a log axis cannot show (a measured α dips below zero where the film barely
+ * absorbs, once a baseline is subtracted), or null when there are none. Plotly drops them without a word. Zeros are
+ * left unmentioned: a model is zero below its gap by design.
+ */
+export function hiddenOnLog(values: readonly number[], axis: 'x' | 'y', unit: string): string | null {
+  let count = 0
+  let lowest = 0
+  let finite = 0
+  for (const v of values) {
+    if (!Number.isFinite(v)) continue
+    finite++
+    if (v < 0) {
+      count++
+      if (v < lowest) lowest = v
+    }
+  }
+  if (count === 0) return null
+  const u = prettyUnit(unit)
+  return `${count} of its ${finite} ${axis} values ${count === 1 ? 'is' : 'are'} negative (lowest ${formatNumber(lowest)}${u ? ` ${u}` : ''}) and cannot be shown on the log axis; ${count === 1 ? 'it is' : 'they are'} left out of the curve.`
 }

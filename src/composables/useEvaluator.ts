@@ -6,19 +6,30 @@
  */
 import { onScopeDispose, ref } from 'vue'
 import * as Y from 'yjs'
-import { mapToCell, type CellMap } from '../../shared/doc/sheetDoc'
+import { entryCells, mapToCell, type CellMap } from '../../shared/doc/sheetDoc'
 import type { SheetCell } from '../../shared/schema/sheet'
+import type { CellResult } from '../../shared/schema/result'
 import type { FromWorker, ToWorker } from '@/workers/protocol'
 import { dependentsOf } from '@/components/sheet/references'
 import { unpackResults } from '@/workers/pack'
 import type { useSheetStore } from '@/stores/sheet'
+import { mark } from '@/lib/marks'
 
 type SheetStore = ReturnType<typeof useSheetStore>
 
 /** After this many unexpected worker failures in a row the page stops restarting it and says so. */
 const MAX_RESTARTS = 3
 
-export function useEvaluator(cells: Y.Array<CellMap>, store: SheetStore, title: () => string) {
+/** Results kept in this browser between visits (useSheetDoc's readKeptResults / keepResults). */
+export interface ResultKeeper {
+  read(): Promise<CellResult[]>
+  keep(results: Record<string, CellResult>): void
+}
+
+/** How long the results must stay unchanged before they are written to the browser's storage. */
+const KEEP_AFTER_MS = 1500
+
+export function useEvaluator(cells: Y.Array<CellMap>, store: SheetStore, title: () => string, keeper?: ResultKeeper) {
   const busy = ref(false)
   const state = ref<'starting' | 'ready' | 'failed'>('starting')
   const error = ref('')
@@ -38,6 +49,31 @@ export function useEvaluator(cells: Y.Array<CellMap>, store: SheetStore, title: 
   const plain = new Map<string, SheetCell>()
   let order: string[] = []
   let flushTimer: ReturnType<typeof setTimeout> | null = null
+  /** Whether the worker has answered yet; until then results kept from the last visit may be shown. */
+  let answered = false
+  /** Cells showing a kept result (marked recomputing) that the worker has not replaced yet. */
+  const seeded = new Set<string>()
+  let keepTimer: ReturnType<typeof setTimeout> | null = null
+
+  function scheduleKeep(): void {
+    if (!keeper) return
+    if (keepTimer !== null) clearTimeout(keepTimer)
+    keepTimer = setTimeout(() => {
+      keepTimer = null
+      if (state.value !== 'failed' && !busy.value) keeper.keep(store.results)
+    }, KEEP_AFTER_MS)
+  }
+
+  /** Shows the results kept from the last visit, marked recomputing, for cells the worker has not answered yet. */
+  function showKept(kept: CellResult[]): void {
+    if (answered || kept.length === 0) return
+    const fresh = kept.filter((r) => r.id && plain.has(r.id) && !store.results[r.id])
+    if (fresh.length === 0) return
+    mark('pn:kept-results')
+    store.applyResults(fresh, false)
+    for (const r of fresh) seeded.add(r.id!)
+    store.markStale([...seeded])
+  }
 
   function startWorker(): void {
     worker = new Worker(new URL('../workers/evaluate.worker.ts', import.meta.url), { type: 'module', name: 'penumbra-evaluate' })
@@ -71,14 +107,19 @@ export function useEvaluator(cells: Y.Array<CellMap>, store: SheetStore, title: 
   function onMessage(message: FromWorker): void {
     switch (message.type) {
       case 'ready':
+        mark('pn:evaluator-ready')
         state.value = 'ready'
         store.catalog = message.catalog
         store.engineVersion = message.engine
         break
       case 'partial': {
+        mark('pn:first-results')
         // cells done before a long sweep or fit of the batch in flight: shown now, no longer stale
         const results = unpackResults(message.results)
         store.applyResults(results, false)
+        answered = true
+        const replaced = results.map((r) => r.id).filter((id): id is string => !!id && seeded.delete(id))
+        store.clearStale(replaced.filter((id) => !staleUntil.has(id)))
         const done = results.map((r) => r.id).filter((id): id is string => !!id && (staleUntil.get(id) ?? 0) <= message.seq)
         for (const id of done) staleUntil.delete(id)
         store.clearStale(done)
@@ -88,6 +129,8 @@ export function useEvaluator(cells: Y.Array<CellMap>, store: SheetStore, title: 
         store.setProgress(message.id, message.fraction)
         break
       case 'results': {
+        mark('pn:first-results')
+        mark('pn:all-results')
         restarts = 0
         store.applyResults(unpackResults(message.results), message.complete)
         for (const id of message.recomputed) store.setProgress(id, null)
@@ -100,6 +143,12 @@ export function useEvaluator(cells: Y.Array<CellMap>, store: SheetStore, title: 
         }
         store.clearStale(cleared)
         store.lastEvaluationMs = message.ms
+        answered = true
+        if (message.complete && seeded.size > 0) {
+          store.clearStale([...seeded].filter((id) => !staleUntil.has(id)))
+          seeded.clear()
+        }
+        scheduleKeep()
         if (store.evaluatorError && state.value !== 'failed') store.evaluatorError = ''
         inFlight = null
         busy.value = false
@@ -145,24 +194,30 @@ export function useEvaluator(cells: Y.Array<CellMap>, store: SheetStore, title: 
   function refresh(changedIds: Set<string>, structural: boolean): void {
     const before = order.map((id) => plain.get(id)).filter((c): c is SheetCell => !!c)
     if (structural) {
-      const maps = cells.toArray()
+      // entries the app cannot read as cells become placeholders the page shows as invalid (entryCells)
+      const reread = (map: CellMap, id: string) => {
+        const known = plain.get(id)
+        if (known && !changedIds.has(id)) return known
+        changedIds.add(id)
+        return mapToCell(map)
+      }
+      const entries = entryCells(cells as unknown as Y.Array<unknown>, reread) as SheetCell[]
       const nextOrder: string[] = []
-      const seen = new Set<string>()
-      for (const map of maps) {
-        const id = String(map.get('id') ?? '')
-        if (!id || seen.has(id)) continue
-        seen.add(id)
-        nextOrder.push(id)
-        if (!plain.has(id) || changedIds.has(id)) {
-          plain.set(id, mapToCell(map))
-          changedIds.add(id)
+      for (const cell of entries) {
+        nextOrder.push(cell.id)
+        // a cell read again, or a placeholder (made anew each time: its id is a position, whatever stands there now)
+        if (plain.get(cell.id) !== cell) {
+          plain.set(cell.id, cell)
+          changedIds.add(cell.id)
         }
       }
+      const seen = new Set(nextOrder)
       for (const id of [...plain.keys()]) if (!seen.has(id)) plain.delete(id)
       if (nextOrder.join('\n') !== order.join('\n')) orderChanged = true
       order = nextOrder
     } else {
-      for (const map of cells.toArray()) {
+      for (const map of cells.toArray() as unknown[]) {
+        if (!(map instanceof Y.Map)) continue
         const id = String(map.get('id') ?? '')
         if (changedIds.has(id)) plain.set(id, mapToCell(map))
       }
@@ -199,6 +254,7 @@ export function useEvaluator(cells: Y.Array<CellMap>, store: SheetStore, title: 
 
   startWorker()
   refresh(new Set(), true)
+  keeper?.read().then(showKept, () => undefined)
 
   /** Recomputes the whole sheet from scratch (after a title change or on request). */
   function reload(): void {
@@ -209,6 +265,7 @@ export function useEvaluator(cells: Y.Array<CellMap>, store: SheetStore, title: 
   onScopeDispose(() => {
     cells.unobserveDeep(observer)
     if (flushTimer !== null) clearTimeout(flushTimer)
+    if (keepTimer !== null) clearTimeout(keepTimer)
     worker?.terminate()
     worker = null
   })

@@ -1,9 +1,14 @@
 /**
- * Draws a figure with plotly.js into an element. The library (a 4.6 MB chunk) is loaded on first use with a dynamic
- * import, shared by every figure on the page; later changes of the figure go through `Plotly.react`, which only
- * redraws what changed. Follows the element's size, and purges the plot when the owning scope ends.
+ * Draws a figure with plotly.js into an element. The library (a 4.6 MB chunk, over a second of script on a small
+ * machine) is loaded with a dynamic import only when a figure comes near the viewport (IntersectionObserver) and
+ * only after the page has painted, so it never holds back the first cards; it is shared by every figure on the
+ * page. Later changes of the figure go through `Plotly.react`, which only redraws what changed. Follows the
+ * element's size, and purges the plot when the owning scope ends.
  *
- * Returns `state` ('loading' | 'ready' | 'error'), `error` (a plain sentence), and image export.
+ * Plotly's own floating toolbar is off everywhere (`displayModeBar: false`): each figure carries Penumbra's own
+ * (FigureToolbar.vue), which calls `resetView` and the exports here.
+ *
+ * Returns `state` ('loading' | 'ready' | 'error'), `error` (a plain sentence), `resetView`, and image export.
  */
 import { onScopeDispose, ref, shallowRef, watch, type Ref } from 'vue'
 import type { Config, Data, Layout } from 'plotly.js-dist-min'
@@ -40,10 +45,50 @@ export function loadPlotly(): Promise<PlotlyModule> {
   return loading
 }
 
+/** How far outside the viewport a figure starts loading the library and drawing (scrolling gets there first). */
+export const PLOT_NEAR_VIEWPORT = '600px 0px'
+
+/**
+ * Resolves after the page has painted what it has (two animation frames) and the main thread had a quiet moment, so
+ * the cards of a sheet paint before the charting library's script runs. Shared by every figure.
+ */
+let painted: Promise<void> | null = null
+export function afterFirstPaint(): Promise<void> {
+  if (typeof window === 'undefined' || typeof requestAnimationFrame === 'undefined') return Promise.resolve()
+  painted ??= new Promise<void>((resolve) => {
+    requestAnimationFrame(() =>
+      requestAnimationFrame(() => {
+        const idle = (window as { requestIdleCallback?: (cb: () => void, o?: { timeout: number }) => number }).requestIdleCallback
+        if (idle) idle(() => resolve(), { timeout: 400 })
+        else setTimeout(resolve, 0)
+      }),
+    )
+  })
+  return painted
+}
+
+/** Resolves once `el` is within PLOT_NEAR_VIEWPORT of the viewport (at once where IntersectionObserver is missing). */
+function whenNear(el: HTMLElement, onDispose: (stop: () => void) => void): Promise<void> {
+  if (typeof IntersectionObserver === 'undefined') return Promise.resolve()
+  return new Promise<void>((resolve) => {
+    const io = new IntersectionObserver(
+      (entries) => {
+        if (entries.some((e) => e.isIntersecting)) {
+          io.disconnect()
+          resolve()
+        }
+      },
+      { rootMargin: PLOT_NEAR_VIEWPORT },
+    )
+    io.observe(el)
+    onDispose(() => io.disconnect())
+  })
+}
+
 const BASE_CONFIG: Partial<Config> = {
   displaylogo: false,
+  displayModeBar: false,
   responsive: false, // we follow the element with our own ResizeObserver
-  modeBarButtonsToRemove: ['toImage', 'select2d', 'lasso2d'],
 }
 
 function message(err: unknown): string {
@@ -64,16 +109,38 @@ export function usePlot(target: Ref<HTMLElement | null | undefined>, spec: Ref<P
   let frame = 0
   let rendering: Promise<void> = Promise.resolve()
 
-  loadPlotly().then(
-    (m) => {
-      if (disposed) return
-      plotly.value = m
+  let stopWatching: (() => void) | null = null
+  let asked = false
+  /**
+   * Loads the library (and so draws) once the figure's element is near the viewport and the page has painted. A
+   * figure far down the sheet stays undrawn until it is scrolled near, even when another figure loaded the library.
+   */
+  const stopTarget = watch(
+    target,
+    (el) => {
+      if (asked) return
+      stopWatching?.()
+      stopWatching = null
+      if (!el) return
+      void whenNear(el, (stop) => (stopWatching = stop)).then(() => {
+        if (asked || disposed) return
+        asked = true
+        afterFirstPaint()
+          .then(() => (disposed ? null : loadPlotly()))
+          .then(
+            (m) => {
+              if (disposed || !m) return
+              plotly.value = m
+            },
+            (err) => {
+              if (disposed) return
+              state.value = 'error'
+              error.value = `The charting library could not be loaded (${message(err)}). Reload the page to try again.`
+            },
+          )
+      })
     },
-    (err) => {
-      if (disposed) return
-      state.value = 'error'
-      error.value = `The charting library could not be loaded (${message(err)}). Reload the page to try again.`
-    },
+    { immediate: true, flush: 'post' },
   )
 
   function observe(el: HTMLElement) {
@@ -140,6 +207,16 @@ export function usePlot(target: Ref<HTMLElement | null | undefined>, spec: Ref<P
 
   watch([plotly, target, spec, width], render, { flush: 'post' })
 
+  /** Draws the figure afresh, dropping any zoom or pan made on it. */
+  function resetView(): void {
+    const P = plotly.value
+    if (P && drawn) {
+      P.purge(drawn)
+      drawn = null
+    }
+    render()
+  }
+
   async function ready(): Promise<{ P: PlotlyModule; el: HTMLElement }> {
     await rendering
     const P = plotly.value
@@ -156,18 +233,6 @@ export function usePlot(target: Ref<HTMLElement | null | undefined>, spec: Ref<P
     return { data: s.data, layout: { ...s.layout, ...size?.layout, width, height }, config: { ...BASE_CONFIG, ...s.config, staticPlot: true } }
   }
 
-  /**
-   * Saves the figure as a PNG (2× pixel density) or SVG file named `filename` (without extension). `layout` overrides
-   * parts of the on-screen layout for the file (e.g. a title the card shows outside the plot).
-   */
-  async function downloadImage(format: 'png' | 'svg', filename: string, size?: ExportOptions): Promise<void> {
-    await ready()
-    const P = plotly.value!
-    const figure = exportFigure(size)
-    if (!figure) throw new Error('the figure is not drawn yet')
-    await P.downloadImage(figure, { format, filename, width: figure.layout.width, height: figure.layout.height, scale: format === 'png' ? 2 : 1 })
-  }
-
   /** The figure as a data URL (PNG or SVG), e.g. for a report. */
   async function toImage(format: 'png' | 'svg', size?: ExportOptions): Promise<string> {
     await ready()
@@ -179,6 +244,8 @@ export function usePlot(target: Ref<HTMLElement | null | undefined>, spec: Ref<P
 
   onScopeDispose(() => {
     disposed = true
+    stopTarget()
+    stopWatching?.()
     cancelAnimationFrame(frame)
     observer?.disconnect()
     observer = null
@@ -186,5 +253,5 @@ export function usePlot(target: Ref<HTMLElement | null | undefined>, spec: Ref<P
     drawn = null
   })
 
-  return { state, error, downloadImage, toImage, plotly }
+  return { state, error, resetView, toImage, plotly }
 }

@@ -19,12 +19,15 @@ import * as awarenessProtocol from 'y-protocols/awareness'
 import * as syncProtocol from 'y-protocols/sync'
 import * as decoding from 'lib0/decoding'
 import * as encoding from 'lib0/encoding'
-import { cellToMap, cellsOf, mapToCell, metaOf, newCellId, type CellMap } from '../../shared/doc/sheetDoc'
+import { cellToMap, cellsOf, entryIndex, mapToCell, metaOf, newCellId, type CellMap } from '../../shared/doc/sheetDoc'
 import type { Cell, SheetCell } from '../../shared/schema/sheet'
 import { keepPageForOffline, openLocalCopy } from '@/lib/localCopy'
 import { NO_PENDING_EDITS, noteChange, noteSent, restoredPending, type PendingEdits } from '@/lib/localCopyPending'
 import { reportWaitingEdits } from '@/lib/waitingEdits'
 import { useSessionStore } from '@/stores/session'
+import { mark } from '@/lib/marks'
+import { packKeptResults, unpackKeptResults } from '@/lib/keptResults'
+import type { CellResult } from '../../shared/schema/result'
 
 export type ConnectionState = 'connecting' | 'online' | 'offline'
 
@@ -125,6 +128,7 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     if (status !== 'connected') synced.value = false
   })
   p.on('sync', (state) => {
+    if (state) mark('pn:sheet-synced')
     synced.value = state
   })
   // an attempt that never got through (the server is away when the page opens) says "offline", not "connecting"
@@ -165,6 +169,7 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
   if (localCopy) {
     const waited = setTimeout(start, LOCAL_COPY_WAIT_MS)
     void localCopy.ready.then(({ available, pending: stored }) => {
+      mark('pn:sheet-kept-copy')
       clearTimeout(waited)
       if (disposed) return
       keptOnDevice.value = available
@@ -254,13 +259,15 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     return true
   }
 
+  /** Where a cell (or a placeholder for an entry that is not one, `entry-<index>`) stands in the list. */
   function indexOf(id: string): number {
-    const arr = cells.toArray()
-    return arr.findIndex((m) => m.get('id') === id)
+    return entryIndex(cells as unknown as Y.Array<unknown>, id)
   }
 
   function mapOf(id: string): CellMap | undefined {
-    return cells.toArray().find((m) => m.get('id') === id)
+    const i = indexOf(id)
+    const entry: unknown = i < 0 ? undefined : cells.get(i)
+    return entry instanceof Y.Map ? (entry as CellMap) : undefined
   }
 
   /** Writes plain fields of a cell; `undefined` removes a field. Text fields go through setText. */
@@ -287,6 +294,25 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     return ok ? id : null
   }
 
+  /**
+   * Inserts several new cells at `index` (end when omitted) as one undo step (e.g. the cells of an α extraction);
+   * returns their ids in order.
+   */
+  function insertCells(next: Cell[], index = cells.length): string[] | null {
+    const ids = next.map(() => newCellId())
+    const ok = transactStep(() => cells.insert(Math.max(0, Math.min(index, cells.length)), next.map((c, i) => cellToMap({ ...c, id: ids[i] }, ids[i]))))
+    return ok ? ids : null
+  }
+
+  /** Writes plain fields of a cell as an undo step of its own (a fit window set on the figure, a value taken over). */
+  function setFieldsStep(id: string, fields: Record<string, unknown>): boolean {
+    if (readonly) return false
+    undoManager.stopCapturing()
+    const ok = setFields(id, fields)
+    undoManager.stopCapturing()
+    return ok
+  }
+
   function deleteCell(id: string): boolean {
     const i = indexOf(id)
     if (i < 0) return false
@@ -299,9 +325,10 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     if (from < 0) return false
     const target = Math.max(0, Math.min(to, cells.length - 1))
     if (target === from) return false
-    const map = cells.get(from)
+    const map: unknown = cells.get(from)
+    if (!(map instanceof Y.Map)) return false
     return transactStep(() => {
-      const copy = copyMap(map, id)
+      const copy = copyMap(map as CellMap, id)
       cells.delete(from, 1)
       cells.insert(target, [copy])
     })
@@ -312,7 +339,9 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     const i = indexOf(id)
     if (i < 0) return null
     const newId = newCellId()
-    const copy = copyMap(cells.get(i), newId)
+    const original: unknown = cells.get(i)
+    if (!(original instanceof Y.Map)) return null
+    const copy = copyMap(original as CellMap, newId)
     if (name !== undefined) copy.set('name', name)
     const ok = transactStep(() => cells.insert(i + 1, [copy]))
     return ok ? newId : null
@@ -329,6 +358,16 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
   /** Appends cells at the end (import "append"); they must already have fresh ids. */
   function appendCells(next: SheetCell[]): boolean {
     return transactStep(() => cells.push(next.map((c) => cellToMap(c, c.id))))
+  }
+
+  /** The results kept with the copy in this browser at the last visit ([] when none). */
+  async function readKeptResults(): Promise<CellResult[]> {
+    return localCopy ? unpackKeptResults(await localCopy.readResults()) : []
+  }
+
+  /** Keeps the latest results with the copy in this browser, for the next opening. */
+  function keepResults(results: Record<string, CellResult>): void {
+    if (!disposed) localCopy?.writeResults(packKeptResults(results))
   }
 
   function undo(): void {
@@ -361,6 +400,8 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     indexOf,
     setFields,
     insertCell,
+    insertCells,
+    setFieldsStep,
     deleteCell,
     moveCell,
     duplicateCell,
@@ -369,6 +410,8 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     undo,
     redo,
     transact,
+    readKeptResults,
+    keepResults,
   }
 }
 

@@ -19,6 +19,8 @@ export { keepPageForOffline } from './localCopyStore'
 export type LocalCopyMode = 'edit' | 'read'
 
 const STORES: [string, IDBObjectStoreParameters?][] = [['updates', { autoIncrement: true }], ['custom']]
+/** The key of the last results in the copy's `custom` store (cleared with the copy: sign-out, expiry, lost access). */
+const RESULTS_KEY = 'results'
 
 /** Reads the marks of a copy (which page wrote it, how many edits wait) without loading its document. */
 async function readMarks(name: string): Promise<{ mode: unknown; pending: unknown }> {
@@ -48,6 +50,10 @@ export interface LocalCopy {
   close(): void
   /** Called when the copy stops being stored while the page is open (deleted by sign-out in another tab). */
   onGone(listener: () => void): void
+  /** The results last kept with this copy (see keptResults.ts), or null when there are none or they do not read. */
+  readResults(): Promise<unknown>
+  /** Keeps the latest results beside the document, replacing the earlier ones. */
+  writeResults(value: unknown): void
 }
 
 /**
@@ -123,6 +129,16 @@ export function openLocalCopy(doc: Y.Doc, userId: string, sheetId: string, mode:
     },
     onGone(listener) {
       gone = listener
+    },
+    async readResults() {
+      const { available } = await ready
+      const p = persistence
+      if (!available || !p) return null
+      return p.get(RESULTS_KEY).catch(() => null)
+    },
+    writeResults(value) {
+      const p = persistence
+      if (p?.synced && !closed) void p.set(RESULTS_KEY, value as string).catch(() => undefined)
     },
   }
 }

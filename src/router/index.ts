@@ -32,6 +32,12 @@ export const router = createRouter({
     { path: '/invitations/:token', name: 'invitation', component: () => import('@/views/InvitationView.vue'), meta: { access: 'public', title: 'Invitation', bare: true } },
     { path: '/labs', name: 'labs', component: () => import('@/views/LabsView.vue'), meta: { access: 'signed-in', title: 'My labs' } },
     { path: '/labs/:labId', name: 'lab', component: () => import('@/views/LabView.vue'), meta: { access: 'signed-in', title: 'Lab' } },
+    { path: '/labs/:labId/reviews', name: 'reviews', component: () => import('@/views/ReviewQueueView.vue'), meta: { access: 'signed-in', title: 'Reviews' } },
+    { path: '/sheets/:sheetId/snapshots', name: 'snapshots', component: () => import('@/views/SnapshotsView.vue'), meta: { access: 'signed-in', title: 'Snapshots' } },
+    { path: '/sheets/:sheetId/snapshots/:snapshotId', name: 'snapshot', component: () => import('@/views/SnapshotView.vue'), meta: { access: 'signed-in', title: 'Snapshot' } },
+    { path: '/sheets/:sheetId/snapshots/:snapshotId/compare/:other', name: 'compare', component: () => import('@/views/CompareView.vue'), meta: { access: 'signed-in', title: 'Compare' } },
+    { path: '/sheets/:sheetId/snapshots/:snapshotId/report', name: 'report', component: () => import('@/views/ReportView.vue'), meta: { access: 'signed-in', title: 'Review report', bare: true } },
+    { path: '/guest/:token', name: 'guest-link', component: () => import('@/views/GuestView.vue'), meta: { access: 'public', title: 'Snapshot', bare: true } },
     { path: '/sheets/:sheetId', name: 'sheet', component: () => import('@/views/SheetView.vue'), meta: { access: 'signed-in', title: 'Sheet' } },
     { path: '/profile', name: 'profile', component: () => import('@/views/ProfileView.vue'), meta: { access: 'signed-in', title: 'Profile' } },
     { path: '/help', name: 'help', component: () => import('@/views/HelpView.vue'), meta: { access: 'public', title: 'Help' } },
@@ -41,6 +47,14 @@ export const router = createRouter({
 
 router.beforeEach(async (to): Promise<RouteLocationRaw | true> => {
   const session = useSessionStore()
+  // the page's code loads while the session is checked, not after (the router fetches lazy views only once the
+  // guards have answered; the module cache makes its own import reuse this one)
+  for (const record of to.matched) {
+    const view = record.components?.default
+    // a lazy view is a bare loader function; a component written as a function carries props or a name (vue-router's own test)
+    if (typeof view === 'function' && !('props' in view) && !('displayName' in view) && !('__vccOpts' in view))
+      void (view as () => Promise<unknown>)().catch(() => undefined)
+  }
   await session.ensureLoaded()
   const access = to.meta.access ?? 'signed-in'
   if (access === 'signed-in' && !session.signedIn)

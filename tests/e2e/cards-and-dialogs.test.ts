@@ -48,14 +48,14 @@ describe('lab dialogs', () => {
 })
 
 describe('cards', () => {
-  it('shows the Tauc slope in J·m⁻², and a blocked cell names its failed input, asking only an editor to fix it', async () => {
+  it('shows the Tauc slope in eV/cm² (the units of its x and y cells), and a blocked cell names its failed input, asking only an editor to fix it', async () => {
     const editor = await e2e.newBrowser({ label: 'editor' })
     await signIn(editor.page, e2e.server.url, DEMO.editor)
     const sheetId = await createSheet(editor.page, 'Cards check', EDGE_SHEET)
     await openLive(editor.page, sheetId)
 
     const fit = card(editor.page, 'edge')
-    await expect.poll(() => fit.locator('.el-table').textContent(), { timeout: 20_000 }).toContain('J·m⁻²')
+    await expect.poll(() => fit.locator('.el-table').textContent(), { timeout: 20_000 }).toContain('eV/cm²')
     expect(await fit.locator('.el-table').textContent()).not.toMatch(/\bSI\b/)
 
     const blocked = card(editor.page, 'twice').locator('.blocked')
@@ -89,7 +89,7 @@ describe('cards', () => {
     await openLive(editor.page, sheetId)
     const fit = card(editor.page, 'edge')
     // every result is in (nothing above moves any more) before the field's place on its card is measured
-    await expect.poll(() => fit.locator('.el-table').textContent(), { timeout: 20_000 }).toContain('J·m⁻²')
+    await expect.poll(() => fit.locator('.el-table').textContent(), { timeout: 20_000 }).toContain('eV/cm²')
     await expect.poll(() => card(editor.page, 'twice').locator('.blocked').count(), { timeout: 20_000 }).toBe(1)
     await fit.scrollIntoViewIfNeeded()
     const offset = () => fit.evaluate((el) => el.querySelector('input[aria-label="x cell"]')!.getBoundingClientRect().top - el.getBoundingClientRect().top)
@@ -120,7 +120,7 @@ describe('cards', () => {
     const sheetId = await createSheet(phone.page, 'Cards on a phone', EDGE_SHEET)
     await openLive(phone.page, sheetId)
     const list = card(phone.page, 'edge').locator('dl[aria-label="Fit results"]')
-    await expect.poll(() => list.textContent(), { timeout: 20_000 }).toContain('J·m⁻²')
+    await expect.poll(() => list.textContent(), { timeout: 20_000 }).toContain('eV/cm²')
     expect(await list.textContent()).toContain('band gap')
     expect(await card(phone.page, 'edge').locator('.el-table').count()).toBe(0)
     const overflow = await card(phone.page, 'edge').evaluate((el) => el.scrollWidth - el.clientWidth)

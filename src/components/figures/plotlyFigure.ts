@@ -136,7 +136,7 @@ export function figureToPlotly(model: FigureModel, theme: Theme = DEFAULT_THEME,
       name: s.name,
       x: gaps(s.x),
       y: gaps(s.y),
-      line: { color, width: s.color === 'accent' ? 2 : 1.8 },
+      line: { color, width: s.color === 'accent' ? 2 : 1.8, ...(s.dashed ? { dash: 'dash' as const } : {}) },
       marker: { color, size: s.style === 'points' ? 5 : 4, line: { width: 0 } },
       connectgaps: false,
       hovertemplate: hover(s.name),
@@ -271,16 +271,17 @@ export function figureToPlotly(model: FigureModel, theme: Theme = DEFAULT_THEME,
       layer: 'below',
       label: { text: r.label, textposition: 'top center', font: { size: 10.5, color: theme.muted, family: theme.fontSans } },
     })
-  // labels of neighbouring marks go outward: the lower one to the left of its line, the next to the right, …
-  const rank = new Map(
-    model.marks
-      .map((m, i) => ({ at: m.at, i }))
-      .sort((a, b) => a.at - b.at)
-      .map((m, r) => [m.i, r]),
+  // labels of close marks go to alternate sides of their lines and, in a crowd, step along them (see markLabelPlaces)
+  const markAxisModel = vertical ? model.x : model.y
+  const markExtent: [number, number] | null = vertical ? (extent ? [extent[0], extent[1]] : null) : valueExtent(axisValues(model, 'y'), model.y.scale === 'log')
+  const places = markLabelPlaces(
+    model.marks.map((m) => m.at),
+    markAxisModel.range ? [Math.min(...markAxisModel.range), Math.max(...markAxisModel.range)] : markExtent,
+    markAxisModel.scale === 'log',
   )
   model.marks.forEach((mark, i) => {
     const dash = MARK_DASHES[i % MARK_DASHES.length]
-    const side = (rank.get(i) ?? i) % 2
+    const { side, level } = places[i]
     if (mark.band)
       shapes.push({
         type: 'rect',
@@ -308,8 +309,8 @@ export function figureToPlotly(model: FigureModel, theme: Theme = DEFAULT_THEME,
       annotations.push({
         xref: vertical ? 'x' : 'paper',
         yref: vertical ? 'paper' : 'y',
-        x: vertical ? pos : 1,
-        y: vertical ? 1 : pos,
+        x: vertical ? pos : 1 - level * MARK_LABEL_STEP,
+        y: vertical ? 1 - level * MARK_LABEL_STEP : pos,
         text: escapeHtml(mark.ref),
         showarrow: false,
         textangle: vertical ? -90 : 0,
@@ -361,7 +362,7 @@ export function figureToPlotly(model: FigureModel, theme: Theme = DEFAULT_THEME,
     shapes,
     annotations,
   }
-  return { data, layout, config: { displayModeBar: 'hover' } }
+  return { data, layout, config: { displayModeBar: false } }
 }
 
 /** '#rrggbb' (or any other CSS colour) with an alpha, for label backgrounds. */
@@ -392,6 +393,48 @@ function legendLines(data: Data[], width = 0): number {
 }
 
 const MARK_DASHES = ['dash', 'dot', 'dashdot', 'longdash'] as const
+
+/** How far (fraction of the frame) each further label of a crowd of marks steps along its line. */
+const MARK_LABEL_STEP = 0.3
+/** Marks closer than this fraction of the axis count as neighbours whose labels could collide. */
+const MARK_NEIGHBOUR = 0.06
+
+/**
+ * Where each mark's label goes: `side` 0 before its line (left, or below), 1 after it; `level` 0 at the frame's edge,
+ * 1, 2 … stepped along the line. Marks are taken in axis order; a run of marks each closer than MARK_NEIGHBOUR of the
+ * axis span to the previous is a crowd: its labels alternate sides, and every pair after the first steps one level
+ * in, so two labels never share a side and a level within a crowd. Two close gaps thus read "Eg1 | Eg2" on either
+ * side of their lines; a third moves down. Without a known span every mark is its own neighbour (the safe case).
+ */
+export function markLabelPlaces(positions: readonly number[], span: [number, number] | null | undefined, log: boolean): { side: 0 | 1; level: number }[] {
+  const t = (v: number) => (log ? (v > 0 ? Math.log10(v) : NaN) : v)
+  const lo = span ? t(span[0]) : NaN
+  const hi = span ? t(span[1]) : NaN
+  const width = Number.isFinite(lo) && Number.isFinite(hi) && hi > lo ? hi - lo : NaN
+  const order = positions.map((at, i) => ({ at: t(at), i })).sort((a, b) => (a.at - b.at) || a.i - b.i)
+  const out: { side: 0 | 1; level: number }[] = positions.map(() => ({ side: 0, level: 0 }))
+  let k = 0
+  order.forEach((m, r) => {
+    const prev = order[r - 1]
+    const near = prev !== undefined && (!Number.isFinite(width) || !(Math.abs(m.at - prev.at) >= MARK_NEIGHBOUR * width))
+    k = near ? k + 1 : 0
+    out[m.i] = { side: (k % 2) as 0 | 1, level: Math.floor(k / 2) % 3 }
+  })
+  return out
+}
+
+/** The extent of finite values (positive ones on a log axis), or null. */
+function valueExtent(lists: readonly (readonly number[])[], log: boolean): [number, number] | null {
+  let lo = Infinity
+  let hi = -Infinity
+  for (const list of lists)
+    for (const v of list)
+      if (Number.isFinite(v) && (!log || v > 0)) {
+        if (v < lo) lo = v
+        if (v > hi) hi = v
+      }
+  return lo <= hi ? [lo, hi] : null
+}
 
 /** The numbers drawn along one axis: series, sweep curves, and a map's columns (x) or parameter rows (y). */
 function axisValues(model: FigureModel, which: 'x' | 'y'): number[][] {

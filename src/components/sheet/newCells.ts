@@ -11,13 +11,15 @@ export interface KindInfo {
   hint: string
 }
 
-/** Kinds a person can add from the page (spectrum cells come from an upload or an imported file). */
+/** Kinds a person can add from the page (a spectrum opens the import of a measured file). */
 export const ADDABLE_KINDS: KindInfo[] = [
   { kind: 'parameter', label: 'Parameter', hint: 'a named input with unit and range' },
   { kind: 'formula', label: 'Formula', hint: 'a named computed quantity' },
+  { kind: 'spectrum', label: 'Spectrum', hint: 'measured data from an instrument file' },
   { kind: 'fit', label: 'Fit', hint: 'Tauc, Urbach or a model fit' },
   { kind: 'sweep', label: 'Sweep', hint: 'one parameter over a range' },
   { kind: 'figure', label: 'Figure', hint: 'a chart of other cells' },
+  { kind: 'stack', label: 'Stack', hint: 'layers on a substrate: R, T and each layer\'s absorptance' },
   { kind: 'note', label: 'Note', hint: 'free text in Markdown' },
 ]
 
@@ -150,7 +152,14 @@ export function newCell(kind: CellKind, cells: readonly SheetCell[], above: read
       return { kind, text: '' }
     case 'spectrum':
       return { kind, name, columns: {} }
-    case 'stack':
-      return { kind, name, layers: [] }
+    case 'stack': {
+      // the nearest length-valued grid above is the usual wavelength grid; a working start otherwise
+      const lam = arrays.find((c) => c.kind === 'formula' && /^(nm|um)$|^lam|wavelength/i.test(c.unit ?? c.name ?? ''))?.name
+      return {
+        kind, name, wavelength: lam ?? 'grid(300*nm, 1100*nm, 401)', ambient: '1', angle: '0*deg', polarization: 'unpolarized',
+        layers: [{ name: 'film', thickness: '500*nm', n: '2.5', k: '0.05' }],
+        substrate: { name: 'glass', n: '1.52', k: '0', thickness: '1*mm', coherent: false },
+      }
+    }
   }
 }

@@ -1,6 +1,7 @@
 import { describe, it, expect } from 'vitest'
 import { axisTitle, buildFigure, isGeometric, MAX_DRAWN_POINTS } from '../../../shared/plot/figure'
 import { HC_EV_NM } from '../../../shared/plot/units'
+import { formatNumber } from '../../../shared/plot/format'
 import type { FigureCell } from '../../../shared/schema/sheet'
 import { E, results } from './fixtures'
 
@@ -149,5 +150,31 @@ describe('isGeometric', () => {
     expect(isGeometric([10, 100, 1000, 10000])).toBe(true)
     expect(isGeometric([100, 150, 200])).toBe(false)
     expect(isGeometric([0, 1, 10])).toBe(false)
+  })
+})
+
+describe('buildFigure on log axes with negative values', () => {
+  it('buildFigure says how many negative values a log y axis leaves out, and the lowest', () => {
+    // a measured α that dips below zero at three points below the edge (invented values)
+    const measured = E.map((e, i) => (i < 3 ? -(i + 1) * 10 : 100 * e))
+    const m = buildFigure(fig({ traces: [{ x: 'E', y: 'a_meas' }], y: { scale: 'log' } }), {
+      ...results(),
+      a_meas: { index: 42, name: 'a_meas', kind: 'formula', status: 'ok', value: measured, unit: '1/cm' },
+    })
+    expect(m.series).toHaveLength(1)
+    expect(m.messages).toEqual([
+      `Trace 1 (a_meas against E): 3 of its ${E.length} y values are negative (lowest -30 cm⁻¹) and cannot be shown on the log axis; they are left out of the curve.`,
+    ])
+  })
+  it('buildFigure stays quiet about zeros on a log axis (a model is zero below its gap)', () => {
+    const m = buildFigure(fig({ traces: [{ x: 'E', y: 'alpha' }], y: { scale: 'log' } }), results())
+    expect(m.messages).toEqual([])
+  })
+  it('buildFigure notes negative x values on a log x axis', () => {
+    const m = buildFigure(fig({ traces: [{ x: 'shifted', y: 'alpha' }], x: { scale: 'log' } }), {
+      ...results(),
+      shifted: { index: 43, name: 'shifted', kind: 'formula', status: 'ok', value: E.map((e) => e - E[1]), unit: 'eV' },
+    })
+    expect(m.messages).toEqual([`Trace 1 (alpha against shifted): 1 of its ${E.length} x values is negative (lowest ${formatNumber(E[0] - E[1])} eV) and cannot be shown on the log axis; it is left out of the curve.`])
   })
 })

@@ -94,6 +94,16 @@ describe('fit report', () => {
     ])
   })
 
+  it('fitRows shows each output in the unit the result states: B in eV/cm², α₀ in 1/cm as given, χ² weighted', () => {
+    const tauc = { ...ok({ Eg: 1.5, Eg_err: 0.01, B: 4e9, B_err: 1e7, r2: 0.999, n: 30, chi2: 27.5, reducedChi2: 0.98 }), units: { Eg: 'eV', Eg_err: 'eV', B: 'eV/cm^2', B_err: 'eV/cm^2', r2: '1', n: '1', chi2: '1', reducedChi2: '1' } }
+    const rows = fitRows({ ...fit, sigma: 'salpha' }, tauc, () => undefined)
+    expect(rows.find((r) => r.quantity === 'B')?.unit).toBe('eV/cm²')
+    expect(rows.find((r) => r.quantity === 'χ²')).toMatchObject({ unit: '', meaning: 'Σ((y − fit)/σ)², weighted by the σ cell' })
+    const urbach = { ...ok({ Eu: 22, Eu_err: 1, alpha0: 1.2e4, E0: 1450, r2: 0.99, n: 20 }), unit: 'meV', units: { Eu: 'meV', Eu_err: 'meV', alpha0: '1/cm', E0: 'meV', r2: '1', n: '1' } }
+    const u = fitRows({ ...fit, method: 'urbach', unit: 'meV' }, urbach, () => undefined)
+    expect(u.find((r) => r.quantity === 'α₀')).toMatchObject({ value: '12000', unit: 'cm⁻¹' })
+  })
+
   it('taucSlopeUnit(r) gives the SI unit J^(1/r − 1)·m^(−1/r) of the Tauc slope for each usual exponent', () => {
     // (αE)^(1/r) = B·(E − Eg), α in 1/m and E in J: B carries (J/m)^(1/r) per joule
     expect(taucSlopeUnit(0.5)).toBe('J·m⁻²')

@@ -1,5 +1,5 @@
 import { describe, it, expect } from 'vitest'
-import { DEFAULT_THEME, escapeHtml, figureToPlotly } from '../../../src/components/figures/plotlyFigure'
+import { DEFAULT_THEME, escapeHtml, figureToPlotly, markLabelPlaces } from '../../../src/components/figures/plotlyFigure'
 import { buildFigure } from '../../../shared/plot/figure'
 import { HC_EV_NM } from '../../../shared/plot/units'
 import type { FigureCell } from '../../../shared/schema/sheet'
@@ -9,7 +9,7 @@ const fig = (f: Partial<FigureCell>): FigureCell => ({ kind: 'figure', traces: [
 
 type AnyTrace = { type?: string; mode?: string; name?: string; x?: unknown[]; y?: unknown[]; showlegend?: boolean; line?: { dash?: string } }
 type AnyShape = { type?: string; x0?: number; x1?: number; fillcolor?: string; line?: { dash?: string } }
-type AnyNote = { x?: number; text?: string }
+type AnyNote = { x?: number; y?: number; text?: string; xanchor?: string }
 
 describe('figureToPlotly', () => {
   it('figureToPlotly draws a spectrum with gaps as null and our frame colours', () => {
@@ -75,5 +75,41 @@ describe('figureToPlotly', () => {
 
   it('escapeHtml keeps user labels from becoming markup', () => {
     expect(escapeHtml('<b>T</b> & R')).toBe('&lt;b&gt;T&lt;/b&gt; &amp; R')
+  })
+})
+
+describe('markLabelPlaces', () => {
+  it('markLabelPlaces puts the labels of two close gaps on opposite sides of their lines', () => {
+    // 1.48 and 1.50 eV on a 1.2–2.0 eV axis: 2.5 % of the span apart
+    expect(markLabelPlaces([1.5, 1.48], [1.2, 2.0], false)).toEqual([
+      { side: 1, level: 0 },
+      { side: 0, level: 0 },
+    ])
+  })
+  it('markLabelPlaces steps a third close label along its line', () => {
+    expect(markLabelPlaces([1.48, 1.49, 1.5], [1.2, 2.0], false)).toEqual([
+      { side: 0, level: 0 },
+      { side: 1, level: 0 },
+      { side: 0, level: 1 },
+    ])
+  })
+  it('markLabelPlaces leaves marks far apart at the frame edge on one side', () => {
+    expect(markLabelPlaces([1.3, 1.9], [1.2, 2.0], false)).toEqual([
+      { side: 0, level: 0 },
+      { side: 0, level: 0 },
+    ])
+  })
+  it('markLabelPlaces measures closeness in decades on a log axis', () => {
+    // 100 and 110 on a 1–10⁴ log axis: 0.04 of the four decades apart, close; 100 and 1000: a whole decade, far
+    expect(markLabelPlaces([100, 110], [1, 1e4], true).map((p) => p.side)).toEqual([0, 1])
+    expect(markLabelPlaces([100, 1000], [1, 1e4], true).map((p) => p.side)).toEqual([0, 0])
+  })
+  it('figureToPlotly draws the labels of two close band-gap marks on either side of their lines', () => {
+    const rs = { ...results(), Eg2: { index: 50, name: 'Eg2', kind: 'parameter' as const, status: 'ok' as const, value: 1.5, unit: 'eV' } }
+    const spec = figureToPlotly(buildFigure(fig({ traces: [{ x: 'E', y: 'alpha' }], marks: ['Eg', 'Eg2'] }), rs))
+    const notes = spec.layout.annotations as AnyNote[]
+    const a = notes.find((n) => n.text === 'Eg')!
+    const b = notes.find((n) => n.text === 'Eg2')!
+    expect([a.xanchor, b.xanchor]).toEqual(['right', 'left'])
   })
 })

@@ -1,0 +1,173 @@
+/**
+ * browser-open: how long the built app takes to show a demo sheet in headless Chromium, beside the sign-in page in the
+ * same run (the ratio is what the target is about; the milliseconds move with the machine's load).
+ *
+ * The real server runs as a child (`node --import tsx server/index.ts`) on a free port with a temporary DATA_DIR, so
+ * the demo lab is seeded fresh. For each demo sheet: 5 cold opens (a new browser context each time: empty HTTP cache,
+ * no kept copy, no service worker) and 5 warm opens (one context that has opened the sheet before). Each open is
+ * timed inside the page from the start of navigation (performance.now()) to
+ *   - first cell: the first card (`.pn-cell`) in the DOM,
+ *   - first figure: the first plot drawn (`.pn-plot .main-svg`), for sheets that have a figure in view or below it,
+ * and the sign-in page to its Sign in button, cold and warm alike.
+ *
+ * Needs the built client (`npx vite build`) and /usr/bin/chromium. `npm run bench -- browser` runs it alone.
+ * `BROWSER_BENCH_RUNS=<n>` changes the 5. Targets (on the shared 2-core machine): first cell ≤ 1 s, first figure
+ * ≤ 2 s, first cell ≤ 5× the sign-in page.
+ */
+import { existsSync } from 'node:fs'
+import path from 'node:path'
+import { chromium, type Browser, type BrowserContext } from 'playwright-core'
+import { CHROMIUM, CHROMIUM_ARGS, DEMO, DEMO_LAB, ROOT, startServer } from '../../tests/utils/browser'
+import { CSRF_HEADER } from '../../shared/schema/api'
+import { median, printBench, printTarget } from '../harness'
+
+const RUNS = Math.max(1, Number(process.env.BROWSER_BENCH_RUNS) || 5)
+
+/** Installed before any page script: notes when the first card, the first drawn plot and the sign-in button appear. */
+const PROBE = `(() => {
+  const seen = (window.__pnOpen = {})
+  const check = () => {
+    if (seen.cell === undefined && document.querySelector('.pn-cell')) seen.cell = performance.now()
+    if (seen.figure === undefined && document.querySelector('.pn-plot .main-svg')) seen.figure = performance.now()
+    if (seen.signIn === undefined && document.querySelector('form button[type="submit"]')) seen.signIn = performance.now()
+  }
+  new MutationObserver(check).observe(document, { childList: true, subtree: true })
+})()`
+
+interface OpenTimes {
+  cell?: number
+  figure?: number
+  signIn?: number
+}
+
+async function newContext(browser: Browser): Promise<BrowserContext> {
+  const context = await browser.newContext({ viewport: { width: 1280, height: 800 } })
+  await context.addInitScript(PROBE)
+  return context
+}
+
+async function signInBy(context: BrowserContext, base: string): Promise<void> {
+  const res = await context.request.post(`${base}/api/auth/sign-in`, {
+    data: { email: DEMO.owner.email, password: DEMO.owner.password },
+    headers: { [CSRF_HEADER]: '1' },
+  })
+  if (!res.ok()) throw new Error(`signing in answered ${res.status()}`)
+}
+
+/** Opens `url` in a new tab of `context` and waits for the given marks (or 30 s). */
+async function open(context: BrowserContext, url: string, want: (keyof OpenTimes)[]): Promise<OpenTimes> {
+  const page = await context.newPage()
+  try {
+    await page.goto(url, { waitUntil: 'commit' })
+    await page.waitForFunction((keys) => keys.every((k) => (window as unknown as { __pnOpen?: Record<string, number> }).__pnOpen?.[k] !== undefined), want, {
+      timeout: 30_000,
+      polling: 50,
+    })
+    return await page.evaluate(() => ({ ...(window as unknown as { __pnOpen: OpenTimes }).__pnOpen }))
+  } finally {
+    await page.close()
+  }
+}
+
+function fmt(ms: number): string {
+  return `${Math.round(ms)} ms`
+}
+function spread(xs: number[]): string {
+  return `${Math.round(Math.min(...xs))}–${Math.round(Math.max(...xs))}`
+}
+
+export default async function browserOpen(): Promise<void> {
+  if (!existsSync(CHROMIUM)) {
+    console.log(`bench browser-open: skipped, ${CHROMIUM} is missing (apt-get install chromium)`)
+    return
+  }
+  if (!existsSync(path.join(ROOT, 'dist', 'index.html'))) {
+    console.log('bench browser-open: skipped, the client is not built (run `npx vite build` first)')
+    return
+  }
+  const server = await startServer()
+  const browser = await chromium.launch({ executablePath: CHROMIUM, headless: true, args: CHROMIUM_ARGS })
+  try {
+    const base = server.url
+    const probe = await newContext(browser)
+    await signInBy(probe, base)
+    const labs = (await (await probe.request.get(`${base}/api/labs`)).json()) as { labs: { id: string; name: string }[] }
+    const lab = labs.labs.find((l) => l.name === DEMO_LAB)
+    if (!lab) throw new Error(`the seed has no "${DEMO_LAB}"`)
+    const list = (await (await probe.request.get(`${base}/api/labs/${lab.id}/sheets`)).json()) as { sheets: { id: string; title: string }[] }
+    await probe.close()
+
+    // sign-in page: cold (fresh context each time) and warm (one context), signed out
+    const signInCold: number[] = []
+    const signInWarm: number[] = []
+    const warmSignIn = await newContext(browser)
+    await open(warmSignIn, `${base}/sign-in`, ['signIn'])
+    for (let i = 0; i < RUNS; i++) {
+      const c = await newContext(browser)
+      signInCold.push((await open(c, `${base}/sign-in`, ['signIn'])).signIn!)
+      await c.close()
+      signInWarm.push((await open(warmSignIn, `${base}/sign-in`, ['signIn'])).signIn!)
+    }
+    await warmSignIn.close()
+    const signIn = { cold: median(signInCold), warm: median(signInWarm) }
+    printBench('browser-open sign-in page cold', signIn.cold)
+    console.log(`  ${RUNS} opens: ${spread(signInCold)} ms; warm ${fmt(signIn.warm)} (${spread(signInWarm)} ms)`)
+
+    let allMet = true
+    for (const sheet of list.sheets) {
+      const hasFigure = await sheetHasFigure(browser, base, sheet.id)
+      const want: (keyof OpenTimes)[] = hasFigure ? ['cell', 'figure'] : ['cell']
+      const cold: OpenTimes[] = []
+      const warm: OpenTimes[] = []
+      const warmContext = await newContext(browser)
+      await signInBy(warmContext, base)
+      await open(warmContext, `${base}/sheets/${sheet.id}`, want)
+      for (let i = 0; i < RUNS; i++) {
+        const c = await newContext(browser)
+        await signInBy(c, base)
+        cold.push(await open(c, `${base}/sheets/${sheet.id}`, want))
+        await c.close()
+        warm.push(await open(warmContext, `${base}/sheets/${sheet.id}`, want))
+      }
+      await warmContext.close()
+      for (const [kind, times, ref] of [
+        ['cold', cold, signIn.cold],
+        ['warm', warm, signIn.warm],
+      ] as const) {
+        const cells = times.map((t) => t.cell!)
+        const cell = median(cells)
+        const ratio = cell / ref
+        printBench(`browser-open "${sheet.title}" ${kind} first cell`, cell, ratio, `sign-in page ${kind}`)
+        const notes = [`${RUNS} opens: ${spread(cells)} ms`]
+        let figure: number | undefined
+        if (hasFigure) {
+          const figures = times.map((t) => t.figure!)
+          figure = median(figures)
+          notes.push(`first figure ${fmt(figure)} (${spread(figures)} ms)`)
+        }
+        console.log(`  ${notes.join('; ')}`)
+        const met = cell <= 1000 && ratio <= 5 && (figure === undefined || figure <= 2000)
+        allMet &&= met
+        printTarget(`first cell ≤ 1 s and ≤ 5× sign-in${hasFigure ? ', first figure ≤ 2 s' : ''}`, met)
+      }
+    }
+    if (!allMet) console.log('  (a target missed under load says little on this shared machine: run again when it is quiet)')
+  } finally {
+    await browser.close().catch(() => undefined)
+    await server.stop()
+  }
+}
+
+/** Whether the sheet has a figure cell (or a fit or sweep drawn on its card), read from its file. */
+async function sheetHasFigure(browser: Browser, base: string, sheetId: string): Promise<boolean> {
+  const c = await browser.newContext()
+  try {
+    await signInBy(c, base)
+    const res = await c.request.get(`${base}/api/sheets/${sheetId}/file`)
+    if (!res.ok()) throw new Error(`the sheet file answered ${res.status()}`)
+    const file = (await res.json()) as { cells: { kind: string }[] }
+    return file.cells.some((cell) => cell.kind === 'figure' || cell.kind === 'fit' || cell.kind === 'sweep')
+  } finally {
+    await c.close()
+  }
+}
