@@ -46,6 +46,7 @@ function staticDoc(file: SheetFile): SheetDoc {
     connection: ref('offline'),
     synced: ref(true),
     closedReason: ref(''),
+    accessLost: ref(false),
     denied: ref(''),
     canUndo: ref(false),
     canRedo: ref(false),
