@@ -6,7 +6,7 @@
 import { mkdirSync, readFileSync, writeFileSync } from 'node:fs'
 import path from 'node:path'
 import { describe, expect, it } from 'vitest'
-import type { Page } from 'playwright-core'
+import type { Locator, Page } from 'playwright-core'
 import { DEMO, DEMO_LAB, RESULTS_DIR, signIn, useBrowserSuite } from '../utils/browser'
 
 const e2e = useBrowserSuite()
@@ -23,9 +23,9 @@ async function demoSheetId(page: Page, titleStart: string): Promise<string> {
 
 const plotlyRequested = (urls: string[]) => urls.some((u) => /\/assets\/plotly[^/]*\.js$/.test(u))
 
-/** The first drawn figure's x-axis range, as plotly holds it. */
-const xRange = (page: Page) =>
-  page.locator('.js-plotly-plot').first().evaluate((el) => [...(el as unknown as { _fullLayout: { xaxis: { range: number[] } } })._fullLayout.xaxis.range])
+/** A drawn figure's x-axis range, as plotly holds it. */
+const xRange = (figure: Locator) =>
+  figure.locator('.js-plotly-plot').evaluate((el) => [...(el as unknown as { _fullLayout: { xaxis: { range: number[] } } })._fullLayout.xaxis.range])
 
 describe('figures', () => {
   it('loads the charting library only when a figure nears the viewport, after the first cards', async () => {
@@ -70,16 +70,16 @@ describe('figures', () => {
 
     // zoom by dragging across the plot, then reset
     // plotly's placeholder range (−1 to 6) until the data's own range is set
-    await expect.poll(() => xRange(page), { timeout: 20_000 }).not.toEqual([-1, 6])
-    const before = await xRange(page)
+    await expect.poll(() => xRange(figure), { timeout: 20_000 }).not.toEqual([-1, 6])
+    const before = await xRange(figure)
     const box = (await figure.locator('.nsewdrag').first().boundingBox())!
     await page.mouse.move(box.x + box.width * 0.3, box.y + box.height * 0.5)
     await page.mouse.down()
     await page.mouse.move(box.x + box.width * 0.45, box.y + box.height * 0.5, { steps: 5 })
     await page.mouse.up()
-    await expect.poll(() => xRange(page), { timeout: 20_000 }).not.toEqual(before)
+    await expect.poll(() => xRange(figure), { timeout: 20_000 }).not.toEqual(before)
     await toolbar.getByRole('button', { name: 'Reset view' }).click()
-    await expect.poll(async () => (await xRange(page)).map((v) => Number(v.toPrecision(9))), { timeout: 20_000 }).toEqual(before.map((v) => Number(v.toPrecision(9))))
+    await expect.poll(async () => (await xRange(figure)).map((v) => Number(v.toPrecision(9))), { timeout: 20_000 }).toEqual(before.map((v) => Number(v.toPrecision(9))))
 
     // SVG: Fira Sans and Fira Mono embedded as data: fonts, and every text drawn in them
     const save = async (name: string) => {

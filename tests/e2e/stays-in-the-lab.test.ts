@@ -63,7 +63,7 @@ async function visit(page: Page, url: string, scroll: boolean): Promise<void> {
   await page.goto(url)
   await page.waitForLoadState('load')
   // the app has rendered something of its own
-  await expect.poll(() => page.locator('#app *').count(), { timeout: 15_000 }).toBeGreaterThan(0)
+  await expect.poll(() => page.locator('body *').count(), { timeout: 15_000 }).toBeGreaterThan(0)
   if (scroll) {
     await expect.poll(() => page.locator('.pn-cell').count(), { timeout: 30_000 }).toBeGreaterThan(0)
     // every card built, then every figure brought near the viewport so it draws
