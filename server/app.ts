@@ -14,8 +14,10 @@ import { authRoutes } from './routes/auth'
 import { labRoutes } from './routes/labs'
 import { invitationRoutes } from './routes/invitations'
 import { sheetRoutes } from './routes/sheets'
+import { datasetRoutes } from './routes/datasets'
 import { EVALUATE_PATH, evaluateRoutes } from './routes/evaluate'
 import { devMailRoutes } from './routes/devMail'
+import { guestHeaders, snapshotRoutes } from './routes/snapshots'
 import { clientRoutes } from './static'
 import { SHEET_MEDIA_TYPE } from '../shared/schema/sheet'
 import './types'
@@ -71,15 +73,31 @@ export function createApp(deps: AppDeps): Express {
   })
   api.use('/auth', authRoutes(deps))
   const { labSheets, sheets } = sheetRoutes(deps)
+  const snap = snapshotRoutes(deps)
   api.use('/labs/:labId/sheets', labSheets)
+  api.use('/labs/:labId/reviews', snap.labReviews)
+  api.use('/sheets/:sheetId', snap.sheetScoped)
+  api.use('/snapshots', snap.snapshots)
+  api.use('/reviews', snap.reviews)
+  api.use('/comments', snap.comments)
+  api.use('/guest-links', snap.links)
+  api.use('/guest', snap.guest)
   api.use('/labs', labRoutes(deps))
   api.use('/invitations', invitationRoutes(deps))
+  const { sheetDatasets, datasets } = datasetRoutes(deps)
+  api.use('/sheets', sheetDatasets)
   api.use('/sheets', sheets)
+  api.use('/datasets', datasets)
   api.use('/evaluate', evaluateRoutes(config))
   api.use(notFoundHandler)
   app.use('/api', api)
 
   if (!config.production) app.use('/dev', devMailRoutes(deps))
+  // a guest's page (served by the client) is never indexed and never sends a referrer
+  app.use('/guest', (_req, res, next) => {
+    guestHeaders(res)
+    next()
+  })
   if (config.clientDir) app.use(clientRoutes(config.clientDir))
 
   app.use(notFoundHandler)

@@ -2,11 +2,14 @@
 import type { Db } from './db/client'
 import type { AppConfig } from './config'
 import type { Mailer } from './mail/mailer'
+import type { Evaluator } from './services/evaluation'
 
 /** Called after the change is stored, so the live collaboration layer can disconnect or downgrade people. */
 export interface AppHooks {
   membershipChanged?(labId: string, userId: string): void
   sheetDeleted?(sheetId: string): void
+  /** Some of the person's sessions ended (signed out, password changed or reset): their open websockets are checked now. */
+  sessionsEnded?(userId: string): void
 }
 
 export interface AppDeps {
@@ -15,6 +18,8 @@ export interface AppDeps {
   mailer: Mailer
   config: AppConfig
   hooks?: AppHooks
+  /** The server's evaluator for freezing and comparing (default: the process's shared worker pool). */
+  evaluator?: Evaluator
 }
 
 /** Calls a hook without letting its failure undo or fail the request that triggered it. */

@@ -6,6 +6,8 @@ export class HttpError extends Error {
     readonly status: number,
     message: string,
     readonly issues?: ApiIssue[],
+    /** More fields for the reply body (e.g. `offer`: an option that would get past the problem). */
+    readonly extra?: Record<string, unknown>,
   ) {
     super(message)
     this.name = 'HttpError'

@@ -16,6 +16,7 @@ import { createApp } from './app'
 import { defaultConfig, type AppConfig } from './config'
 import { openDb, type DbHandle } from './db/client'
 import { demoAccountsPresent, formatDemoTable, isEmpty, seedDemo } from './db/seed'
+import { demoGuestUrl } from './db/seedSnapshots'
 import { createDevMailer, smtpMailer, type Mailer } from './mail/mailer'
 import { pruneExpired } from './services/housekeeping'
 import { closeSharedEvaluator } from './services/evaluation'
@@ -39,8 +40,22 @@ export interface ServerEnv {
   DEV_SMTP_PORT?: string
 }
 
+/**
+ * The address the server listens on: HOST when set (e.g. `0.0.0.0` to let the lab's other machines in); otherwise
+ * every interface in production, and only this machine (127.0.0.1) outside it, so a development server with its
+ * mailbox of sign-in links is not reachable from the network by accident.
+ */
+export function listenHost(env: Pick<ServerEnv, 'HOST' | 'NODE_ENV'>): string | undefined {
+  if (env.HOST) return env.HOST
+  return env.NODE_ENV === 'production' ? undefined : '127.0.0.1'
+}
+
 export interface RunningServer {
   url: string
+  /** The address listened on (see listenHost). */
+  host: string
+  /** The demo lab's guest link while it is usable (printed at start), else null. */
+  demoGuestUrl: string | null
   port: number
   dataDir: string
   handle: DbHandle
@@ -103,7 +118,7 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
   })
 
   if (isEmpty(handle.db)) {
-    const seeded = await seedDemo({ db: handle.db, config }, { warn })
+    const seeded = await seedDemo({ db: handle.db, config }, { warn, secret })
     log(`Seeded the demo lab with ${seeded.sheets.length} sheet(s).`)
   }
 
@@ -117,6 +132,7 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
   const hooks: AppHooks = {
     membershipChanged: (labId, userId) => collab.membershipChanged(labId, userId),
     sheetDeleted: (sheetId) => collab.sheetDeleted(sheetId),
+    sessionsEnded: (userId) => collab.sessionsEnded(userId),
   }
   const app = createApp({ db: handle.db, secret, mailer, config, hooks })
   const server = http.createServer(app)
@@ -134,7 +150,7 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
 
   await new Promise<void>((resolve, reject) => {
     server.once('error', reject)
-    server.listen(port, env.HOST, () => {
+    server.listen(port, listenHost(env), () => {
       server.off('error', reject)
       resolve()
     })
@@ -164,7 +180,19 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
       handle.close()
     })())
 
-  return { url, port: actualPort, dataDir, handle, mailer, config, collab, close }
+  const address = server.address()
+  return {
+    url,
+    host: typeof address === 'object' && address ? address.address : '',
+    demoGuestUrl: demoGuestUrl(handle.db, secret, config),
+    port: actualPort,
+    dataDir,
+    handle,
+    mailer,
+    config,
+    collab,
+    close,
+  }
 }
 
 async function main(): Promise<void> {
@@ -178,6 +206,7 @@ async function main(): Promise<void> {
   console.log(`Penumbra is running at ${running.url}`)
   const demo = demoAccountsPresent(running.handle.db)
   if (demo.length > 0) console.log(`\nDemo sign-ins (fictional lab "Halvorsen Thin-Film Lab"):\n${formatDemoTable(demo)}\n`)
+  if (running.demoGuestUrl) console.log(`Demo guest link (a snapshot of Film H-17, no sign-in): ${running.demoGuestUrl}`)
   if (!running.config.production) console.log(`Mail sent while developing: ${running.url}/dev/mail`)
 
   let stopping = false

@@ -5,20 +5,26 @@
  * Exit status: 0 for a valid sheet, even when cells have errors (they are in the result); 2 when the file cannot be
  * read or is not a valid sheet file, with one problem per line on standard error (`cells[3].source: required`).
  * Option `--pretty` indents the JSON.
+ *
+ * `--check` takes an exported snapshot file (GET /api/snapshots/:id/file: the sheet file plus `snapshot: { hash,
+ * results }`), recomputes it and compares: exit 0 when the sheet's hash and every stored result match to the last
+ * bit, 1 naming each cell that differs (and a changed hash), 2 for a file that is not a valid snapshot file.
  */
 import { readFileSync } from 'node:fs'
 import { evaluateSheet, type EvaluationResult } from '../../shared/engine/index'
 import { parseSheetFileText } from '../../shared/schema/sheet'
+import { checkSnapshot } from './checkSnapshot'
 
-const USAGE = 'usage: npm run --silent evaluate -- [--pretty] <file.penumbra.json | ->'
+const USAGE = 'usage: npm run --silent evaluate -- [--pretty | --check] <file.penumbra.json | ->'
 
 function readInput(arg: string): string {
   return arg === '-' ? readFileSync(0, 'utf8') : readFileSync(arg, 'utf8')
 }
 
 export function main(argv: readonly string[]): number {
-  const args = argv.filter((a) => a !== '--pretty')
-  const pretty = args.length !== argv.length
+  const check = argv.includes('--check')
+  const args = argv.filter((a) => a !== '--pretty' && a !== '--check')
+  const pretty = argv.includes('--pretty')
   if (args.length !== 1 || (args[0].startsWith('--') && args[0] !== '-')) {
     process.stderr.write(`${USAGE}\n`)
     return 2
@@ -33,6 +39,8 @@ export function main(argv: readonly string[]): number {
     process.stderr.write(`${source === '-' ? 'standard input' : source}: cannot read: ${why}\n`)
     return 2
   }
+  if (check)
+    return checkSnapshot(text, source === '-' ? 'standard input' : source, (l) => process.stdout.write(`${l}\n`), (l) => process.stderr.write(`${l}\n`))
   const parsed = parseSheetFileText(text)
   if (!parsed.ok) {
     const where = source === '-' ? 'standard input' : source

@@ -10,6 +10,8 @@ export type BusEvent =
   | { type: 'awareness'; sheetId: string; update: Uint8Array }
   | { type: 'membership'; labId: string; userId: string }
   | { type: 'sheet-deleted'; sheetId: string }
+  /** Some of a person's sessions ended (sign-out, password change or reset): every instance checks their sockets now. */
+  | { type: 'sessions'; userId: string }
 
 export interface CollabBus {
   /** Sends an event to every other instance (never back to the publisher). */

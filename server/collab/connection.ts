@@ -8,7 +8,7 @@ import type { Role } from '../db/schema'
 import { canWrite } from '../services/access'
 import type { Admission } from './auth'
 import type { DocEntry, DocumentRegistry, RegistryPeer } from './registry'
-import { checkUpdate, decodeClientMessage, encodePermissionDenied, type AwarenessEntry } from './protocol'
+import { checkUpdate, decodeClientMessage, encodePermissionDenied, presenceProblem, type AwarenessEntry } from './protocol'
 
 /** Close codes. 44xx tell the y-websocket client not to reconnect (the server decided); the others are transient. */
 export const CLOSE = {
@@ -63,12 +63,14 @@ export interface ConnectionCounters {
   textFrames: number
   rateLimited: number
   awarenessRefused: number
+  /** Well-formed document updates refused because they would break the sheet document's shape (shape.ts). */
+  refusedUpdates: number
   /** Messages whose handling threw (a server bug, never a client's fault alone); their connections were closed. */
   unexpectedFailures: number
 }
 
 export function emptyConnectionCounters(): ConnectionCounters {
-  return { deniedUpdates: 0, malformedFrames: 0, oversizeFrames: 0, textFrames: 0, rateLimited: 0, awarenessRefused: 0, unexpectedFailures: 0 }
+  return { deniedUpdates: 0, malformedFrames: 0, oversizeFrames: 0, textFrames: 0, rateLimited: 0, awarenessRefused: 0, refusedUpdates: 0, unexpectedFailures: 0 }
 }
 
 const WS_OPEN = 1
@@ -279,10 +281,11 @@ export class CollabConnection implements RegistryPeer {
           this.deny()
           return
         }
-        const problem = checkUpdate(message.update)
-        if (problem) {
-          this.counters.malformedFrames++
-          this.close(CLOSE.malformed, problem)
+        const check = checkUpdate(message.update, this.entry.doc)
+        if (!check.ok) {
+          if (check.malformed) this.counters.malformedFrames++
+          else this.counters.refusedUpdates++
+          this.close(CLOSE.malformed, check.reason)
           return
         }
         try {
@@ -298,8 +301,11 @@ export class CollabConnection implements RegistryPeer {
         return
       }
       case 'awareness': {
-        const refused = this.registry.applyAwareness(this.entry, this, message.entries.map((e) => this.stamp(e)))
-        this.counters.awarenessRefused += refused
+        // presence that other clients would put into style attributes and labels is checked first; a bad entry is
+        // dropped and counted, the rest go on
+        const valid = message.entries.filter((e) => presenceProblem(e.state) === null)
+        const refused = this.registry.applyAwareness(this.entry, this, valid.map((e) => this.stamp(e)))
+        this.counters.awarenessRefused += refused + message.entries.length - valid.length
         return
       }
       case 'query-awareness':

@@ -73,6 +73,8 @@ export interface Collab {
   membershipChanged(labId: string, userId: string): void
   /** A sheet was deleted: its connections are closed (4404) and its document unloaded. */
   sheetDeleted(sheetId: string): void
+  /** Some of a person's sessions ended: their connections here and on every other instance are checked at once. */
+  sessionsEnded(userId: string): void
   /**
    * Changes a sheet's live document from the server (import into an existing sheet, restore): stored before it
    * returns and relayed to everyone connected, like an editor's change.
@@ -107,6 +109,7 @@ export function createCollab(options: CollabOptions): Collab {
     log,
     onControl: (event) => {
       if (event.type === 'membership') applyMembership(event.labId, event.userId)
+      else if (event.type === 'sessions') recheckUser(event.userId)
       else closeSheet(event.sheetId)
     },
   })
@@ -150,6 +153,12 @@ export function createCollab(options: CollabOptions): Collab {
       // .catch, not a second .then argument: a failed database read in the check above must not become an
       // unhandled rejection (which ends the process).
       .catch((err: Error) => log(`recheck of a connection failed: ${err.message}`))
+  }
+
+  /** Checks every open connection of one person now (a session of theirs ended), instead of at the next recheck. */
+  function recheckUser(userId: string) {
+    const now = Date.now()
+    for (const conn of connections) if (conn.userId === userId) recheck(conn, now)
   }
 
   function applyMembership(labId: string, userId: string) {
@@ -214,6 +223,11 @@ export function createCollab(options: CollabOptions): Collab {
     membershipChanged(labId, userId) {
       applyMembership(labId, userId)
       bus.publish(instanceId, { type: 'membership', labId, userId })
+    },
+
+    sessionsEnded(userId) {
+      recheckUser(userId)
+      bus.publish(instanceId, { type: 'sessions', userId })
     },
 
     sheetDeleted(sheetId) {

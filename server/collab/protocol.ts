@@ -14,6 +14,7 @@ import * as Y from 'yjs'
 import * as syncProtocol from 'y-protocols/sync'
 import * as authProtocol from 'y-protocols/auth'
 import * as awarenessProtocol from 'y-protocols/awareness'
+import { checkShape } from './shape'
 
 export const MESSAGE_SYNC = 0
 export const MESSAGE_AWARENESS = 1
@@ -117,6 +118,33 @@ export function decodeAwarenessUpdate(update: Uint8Array): AwarenessEntry[] {
   return entries
 }
 
+/** A presence colour: `#rgb`, `#rrggbb`, or either with an alpha digit pair (`#rrggbbaa`, the light caret tint). */
+const HEX_COLOUR = /^#(?:[0-9a-fA-F]{3}|[0-9a-fA-F]{6}|[0-9a-fA-F]{8})$/
+/** A short plain name: no control characters and nothing that could open markup. */
+const PLAIN_NAME = /^[^\u0000-\u001f\u007f<>]{1,80}$/
+/** A cell id as the sheet document holds them. */
+const CELL_ID = /^[\w-]{1,64}$/
+
+/**
+ * Checks one client's own presence before it is relayed (other clients put these fields in style attributes and
+ * labels): `user.color` and `user.colorLight` hex colours, `user.name` a short plain string, `cell` null or a cell id.
+ * Returns the problem, or null. A state of null (the client left) is always fine.
+ */
+export function presenceProblem(state: Record<string, unknown> | null): string | null {
+  if (state === null) return null
+  const user = state.user
+  if (user !== undefined) {
+    if (user === null || typeof user !== 'object' || Array.isArray(user)) return 'presence user must be an object'
+    const u = user as Record<string, unknown>
+    for (const key of ['color', 'colorLight'])
+      if (u[key] !== undefined && (typeof u[key] !== 'string' || !HEX_COLOUR.test(u[key]))) return `presence ${key} must be a hex colour like #1f6feb`
+    if (u.name !== undefined && (typeof u.name !== 'string' || !PLAIN_NAME.test(u.name))) return 'presence name must be plain text of at most 80 characters'
+  }
+  const cell = state.cell
+  if (cell !== undefined && cell !== null && (typeof cell !== 'string' || !CELL_ID.test(cell))) return 'presence cell must be a cell id or null'
+  return null
+}
+
 /** Re-encodes awareness entries in the y-protocols format. */
 export function encodeAwarenessEntries(entries: readonly AwarenessEntry[]): Uint8Array {
   const encoder = encoding.createEncoder()
@@ -195,11 +223,22 @@ function contentValues(content: unknown): unknown[] {
   return []
 }
 
+export type UpdateCheck = { ok: true } | { ok: false; malformed: boolean; reason: string }
+
 /**
  * Parses a Yjs (v1) update completely without applying it, so a malformed one is refused before it touches a
- * document; also refuses content nested deeper than MAX_UPDATE_VALUE_DEPTH.
+ * document; also refuses content nested deeper than MAX_UPDATE_VALUE_DEPTH, and, given the live document, an update
+ * that would break the sheet document's shape (shape.ts).
  */
-export function checkUpdate(update: Uint8Array): string | null {
+export function checkUpdate(update: Uint8Array, doc?: Y.Doc): UpdateCheck {
+  const problem = parseUpdate(update)
+  if (typeof problem === 'string') return { ok: false, malformed: true, reason: problem }
+  if (!doc) return { ok: true }
+  const shape = checkShape(doc, problem)
+  return shape === null ? { ok: true } : { ok: false, malformed: false, reason: `edit refused: ${shape}` }
+}
+
+function parseUpdate(update: Uint8Array): string | ReturnType<typeof Y.decodeUpdate> {
   let decoded: ReturnType<typeof Y.decodeUpdate>
   try {
     decoded = Y.decodeUpdate(update)
@@ -212,7 +251,7 @@ export function checkUpdate(update: Uint8Array): string | null {
       if (jsonDepth(value, MAX_UPDATE_VALUE_DEPTH) > MAX_UPDATE_VALUE_DEPTH)
         return `document update holds a value nested more than ${MAX_UPDATE_VALUE_DEPTH} levels deep`
   }
-  return null
+  return decoded
 }
 
 export function encodeSyncStep1(doc: Y.Doc): Uint8Array {

@@ -44,7 +44,7 @@ export interface RegistryOptions {
   /** Drop a document from memory after this long without peers. */
   evictAfterMs: number
   /** Control events from other instances (membership, deleted sheets) for the transport. */
-  onControl?: (event: Extract<BusEvent, { type: 'membership' | 'sheet-deleted' }>) => void
+  onControl?: (event: Extract<BusEvent, { type: 'membership' | 'sheet-deleted' | 'sessions' }>) => void
   log?: (message: string) => void
 }
 
@@ -459,7 +459,7 @@ export class DocumentRegistry {
   }
 
   private onBusEvent(event: BusEvent): void {
-    if (event.type === 'membership' || event.type === 'sheet-deleted') {
+    if (event.type === 'membership' || event.type === 'sheet-deleted' || event.type === 'sessions') {
       this.options.onControl?.(event)
       return
     }

@@ -135,3 +135,127 @@ export const pendingSignups = sqliteTable('pending_signups', {
   expiresAt: integer('expires_at', { mode: 'number' }).notNull(),
   usedAt: integer('used_at', { mode: 'number' }),
 })
+
+/**
+ * Measured data uploaded to a lab (the numbers behind spectrum cells). The live document names a dataset by id and
+ * carries only its column metadata; the numbers are here, every column's Float64 values (little-endian) one after
+ * the other in `values`, in the order and with the counts of `columns`. Rows are never changed: replacing a
+ * spectrum's data stores a new dataset, and deleting a cell (or its sheet) leaves the dataset for snapshots.
+ */
+export const datasets = sqliteTable(
+  'datasets',
+  {
+    id: text('id').primaryKey(),
+    labId: text('lab_id').notNull().references(() => labs.id, { onDelete: 'cascade' }),
+    /** The sheet it was uploaded to (null once that sheet is deleted). */
+    sheetId: text('sheet_id').references(() => sheets.id, { onDelete: 'set null' }),
+    name: text('name').notNull(),
+    /** The uploaded file's name, or the spectrum cell's source in an imported sheet file. */
+    sourceName: text('source_name'),
+    uploadedBy: text('uploaded_by').references(() => users.id, { onDelete: 'set null' }),
+    createdAt: createdAt(),
+    /** JSON: [{ name, quantity, unit, count }] in the order of `values`. */
+    columns: text('columns').notNull(),
+    values: blob('values', { mode: 'buffer' }).notNull(),
+  },
+  (t) => [index('datasets_lab_idx').on(t.labId), index('datasets_sheet_idx').on(t.sheetId)],
+)
+
+/**
+ * A snapshot: an immutable copy of a sheet with the results the server's engine computed from it. Rows are only ever
+ * inserted and (by an owner, when nothing uses them) deleted; no code path updates one.
+ * `file` is the canonical sheet file text (sorted keys, datasets inlined) whose SHA-256 is `hash`;
+ * `results` is the engine's result object as JSON text, exactly what the command-line evaluator prints for `file`.
+ */
+export const snapshots = sqliteTable(
+  'snapshots',
+  {
+    id: text('id').primaryKey(),
+    sheetId: text('sheet_id').notNull().references(() => sheets.id, { onDelete: 'cascade' }),
+    labId: text('lab_id').notNull().references(() => labs.id, { onDelete: 'cascade' }),
+    /** The live document's Yjs state when it was frozen (Y.encodeStateAsUpdate). */
+    docState: blob('doc_state', { mode: 'buffer' }).notNull(),
+    file: text('file').notNull(),
+    results: text('results').notNull(),
+    engineVersion: text('engine_version').notNull(),
+    hash: text('hash').notNull(),
+    message: text('message').notNull(),
+    createdBy: text('created_by').notNull().references(() => users.id),
+    createdAt: createdAt(),
+  },
+  (t) => [index('snapshots_sheet_idx').on(t.sheetId, t.createdAt)],
+)
+
+/** Comment threads on a cell of a live sheet (`snapshotId` null) or of a snapshot; replies point at their thread's first comment. */
+export const comments = sqliteTable(
+  'comments',
+  {
+    id: text('id').primaryKey(),
+    sheetId: text('sheet_id').notNull().references(() => sheets.id, { onDelete: 'cascade' }),
+    labId: text('lab_id').notNull().references(() => labs.id, { onDelete: 'cascade' }),
+    cellId: text('cell_id').notNull(),
+    snapshotId: text('snapshot_id').references(() => snapshots.id, { onDelete: 'cascade' }),
+    /** The thread's first comment (null for that first comment itself). */
+    parentId: text('parent_id'),
+    text: text('text').notNull(),
+    authorId: text('author_id').notNull().references(() => users.id),
+    /** Kept on the thread's first comment. */
+    resolved: integer('resolved', { mode: 'boolean' }).notNull().default(false),
+    resolvedBy: text('resolved_by'),
+    createdAt: createdAt(),
+    updatedAt: integer('updated_at', { mode: 'number' }).notNull(),
+  },
+  (t) => [index('comments_sheet_idx').on(t.sheetId, t.createdAt)],
+)
+
+/** A request that reviewers look at one snapshot. */
+export const reviews = sqliteTable(
+  'reviews',
+  {
+    id: text('id').primaryKey(),
+    snapshotId: text('snapshot_id').notNull().references(() => snapshots.id, { onDelete: 'cascade' }),
+    sheetId: text('sheet_id').notNull().references(() => sheets.id, { onDelete: 'cascade' }),
+    labId: text('lab_id').notNull().references(() => labs.id, { onDelete: 'cascade' }),
+    requestedBy: text('requested_by').notNull().references(() => users.id),
+    note: text('note').notNull(),
+    createdAt: createdAt(),
+  },
+  (t) => [index('reviews_lab_idx').on(t.labId, t.createdAt), index('reviews_snapshot_idx').on(t.snapshotId)],
+)
+
+export const REVIEW_DECISIONS = ['approved', 'changes-requested'] as const
+export type ReviewDecision = (typeof REVIEW_DECISIONS)[number]
+
+/** One reviewer of one review; `decision` stays null until they decide. A decision is bound to the hash it was made on. */
+export const reviewDecisions = sqliteTable(
+  'review_decisions',
+  {
+    reviewId: text('review_id').notNull().references(() => reviews.id, { onDelete: 'cascade' }),
+    reviewerId: text('reviewer_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
+    decision: text('decision', { enum: REVIEW_DECISIONS }),
+    note: text('note'),
+    /** The snapshot hash the decision was made on. */
+    snapshotHash: text('snapshot_hash'),
+    decidedAt: integer('decided_at', { mode: 'number' }),
+  },
+  (t) => [primaryKey({ columns: [t.reviewId, t.reviewerId] }), index('review_decisions_reviewer_idx').on(t.reviewerId)],
+)
+
+/** A read-only link to one snapshot for someone without an account. Only the token's SHA-256 is stored. */
+export const guestLinks = sqliteTable(
+  'guest_links',
+  {
+    id: text('id').primaryKey(),
+    snapshotId: text('snapshot_id').notNull().references(() => snapshots.id, { onDelete: 'cascade' }),
+    labId: text('lab_id').notNull().references(() => labs.id, { onDelete: 'cascade' }),
+    tokenHash: text('token_hash').notNull().unique(),
+    note: text('note').notNull(),
+    createdBy: text('created_by').notNull().references(() => users.id),
+    createdAt: createdAt(),
+    expiresAt: integer('expires_at', { mode: 'number' }).notNull(),
+    revokedAt: integer('revoked_at', { mode: 'number' }),
+    viewCount: integer('view_count').notNull().default(0),
+    lastViewAt: integer('last_view_at', { mode: 'number' }),
+  },
+  (t) => [index('guest_links_snapshot_idx').on(t.snapshotId)],
+)

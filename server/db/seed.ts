@@ -14,6 +14,7 @@ import { createUser } from '../services/accounts'
 import { createSheet } from '../services/sheets'
 import { newId } from '../services/tokens'
 import { parseSheetFileText, type SheetFile } from '../../shared/schema/sheet'
+import { seedSnapshotDemo, type SnapshotSeed } from './seedSnapshots'
 
 export const DEMO_LAB_NAME = 'Halvorsen Thin-Film Lab'
 
@@ -54,12 +55,14 @@ export interface SeedResult {
   labId: string
   users: Record<Role, string>
   sheets: { id: string; title: string }[]
+  /** The review story (snapshots, reviews, a comment thread, a guest link), when a secret was given. */
+  review?: SnapshotSeed
 }
 
 /** Seeds the demo lab. Call only on an empty database (see `isEmpty`). */
 export async function seedDemo(
-  deps: { db: Db; config: Pick<AppConfig, 'argon2'> },
-  options: { examplesDir?: string; warn?: (m: string) => void } = {},
+  deps: { db: Db; config: Pick<AppConfig, 'argon2'> & Partial<Pick<AppConfig, 'evaluate' | 'publicUrl'>> },
+  options: { examplesDir?: string; warn?: (m: string) => void; secret?: Uint8Array } = {},
 ): Promise<SeedResult> {
   const warn = options.warn ?? ((m: string) => console.warn(m))
   const ids = {} as Record<Role, string>
@@ -80,9 +83,16 @@ export async function seedDemo(
   const editorsExample = examples.find((e) => e.file === 'edge-model.penumbra.json') ?? examples[0]
   const sheets = examples.map((example) => {
     const row = createSheet(deps, labId, example === editorsExample ? ids.editor : ids.owner, example.sheet)
-    return { id: row.id, title: row.title }
+    return { id: row.id, title: row.title, file: example.file }
   })
-  return { labId, users: ids, sheets }
+  const result: SeedResult = { labId, users: ids, sheets: sheets.map(({ id, title }) => ({ id, title })) }
+  const bandEdge = sheets.find((s) => s.file === 'edge-model.penumbra.json')
+  const { evaluate, publicUrl } = deps.config
+  if (options.secret && bandEdge && evaluate && publicUrl) {
+    const other = sheets.find((s) => s.file === 'thickness-study.penumbra.json')
+    result.review = await seedSnapshotDemo({ db: deps.db, config: { evaluate, publicUrl } }, options.secret, { labId, users: ids, bandEdgeSheetId: bandEdge.id, otherSheetId: other?.id })
+  }
+  return result
 }
 
 /** Which demo accounts exist (to print them at start). */
@@ -107,8 +117,13 @@ if (process.argv[1] && import.meta.url === pathToFileURL(path.resolve(process.ar
   const handle = openDb(path.join(dataDir, 'penumbra.sqlite'))
   if (!isEmpty(handle.db)) console.log(`The database in ${dataDir} already has accounts; nothing seeded.`)
   else {
-    const result = await seedDemo({ db: handle.db, config: defaultConfig() })
+    const { loadSecret } = await import('../index')
+    const { closeSharedEvaluator } = await import('../services/evaluation')
+    const secret = loadSecret(dataDir, process.env.PENUMBRA_SECRET, (m) => console.warn(m))
+    const result = await seedDemo({ db: handle.db, config: defaultConfig({ publicUrl: process.env.PUBLIC_URL ?? 'http://localhost:3000' }) }, { secret })
+    closeSharedEvaluator()
     console.log(`Seeded "${DEMO_LAB_NAME}" with ${result.sheets.length} sheet(s) in ${dataDir}:\n${formatDemoTable(DEMO_ACCOUNTS)}`)
+    if (result.review) console.log(`Demo guest link: ${result.review.guestUrl}`)
   }
   handle.close()
 }

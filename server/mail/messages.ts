@@ -135,3 +135,73 @@ export function alreadySignedUpMail(o: { name: string; signInLink: string; reset
   })
   return { subject, text, html }
 }
+
+/** The quoted text of a note or comment in a mail: at most 600 characters. */
+function quoted(text: string): string {
+  return text.length > 600 ? `${text.slice(0, 599)}…` : text
+}
+
+export function reviewRequestMail(o: { reviewerName: string; requesterName: string; sheetTitle: string; shortHash: string; message: string; note: string; link: string }): MailContent {
+  const subject = `${o.requesterName} asks you to review "${o.sheetTitle}" (${o.shortHash})`
+  const text = [
+    `Hello ${o.reviewerName},`,
+    '',
+    `${o.requesterName} asks you to review the snapshot ${o.shortHash} of the sheet "${o.sheetTitle}": ${o.message}`,
+    ...(o.note ? ['', `Their note: ${quoted(o.note)}`] : []),
+    '',
+    'Open the snapshot to compare it, comment on its cells and approve it or ask for changes:',
+    o.link,
+  ].join('\n')
+  const html = layout({
+    heading: 'A snapshot to review',
+    paragraphs: [
+      `Hello ${escapeHtml(o.reviewerName)},`,
+      `${escapeHtml(o.requesterName)} asks you to review the snapshot <strong>${escapeHtml(o.shortHash)}</strong> of the sheet <strong>${escapeHtml(o.sheetTitle)}</strong>: ${escapeHtml(o.message)}`,
+      ...(o.note ? [`Their note: <em>${escapeHtml(quoted(o.note))}</em>`] : []),
+    ],
+    action: { label: 'Open the snapshot', href: o.link },
+    footer: 'You get this mail because you are a reviewer or owner of the lab.',
+  })
+  return { subject, text, html }
+}
+
+const DECISION_WORDS = { approved: 'approved', 'changes-requested': 'asked for changes to' } as const
+
+export function reviewDecisionMail(o: { requesterName: string; reviewerName: string; decision: 'approved' | 'changes-requested'; sheetTitle: string; shortHash: string; note: string; link: string }): MailContent {
+  const subject = `${o.reviewerName} ${DECISION_WORDS[o.decision]} "${o.sheetTitle}" (${o.shortHash})`
+  const text = [
+    `Hello ${o.requesterName},`,
+    '',
+    `${o.reviewerName} ${DECISION_WORDS[o.decision]} the snapshot ${o.shortHash} of the sheet "${o.sheetTitle}".`,
+    ...(o.note ? ['', `Their note: ${quoted(o.note)}`] : []),
+    '',
+    o.link,
+  ].join('\n')
+  const html = layout({
+    heading: o.decision === 'approved' ? 'Snapshot approved' : 'Changes requested',
+    paragraphs: [
+      `Hello ${escapeHtml(o.requesterName)},`,
+      `${escapeHtml(o.reviewerName)} ${DECISION_WORDS[o.decision]} the snapshot <strong>${escapeHtml(o.shortHash)}</strong> of the sheet <strong>${escapeHtml(o.sheetTitle)}</strong>.`,
+      ...(o.note ? [`Their note: <em>${escapeHtml(quoted(o.note))}</em>`] : []),
+    ],
+    action: { label: 'Open the snapshot', href: o.link },
+    footer: 'You get this mail because you asked for this review.',
+  })
+  return { subject, text, html }
+}
+
+export function mentionMail(o: { name: string; authorName: string; sheetTitle: string; cellLabel: string; text: string; link: string }): MailContent {
+  const subject = `${o.authorName} mentioned you on "${o.sheetTitle}"`
+  const text = [`Hello ${o.name},`, '', `${o.authorName} mentioned you in a comment on ${o.cellLabel} of the sheet "${o.sheetTitle}":`, '', quoted(o.text), '', o.link].join('\n')
+  const html = layout({
+    heading: 'You were mentioned',
+    paragraphs: [
+      `Hello ${escapeHtml(o.name)},`,
+      `${escapeHtml(o.authorName)} mentioned you in a comment on <strong>${escapeHtml(o.cellLabel)}</strong> of the sheet <strong>${escapeHtml(o.sheetTitle)}</strong>:`,
+      `<em>${escapeHtml(quoted(o.text))}</em>`,
+    ],
+    action: { label: 'Open the sheet', href: o.link },
+    footer: 'You get this mail because a member of your lab mentioned you.',
+  })
+  return { subject, text, html }
+}

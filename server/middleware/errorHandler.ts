@@ -21,11 +21,29 @@ export function sizeLabel(bytes: number | undefined): string {
   return `${Math.max(1, Math.round(bytes / 1024))} KB`
 }
 
+/**
+ * What the multipart reader (busboy, under multer) throws as plain errors, without a status, for a body the client got
+ * wrong: each becomes a 400 in words. Every route that takes an upload goes through this one handler.
+ */
+const MULTIPART_PROBLEMS: [RegExp, string][] = [
+  [/boundary not found/i, 'the multipart body names no boundary: send it as multipart/form-data with a boundary (a browser form or FormData does this)'],
+  [/unexpected end of (form|file|multipart data)/i, 'the multipart body ended before it was complete; send the whole file again'],
+  [/malformed part header|malformed (content-disposition|urlencoded)/i, 'a part of the multipart body has a malformed header'],
+  [/unsupported content type/i, 'the body is not multipart/form-data'],
+]
+
+/** The wording for a multipart reader's error, or null when the error is something else. */
+export function multipartProblem(err: unknown): string | null {
+  if (!(err instanceof Error) || (err as { status?: unknown }).status !== undefined) return null
+  for (const [pattern, message] of MULTIPART_PROBLEMS) if (pattern.test(err.message)) return message
+  return null
+}
+
 export function errorHandler(maxBodyBytes: number): ErrorRequestHandler {
   return (err: unknown, req, res, next) => {
     if (res.headersSent) return next(err)
     if (err instanceof HttpError) {
-      res.status(err.status).json(err.issues ? { error: err.message, issues: err.issues } : { error: err.message })
+      res.status(err.status).json({ ...err.extra, error: err.message, ...(err.issues ? { issues: err.issues } : {}) })
       return
     }
     const e = err as BodyParserError & MulterLikeError
@@ -44,6 +62,11 @@ export function errorHandler(maxBodyBytes: number): ErrorRequestHandler {
           ? `send the sheet file in the form field "file"${e.field ? `, not "${e.field}"` : ''}`
           : e.message.charAt(0).toLowerCase() + e.message.slice(1)
       res.status(400).json({ error: `The upload was not accepted: ${message}.`, issues: [{ path: e.field ?? 'file', message }] })
+      return
+    }
+    const multipart = multipartProblem(err)
+    if (multipart) {
+      res.status(400).json({ error: `The upload was not accepted: ${multipart}.`, issues: [{ path: '', message: multipart }] })
       return
     }
     if (e?.type === 'charset.unsupported') {

@@ -7,6 +7,7 @@ import type { AppDeps } from '../deps'
 import type { Role } from '../db/schema'
 import { roleInLab, sheetAccess } from '../services/access'
 import { labById } from '../services/labs'
+import { snapshotById } from '../services/snapshots'
 import { forbidden, notFound, unauthorized } from '../errors'
 
 const NO_LAB = 'No such lab, or you are not a member of it.'
@@ -42,6 +43,24 @@ export function loadSheet(deps: AppDeps, param = 'sheetId'): RequestHandler {
 export function allowRoles(roles: readonly Role[], message: string): RequestHandler {
   return (req, _res, next) => {
     if (!req.role || !roles.includes(req.role)) throw forbidden(message)
+    next()
+  }
+}
+
+const NO_SNAPSHOT = 'No such snapshot, or you are not a member of its lab.'
+
+/** A snapshot, its sheet and lab, and the caller's role there (404 for a missing snapshot or a non-member). */
+export function loadSnapshot(deps: AppDeps, param = 'snapshotId'): RequestHandler {
+  return (req, _res, next) => {
+    if (!req.user) throw unauthorized()
+    const snapshot = snapshotById(deps.db, String(req.params[param]))
+    const { sheet, role } = snapshot ? sheetAccess(deps.db, snapshot.sheetId, req.user.id) : { sheet: null, role: null }
+    const lab = sheet ? labById(deps, sheet.labId) : undefined
+    if (!snapshot || !sheet || !role || !lab) throw notFound(NO_SNAPSHOT)
+    req.snapshot = snapshot
+    req.sheet = sheet
+    req.lab = lab
+    req.role = role
     next()
   }
 }

@@ -8,6 +8,7 @@ import {
   changePassword, checkCredentials, confirmSignUp, publicUser, requestReset, requestSignUp, resetPassword, updateName, userById,
 } from '../services/accounts'
 import { revokeSession } from '../services/sessions'
+import { callHook } from '../deps'
 import { unauthorized } from '../errors'
 import {
   changePasswordBody, confirmSignUpBody, resetBody, resetRequestBody, signInBody, signUpBody, updateMeBody,
@@ -47,7 +48,10 @@ export function authRoutes(deps: AppDeps): Router {
   })
 
   r.post('/sign-out', (req, res) => {
-    if (req.user) revokeSession(deps.db, req.user.jti, req.user.exp)
+    if (req.user) {
+      revokeSession(deps.db, req.user.jti, req.user.exp)
+      callHook(deps, 'sessionsEnded', req.user.id)
+    }
     clearSession(deps, res)
     res.status(204).end()
   })

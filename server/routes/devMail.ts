@@ -2,7 +2,8 @@
  * The developer mailbox (only when NODE_ENV !== 'production'): what the local fake SMTP server received, as an HTML
  * page at /dev/mail and as JSON at /dev/mail.json. With a real SMTP transport it lists the outgoing mail log.
  */
-import { Router } from 'express'
+import { Router, type Request } from 'express'
+import { forbidden } from '../errors'
 import { desc } from 'drizzle-orm'
 import path from 'node:path'
 import { existsSync } from 'node:fs'
@@ -14,11 +15,12 @@ import { linksIn } from '../mail/mime'
 import type { DevMail } from '../../shared/schema/api'
 
 const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..')
-const FONTS: Record<string, string> = {
-  'fira-sans-400.woff2': 'node_modules/@fontsource/fira-sans/files/fira-sans-latin-400-normal.woff2',
-  'fira-sans-600.woff2': 'node_modules/@fontsource/fira-sans/files/fira-sans-latin-600-normal.woff2',
-  'fira-mono-400.woff2': 'node_modules/@fontsource/fira-mono/files/fira-mono-latin-400-normal.woff2',
-}
+/** A Map, not an object: a request for `constructor` or `__proto__` must find nothing. */
+const FONTS = new Map<string, string>([
+  ['fira-sans-400.woff2', 'node_modules/@fontsource/fira-sans/files/fira-sans-latin-400-normal.woff2'],
+  ['fira-sans-600.woff2', 'node_modules/@fontsource/fira-sans/files/fira-sans-latin-600-normal.woff2'],
+  ['fira-mono-400.woff2', 'node_modules/@fontsource/fira-mono/files/fira-mono-latin-400-normal.woff2'],
+])
 
 export function devMessages(deps: AppDeps): DevMail[] {
   if (deps.mailer.inbox) return deps.mailer.inbox()
@@ -78,16 +80,36 @@ ${items || '<p class="empty">No mail yet. Invite someone or ask for a password r
 </main></body></html>`
 }
 
+/** True for a request from this machine (req.ip follows TRUST_PROXY, so a proxy's forwarded address counts). */
+export function fromLoopback(req: Request): boolean {
+  const ip = req.ip ?? req.socket.remoteAddress ?? ''
+  return ip === '::1' || ip.startsWith('127.') || ip.startsWith('::ffff:127.')
+}
+
+/**
+ * The mailbox holds every account's sign-up, reset and invitation links, so it answers in full only on this machine;
+ * from elsewhere a signed-in person sees the messages sent to their own address, and nobody else anything.
+ */
+function visibleMessages(deps: AppDeps, req: Request): DevMail[] {
+  if (fromLoopback(req)) return devMessages(deps)
+  if (!req.user) throw forbidden('The developer mailbox answers only on this machine (or, signed in, shows your own mail).')
+  const own = req.user.email.toLowerCase()
+  return devMessages(deps).filter((m) => m.to.some((to) => to.toLowerCase() === own))
+}
+
 export function devMailRoutes(deps: AppDeps): Router {
   const r = Router()
-  r.get('/mail.json', (_req, res) => {
-    res.set('Cache-Control', 'no-store').json({ messages: devMessages(deps) })
+  r.get('/mail.json', (req, res) => {
+    const messages = visibleMessages(deps, req)
+    res.set('Cache-Control', 'no-store').json({ messages })
   })
-  r.get('/mail', (_req, res) => {
-    res.set('Cache-Control', 'no-store').type('html').send(page(devMessages(deps)))
+  r.get('/mail', (req, res) => {
+    // read first: a refusal must not go out labelled as HTML
+    const messages = visibleMessages(deps, req)
+    res.set('Cache-Control', 'no-store').type('html').send(page(messages))
   })
   r.get('/fonts/:file', (req, res, next) => {
-    const rel = FONTS[String(req.params.file)]
+    const rel = FONTS.get(String(req.params.file))
     const file = rel && path.join(ROOT, rel)
     if (!file || !existsSync(file)) return next()
     res.sendFile(file, { maxAge: '1d' })

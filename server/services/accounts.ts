@@ -3,7 +3,7 @@
  * link. No answer here depends on whether an address has an account, except to the holder of a mailed token.
  */
 import { and, eq, isNull } from 'drizzle-orm'
-import type { AppDeps } from '../deps'
+import { callHook, type AppDeps } from '../deps'
 import type { Db } from '../db/client'
 import type { AppConfig } from '../config'
 import { pendingSignups, passwordResets, users } from '../db/schema'
@@ -104,6 +104,7 @@ export function updateName(deps: AppDeps, userId: string, name: string): UserRow
 async function setPassword(deps: AppDeps, userId: string, password: string): Promise<void> {
   const passwordHash = await hashPassword(deps.config, password)
   deps.db.update(users).set({ passwordHash, sessionsValidFrom: Math.floor(Date.now() / 1000) }).where(eq(users.id, userId)).run()
+  callHook(deps, 'sessionsEnded', userId)
 }
 
 export async function changePassword(deps: AppDeps, userId: string, current: string, next: string): Promise<void> {

@@ -153,7 +153,12 @@ class Slot {
   }
 }
 
-export class SheetEvaluator {
+/** What freezing and comparing need of an evaluator. */
+export interface Evaluator {
+  evaluate(text: string, budgetMs: number): Promise<EvaluationOutcome>
+}
+
+export class SheetEvaluator implements Evaluator {
   private readonly slots: Slot[]
   private readonly queue: Job[] = []
   private nextId = 1

@@ -6,7 +6,7 @@ import { and, asc, eq, gt, isNull } from 'drizzle-orm'
 import type { AppDeps } from '../deps'
 import { callHook } from '../deps'
 import { invitations, labs, memberships, type Role } from '../db/schema'
-import { conflict, gone, notFound } from '../errors'
+import { conflict, forbidden, gone, notFound } from '../errors'
 import { invitationMail } from '../mail/messages'
 import { MAIL_LINK_ROUTES, type Invitation, type InvitationPreview } from '../../shared/schema/api'
 import type { LabRow } from '../types'
@@ -102,6 +102,9 @@ export async function acceptInvitation(
   if ('user' in who) {
     const found = userById(deps, who.user.id)
     if (!found) throw notFound('Your account no longer exists.')
+    // a forwarded or leaked link gives nobody else a role: only the invited address's account may accept
+    if (found.email.toLowerCase() !== invitation.email.toLowerCase())
+      throw forbidden(`This invitation was sent to ${invitation.email}, and you are signed in as ${found.email}. Sign out, then sign in with ${invitation.email} (or create its account) to accept it.`)
     user = found
   } else {
     if (userByEmail(deps, invitation.email)) throw conflict('An account with this e-mail address already exists. Sign in, then accept the invitation.')

@@ -9,7 +9,7 @@ import type { Mailer } from '../mail/mailer'
 import type { MailContent } from '../mail/messages'
 import { newId } from './tokens'
 
-export type MailKind = 'invitation' | 'password-reset' | 'confirm-sign-up' | 'already-signed-up'
+export type MailKind = 'invitation' | 'password-reset' | 'confirm-sign-up' | 'already-signed-up' | 'review-request' | 'review-decision' | 'mention'
 
 export function queueMail(deps: { db: Db; mailer: Mailer }, kind: MailKind, to: string, content: MailContent): string {
   const id = newId()

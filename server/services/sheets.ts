@@ -12,6 +12,7 @@ import type { Sheet, SheetSummary } from '../../shared/schema/api'
 import type { LabRow, SheetRow } from '../types'
 import { loadSheetFile, seedDocument } from './documents'
 import { newId } from './tokens'
+import { inlineDatasets, storeInlineDatasets } from './datasets'
 
 /** Owners may delete any sheet; editors the ones they made. */
 export function canDeleteSheet(role: Role | null | undefined, sheet: Pick<SheetRow, 'createdBy'>, userId: string): boolean {
@@ -64,7 +65,9 @@ export function createSheet(deps: Pick<AppDeps, 'db'>, labId: string, userId: st
   const row: SheetRow = { id: newId(), labId, title: file.title, createdBy: userId, createdAt: now, updatedAt: now }
   deps.db.transaction(() => {
     deps.db.insert(sheets).values(row).run()
-    seedDocument(deps.db, row.id, withCellIds(file, newCellId))
+    // spectra written into the file become datasets; the document keeps their metadata and ids
+    const live = storeInlineDatasets(deps.db, withCellIds(file, newCellId), { labId, sheetId: row.id, userId })
+    seedDocument(deps.db, row.id, live)
   })
   return row
 }
@@ -80,9 +83,9 @@ export function deleteSheet(deps: AppDeps, sheetId: string): void {
   callHook(deps, 'sheetDeleted', sheetId)
 }
 
-/** The sheet file of a stored sheet, titled as the sheet is now. */
+/** The sheet file of a stored sheet, titled as the sheet is now, with its datasets' numbers written in. */
 export function exportSheet(deps: Pick<AppDeps, 'db'>, row: SheetRow): SheetFile {
-  return loadSheetFile(deps.db, row.id, row.title)
+  return inlineDatasets(deps.db, loadSheetFile(deps.db, row.id, row.title), row.labId)
 }
 
 /**

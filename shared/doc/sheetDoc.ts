@@ -7,7 +7,7 @@
  * one path.
  */
 import * as Y from 'yjs'
-import { SHEET_FORMAT, SHEET_VERSION, type Cell, type CellKind, type DatasetColumn, type SheetCell, type SheetFile } from '../schema/sheet'
+import { CELL_SCHEMAS, SHEET_FORMAT, SHEET_VERSION, keepsUnknownFields, type Cell, type CellKind, type DatasetColumn, type SheetCell, type SheetFile } from '../schema/sheet'
 
 /** Fields held as Y.Text for concurrent typing. */
 export const TEXT_FIELDS = ['source', 'text'] as const
@@ -55,9 +55,65 @@ export function cellToMap(cell: Cell, id: string = cell.id ?? newCellId()): Cell
 export function mapToCell(map: CellMap): SheetCell {
   const out: Record<string, unknown> = {}
   for (const [key, value] of map.entries()) {
-    out[key] = value instanceof Y.Text ? value.toString() : value instanceof Y.AbstractType ? value.toJSON() : value
+    const plain = value instanceof Y.Text ? value.toString() : value instanceof Y.AbstractType ? value.toJSON() : value
+    // defined, not assigned: a key named __proto__ stays an own field (and fails validation) instead of a prototype
+    Object.defineProperty(out, key, { value: plain, enumerable: true, writable: true, configurable: true })
   }
   return out as SheetCell
+}
+
+/** The kind given to a placeholder for an entry of the cells list the app cannot read as a cell (see entryCells). */
+export const NOT_A_CELL = 'not-a-cell'
+
+/** What a placeholder stands for, in words: "a string", "a second cell with the id c1" … */
+export interface NotACell {
+  id: string
+  kind: typeof NOT_A_CELL
+  entry: string
+}
+
+function entryNoun(entry: unknown): string {
+  if (entry === null) return 'null'
+  if (entry instanceof Y.AbstractType) return entry instanceof Y.Text ? 'a text' : entry instanceof Y.Array ? 'a list' : 'a shared type'
+  if (Array.isArray(entry)) return 'a list'
+  return typeof entry === 'object' ? 'a plain object' : `a ${typeof entry}`
+}
+
+/**
+ * Every entry of the cells list as a cell, in order: cell maps as their cells (a map without a string id gets
+ * `cell-<index>`; `read` may return a cell it already has for that map), and anything else (a string, a number, null, a plain object, a second map with an id already
+ * used) as a placeholder of kind NOT_A_CELL with the id `entry-<index>`, which the page shows as an invalid cell
+ * instead of failing on it. The server refuses such entries (server/collab/shape.ts); documents stored before that
+ * check, or edited by hand, may still hold them.
+ */
+export function entryCells(cells: Y.Array<unknown>, read: (map: CellMap, id: string) => SheetCell = (map) => mapToCell(map)): (SheetCell | NotACell)[] {
+  const out: (SheetCell | NotACell)[] = []
+  const seen = new Set<string>()
+  cells.toArray().forEach((entry, index) => {
+    if (!(entry instanceof Y.Map)) {
+      out.push({ id: `entry-${index}`, kind: NOT_A_CELL, entry: entryNoun(entry) })
+      return
+    }
+    const own = entry.get('id')
+    const id = typeof own === 'string' && own.length > 0 ? own : `cell-${index}`
+    if (seen.has(id)) {
+      out.push({ id: `entry-${index}`, kind: NOT_A_CELL, entry: `a second cell with the id ${id}` })
+      return
+    }
+    seen.add(id)
+    const cell = read(entry as CellMap, id)
+    out.push(cell.id === id ? cell : { ...cell, id })
+  })
+  return out
+}
+
+/** The index in the cells list of the entry a cell id (or a placeholder's `entry-<index>`) names, or -1. */
+export function entryIndex(cells: Y.Array<unknown>, id: string): number {
+  const entries = cells.toArray()
+  const i = entries.findIndex((m) => m instanceof Y.Map && m.get('id') === id)
+  if (i >= 0) return i
+  const m = /^entry-(\d+)$/.exec(id)
+  return m && Number(m[1]) < entries.length ? Number(m[1]) : -1
 }
 
 /** Fills an empty document from a sheet file (cells without ids get new ones). Returns the document. */
@@ -92,6 +148,10 @@ export function docToSheetFile(doc: Y.Doc, options: ExportOptions = {}): SheetFi
       if (!(item instanceof Y.Map)) return
       const cell = mapToCell(item) as SheetCell & Record<string, unknown>
       if (typeof cell.id !== 'string' || cell.id.length === 0) cell.id = `cell-${index}`
+      // the file is strict: a field the cell's schema does not name (a client's own, or one stored before the server
+      // checked edits) stays in the document but not in the file, so an export always imports again
+      const schema = CELL_SCHEMAS.get(cell.kind)
+      if (schema && !keepsUnknownFields(schema)) for (const key of Object.keys(cell)) if (!Object.hasOwn(schema.shape, key)) delete cell[key]
       if (cell.kind === 'spectrum' && typeof cell.datasetId === 'string' && options.datasetColumns) {
         const columns = options.datasetColumns(cell.datasetId)
         if (columns) cell.columns = columns
@@ -122,4 +182,39 @@ export function docFromUpdates(updates: Iterable<Uint8Array>): Y.Doc {
 
 function structuredCloneJson<T>(value: T): T {
   return value === null || typeof value !== 'object' ? value : (JSON.parse(JSON.stringify(value)) as T)
+}
+
+/**
+ * Restores a snapshot's cells into a live document as ONE transaction with the caller's origin, so the person's undo
+ * manager (which tracks that origin) takes the whole restore back in one step, and other people see one change.
+ * Cells the snapshot has unchanged (same id, same content) are kept as they are, so nobody's cursor in them jumps;
+ * the others are replaced, and the order becomes the snapshot's. The title is the sheet's, not the snapshot's.
+ */
+export function restoreCells(doc: Y.Doc, cells: readonly Cell[], origin: unknown): void {
+  doc.transact(() => {
+    const live = cellsOf(doc)
+    const wanted = cells.map((c, i) => ({ cell: c, id: c.id ?? `cell-${i}` }))
+    const sameContent = (map: CellMap, cell: Cell) => JSON.stringify(sortedCell(mapToCell(map))) === JSON.stringify(sortedCell({ ...cell, id: map.get('id') as string }))
+    // walk the snapshot's order; keep a live cell only where it is already next in line and unchanged
+    let at = 0
+    for (const { cell, id } of wanted) {
+      const current = at < live.length ? live.get(at) : undefined
+      if (current instanceof Y.Map && current.get('id') === id && sameContent(current, cell)) {
+        at++
+        continue
+      }
+      // remove a stale copy of this cell further down, then insert the snapshot's version here
+      for (let j = live.length - 1; j >= at; j--) {
+        const m = live.get(j)
+        if (m instanceof Y.Map && m.get('id') === id) live.delete(j, 1)
+      }
+      live.insert(at, [cellToMap(cell, id)])
+      at++
+    }
+    if (live.length > at) live.delete(at, live.length - at)
+  }, origin)
+}
+
+function sortedCell(cell: object): Record<string, unknown> {
+  return Object.fromEntries(Object.entries(cell).filter(([, v]) => v !== undefined).sort(([a], [b]) => (a < b ? -1 : 1)))
 }

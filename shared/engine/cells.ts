@@ -3,16 +3,17 @@
  * it is prepared once (parsed, compiled, units resolved) and how it computes its value from its inputs' values.
  * Values are SI; showing them in display units is display.ts's job, turning states into result objects results.ts's.
  */
-import type { SheetCell, ParameterCell, SpectrumCell } from '../schema/sheet'
-import { CELL_KINDS, fitCell, formulaCell, parameterCell, sweepCell, toSchemaIssues } from '../schema/sheet'
+import type { SheetCell, ParameterCell, SpectrumCell, StackCell } from '../schema/sheet'
+import { CELL_KINDS, fitCell, formulaCell, parameterCell, stackCell, stackFormulas, sweepCell, toSchemaIssues } from '../schema/sheet'
 import type { Num } from '../optics/num'
 import { compileFormula, inferDims, type CompiledFormula, type InputDim } from './compile'
-import { INPUT_DIGITS, formatNumber, formatPair } from './describe'
-import type { Dim } from './dimensions'
-import { CellError, messageOf } from './errors'
+import { INPUT_DIGITS, formatNumber, formatPair, formatQuantity, prettyUnit } from './describe'
+import { dimEquals, type Dim } from './dimensions'
+import { CellError, OutsideDataError, messageOf, outsideDataMessage } from './errors'
 import type { Budget } from './limits'
 import { CONSTANTS, builtinName } from './names'
-import { isReserved } from './parse'
+import { isReserved, type Node } from './parse'
+import { builtinFunction } from './functions/registry'
 import { parseUnit, formulaUnitTable } from './units'
 import { RecordValue, type Field, type Value } from './values'
 
@@ -26,6 +27,8 @@ export interface PreparedCell {
   /** Names among `reads` that must be cells (fit and sweep references); formulas may also read constants and units. */
   cellsOnly: boolean
   compiled?: CompiledFormula
+  /** Cells with several formula fields (stacks): each field's compiled formula, keyed by its path ("layers.0.n"). */
+  parts?: Map<string, CompiledFormula>
   /** A problem found while preparing (syntax, unit): the cell is an error whatever its inputs. */
   problem?: string
   /** Warnings known before evaluation (a name shadowing a unit or constant). */
@@ -49,6 +52,8 @@ export interface CellState {
   shown?: Record<string, unknown> | SweepTable
   /** Fit and sweep cells: the unit their shown numbers are in. */
   unit?: string
+  /** Fit and stack cells: the unit of each shown output ("1" for a plain number). */
+  units?: Record<string, string>
 }
 
 /** What evaluating one cell may ask of the sheet around it. */
@@ -70,12 +75,12 @@ const SHADOW_UNITS = new Set(formulaUnitTable().keys())
 
 /**
  * What is wrong with a cell that does not match the sheet-file schema (a half-edited cell from the live document, a
- * caller that skipped validation), in the schema's words, or undefined. Figures, notes and stacks are not evaluated,
+ * caller that skipped validation), in the schema's words, or undefined. Figures and notes are not evaluated,
  * so only the evaluated kinds are checked; a spectrum's columns are checked for shape here and entry by entry when
  * it is evaluated, so a million-point column is not validated twice.
  */
-const EVALUATED_SCHEMAS: Partial<Record<string, typeof parameterCell | typeof formulaCell | typeof fitCell | typeof sweepCell>> = {
-  parameter: parameterCell, formula: formulaCell, fit: fitCell, sweep: sweepCell,
+const EVALUATED_SCHEMAS: Partial<Record<string, typeof parameterCell | typeof formulaCell | typeof fitCell | typeof sweepCell | typeof stackCell>> = {
+  parameter: parameterCell, formula: formulaCell, fit: fitCell, sweep: sweepCell, stack: stackCell,
 }
 
 function malformed(cell: SheetCell): string | undefined {
@@ -87,6 +92,11 @@ function malformed(cell: SheetCell): string | undefined {
       const c = col as { unit?: unknown; values?: unknown } | null
       if (!c || typeof c !== 'object') return `invalid cell: columns.${name}: must be an object with unit and values`
       if (typeof c.unit !== 'string') return `invalid cell: columns.${name}.unit: required`
+      if (c.values === undefined) {
+        const id = (cell as { datasetId?: unknown }).datasetId
+        if (typeof id === 'string' && id) return datasetNotLoaded(id)
+        return `invalid cell: columns.${name}.values: required (an array of numbers)`
+      }
       if (!Array.isArray(c.values)) return `invalid cell: columns.${name}.values: required (an array of numbers)`
     }
     return undefined
@@ -108,6 +118,8 @@ export function prepareCell(cell: SheetCell): PreparedCell {
       p.staticWarnings.push(`the name ${cell.name} shadows the built-in constant ${cell.name} (${c.doc.split(', ')[0]}) in this sheet's formulas; rename the cell if formulas should use the constant`)
     else if (SHADOW_UNITS.has(cell.name))
       p.staticWarnings.push(`the name ${cell.name} shadows the unit ${cell.name} in this sheet's formulas; rename the cell if formulas should use the unit`)
+    else if (builtinFunction(cell.name))
+      p.staticWarnings.push(`the name ${cell.name} is also a library function: ${cell.name}(…) still calls the function, while ${cell.name} alone means this cell; rename the cell to keep formulas clear`)
     else if (isReserved(cell.name))
       p.staticWarnings.push(`the name ${cell.name} is reserved: formulas cannot refer to it; choose another name`)
   }
@@ -131,6 +143,7 @@ export function prepareCell(cell: SheetCell): PreparedCell {
         break
       case 'fit': {
         const names = [cell.x, cell.y]
+        if (cell.sigma) names.push(cell.sigma)
         if (cell.method === 'model') {
           if (!cell.model) throw new CellError('a model fit needs "model": the formula cell to fit', 'input')
           if (!cell.parameters?.length) throw new CellError('a model fit needs at least one free parameter in "parameters"', 'input')
@@ -149,6 +162,19 @@ export function prepareCell(cell: SheetCell): PreparedCell {
           )
         p.reads = [...new Set([cell.parameter, ...cell.outputs])]
         break
+      case 'stack': {
+        p.parts = new Map()
+        for (const [key, source] of stackFormulas(cell)) {
+          try {
+            p.parts.set(key, compileFormula(source))
+          } catch (err) {
+            throw new CellError(`${stackFieldLabel(cell, key)}: ${messageOf(err)}`, err instanceof CellError ? err.kind : 'syntax')
+          }
+        }
+        p.reads = [...new Set([...p.parts.values()].flatMap((c) => c.names))]
+        p.cellsOnly = false
+        break
+      }
       default:
         break
     }
@@ -164,9 +190,23 @@ function checkUnit(unit: string | undefined, what = 'unit'): void {
   if (!u.ok) throw new CellError(`the ${what} ${u.error}`, 'input')
 }
 
+/** "the thickness of layer absorber", "the wavelength" … for messages about one field of a stack. */
+export function stackFieldLabel(cell: StackCell, key: string): string {
+  const [head, a, b] = key.split('.')
+  const what = (f: string): string => (f === 'thickness' ? 'the thickness' : f === 'n' ? 'the index n' : 'the extinction coefficient k')
+  if (head === 'layers') return `${what(b)} of layer ${cell.layers[Number(a)]?.name ?? Number(a) + 1}`
+  if (head === 'substrate') return `${what(a)} of the substrate ${cell.substrate.name}`
+  return head === 'angle' ? 'the angle' : head === 'ambient' ? 'the ambient index' : 'the wavelength'
+}
+
 /** Dimension (or record) of each bound name of a formula, for the dimension pass. */
 export function inputDims(p: PreparedCell, env: Env): InputDim[] {
-  return p.reads.map((name) => {
+  return dimsOfNames(p.reads, env)
+}
+
+/** Dimension (or record) of each of the given names. */
+export function dimsOfNames(names: readonly string[], env: Env): InputDim[] {
+  return names.map((name) => {
     const target = env.cellNamed(name)
     if (target) {
       const v = env.valueOf(target.id)
@@ -179,7 +219,12 @@ export function inputDims(p: PreparedCell, env: Env): InputDim[] {
 
 /** Values bound to a formula's free names: cells' values, else constants and units. */
 export function inputValues(p: PreparedCell, env: Env): Value[] {
-  return p.reads.map((name) => {
+  return valuesOfNames(p.reads, env)
+}
+
+/** Values of the given names: cells' values, else constants and units. */
+export function valuesOfNames(names: readonly string[], env: Env): Value[] {
+  return names.map((name) => {
     const target = env.cellNamed(name)
     if (target) {
       const v = env.valueOf(target.id)
@@ -190,6 +235,37 @@ export function inputValues(p: PreparedCell, env: Env): Value[] {
     if (!b) throw new CellError(`unknown name: ${name}`, 'name')
     return b.value
   })
+}
+
+/**
+ * How the numbers of an "outside the data" message read: in the display unit of the cell holding interpolate's x
+ * (`interpolate(q, E, alpha)` with E shown in eV → "2.5 eV"), else in the usual unit of its dimension, else bare.
+ */
+function dataUnitShow(p: PreparedCell, env: Env): (si: number) => string {
+  const calls: Node[] = []
+  const walk = (n: Node): void => {
+    if (n.t === 'call') {
+      if (n.fn === 'interpolate') calls.push(n)
+      n.args.forEach(walk)
+    } else if (n.t === 'unary') walk(n.arg)
+    else if (n.t === 'binary') (walk(n.left), walk(n.right))
+    else if (n.t === 'cond') (walk(n.test), walk(n.then), walk(n.else))
+    else if (n.t === 'array') n.items.forEach(walk)
+  }
+  if (p.compiled) walk(p.compiled.tree)
+  for (const call of calls) {
+    const x = call.t === 'call' ? call.args[1] : undefined
+    if (x?.t !== 'name') continue
+    const target = env.cellNamed(x.name)
+    const dim = target ? env.stateOf(target.id)?.dim ?? null : null
+    if (!target) continue
+    const shownUnit = (target.cell as { unit?: unknown }).unit
+    const shown = typeof shownUnit === 'string' ? shownUnit : undefined
+    const u = shown ? parseUnit(shown) : undefined
+    if (u?.ok && dim && dimEquals(u.dim, dim)) return (si) => `${formatNumber(si / u.factor)} ${prettyUnit(shown!)}`
+    return (si) => formatQuantity(si, dim)
+  }
+  return (si) => formatNumber(si)
 }
 
 /** SI value of a parameter cell. */
@@ -232,10 +308,24 @@ export function formulaValue(p: PreparedCell, env: Env): Num {
 }
 
 export function evaluateFormula(p: PreparedCell, env: Env): CellState {
-  const value = formulaValue(p, env)
+  let value: Num
+  try {
+    value = formulaValue(p, env)
+  } catch (err) {
+    if (err instanceof OutsideDataError) throw new CellError(outsideDataMessage(err.point, err.lo, err.hi, dataUnitShow(p, env)), 'value')
+    throw err
+  }
   const dims = inferDims(p.compiled as CompiledFormula, inputDims(p, env))
   const warnings = [...dims.warnings]
   return { status: 'ok', value, dim: dims.dim, warnings }
+}
+
+/**
+ * The error of a spectrum cell whose numbers are in a stored dataset that the caller has not loaded into its columns
+ * (the page's worker and the server load them by id before evaluating; a file carries them inline).
+ */
+export function datasetNotLoaded(datasetId: string): string {
+  return `the numbers of this spectrum are kept in dataset ${datasetId}, which is not loaded here; open the sheet in the app or export it (export writes the numbers into the file)`
 }
 
 /** A spectrum cell's columns in SI as a record (`filmB.T`); empty entries (null) become NaN. */
@@ -244,18 +334,20 @@ export function evaluateSpectrum(cell: SpectrumCell): CellState {
   const warnings: string[] = []
   let length = -1
   for (const [name, col] of Object.entries(cell.columns)) {
+    if (!col.values) throw new CellError(cell.datasetId ? datasetNotLoaded(cell.datasetId) : `column ${name} has no values`, 'input')
     const u = parseUnit(col.unit)
     if (!u.ok) throw new CellError(`the unit of column ${name} ${u.error}`, 'input')
-    const values = new Float64Array(col.values.length)
+    const raw = col.values
+    const values = new Float64Array(raw.length)
     let gaps = 0
-    col.values.forEach((x, i) => {
+    raw.forEach((x, i) => {
       if (x === null) gaps++
       else if (typeof x !== 'number') throw new CellError(`column ${name}: entry ${i} is not a number (${JSON.stringify(x)?.slice(0, 40)})`, 'input')
       values[i] = x === null ? NaN : x * u.factor
     })
     if (gaps) warnings.push(`column ${name} has ${gaps} empty entr${gaps === 1 ? 'y' : 'ies'} (read as NaN)`)
-    if (length >= 0 && col.values.length !== length) warnings.push(`the columns have different lengths (${length} and ${col.values.length} in ${name})`)
-    length = Math.max(length, col.values.length)
+    if (length >= 0 && raw.length !== length) warnings.push(`the columns have different lengths (${length} and ${raw.length} in ${name})`)
+    length = Math.max(length, raw.length)
     fields.set(name, { value: values, dim: u.dim })
   }
   if (fields.size === 0) warnings.push('the spectrum has no columns')

@@ -16,6 +16,7 @@ import { Budget, DEFAULT_MAX_ELEMENTS, DEFAULT_MAX_SHEET_NUMBERS, DEFAULT_TIME_B
 import { CONSTANTS } from './names'
 import { Graph } from './order'
 import { toCellJson, type CellJson } from './results'
+import { evaluateStack } from './stacks'
 import { evaluateSweep } from './sweeps'
 import { FORMULA_UNIT_NAMES } from './units'
 import { RecordValue, type Value } from './values'
@@ -33,7 +34,7 @@ export interface EngineOptions {
   onProgress?: (cellId: string, fraction: number) => void
 }
 
-const NOT_A_VALUE: ReadonlySet<string> = new Set(['sweep', 'figure', 'note', 'stack'])
+const NOT_A_VALUE: ReadonlySet<string> = new Set(['sweep', 'figure', 'note'])
 
 export class SheetEngine {
   private cells: PreparedCell[] = []
@@ -190,8 +191,6 @@ export class SheetEngine {
       status, error, dim: null, warnings: [...p.staticWarnings],
     })
     if (p.kind === 'note' || p.kind === 'figure') return { status: 'ok', value: undefined, dim: null, warnings: [] }
-    if (p.kind === 'stack')
-      return { status: 'ok', dim: null, warnings: ['stack cells are kept but not evaluated by this version of the engine'] }
     const first = this.graph.duplicateOf.get(p.id)
     if (first !== undefined) {
       const holder = this.cells.indexOf(this.byId.get(first)!)
@@ -205,8 +204,8 @@ export class SheetEngine {
     for (const d of this.graph.deps.get(p.id) ?? []) {
       const dep = this.byId.get(d)!
       if (this.states.get(d)?.status !== 'ok') return fail(blockedMessage(dep.name ?? d), 'blocked')
-      if (NOT_A_VALUE.has(dep.kind) && (p.kind === 'formula' || p.kind === 'fit'))
-        return fail(`the input ${dep.name} is a ${dep.kind} cell, which has no value to compute with; formulas and fits can use parameters, formulas, spectra and fits`)
+      if (NOT_A_VALUE.has(dep.kind) && (p.kind === 'formula' || p.kind === 'fit' || p.kind === 'stack'))
+        return fail(`the input ${dep.name} is a ${dep.kind} cell, which has no value to compute with; formulas and fits can use parameters, formulas, spectra, fits and stacks`)
     }
     this.budget.start()
     try {
@@ -245,6 +244,8 @@ export class SheetEngine {
         return evaluateFit(p, env)
       case 'sweep':
         return evaluateSweep(p, env)
+      case 'stack':
+        return evaluateStack(p, env)
       default:
         return { status: 'ok', dim: null, warnings: [] }
     }
@@ -279,8 +280,8 @@ export class SheetEngine {
       const p = this.byId.get(id)!
       try {
         if (p.kind === 'formula') overrides.set(id, formulaValue(p, env))
-        else if (p.kind === 'fit') {
-          const s = evaluateFit(p, env)
+        else if (p.kind === 'fit' || p.kind === 'stack') {
+          const s = p.kind === 'fit' ? evaluateFit(p, env) : evaluateStack(p, env)
           if (s.value !== undefined) overrides.set(id, s.value)
         }
       } catch (err) {

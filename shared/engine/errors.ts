@@ -16,6 +16,29 @@ export class CellError extends Error {
   }
 }
 
+/** The error of a formula cell with nothing in it yet; the page shows a hint instead of an error for it. */
+export const EMPTY_FORMULA = 'the formula is empty'
+
+/**
+ * A query point of `interpolate` outside the range of its data (no extrapolation). Thrown with SI numbers; the cell
+ * that called it rewrites the message in the display unit of its data where it knows it (cells.ts).
+ */
+export class OutsideDataError extends CellError {
+  constructor(
+    readonly point: number,
+    readonly lo: number,
+    readonly hi: number,
+  ) {
+    super(outsideDataMessage(point, lo, hi, (x) => String(Number(x.toPrecision(4)))), 'value')
+    this.name = 'OutsideDataError'
+  }
+}
+
+/** "interpolate: the point 3 eV lies outside the data, whose x runs from 1 eV to 2 eV; …" */
+export function outsideDataMessage(point: number, lo: number, hi: number, show: (si: number) => string): string {
+  return `interpolate: the point ${show(point)} lies outside the data, whose x runs from ${show(lo)} to ${show(hi)}; interpolate does not extrapolate: choose a point inside that range`
+}
+
 /**
  * The message of a dependent whose input failed (DESIGN §5's wording; the client finds the input's name after
  * "input" to link to that cell).

@@ -3,10 +3,15 @@
  * cell over chosen free parameter cells, re-evaluating the formula's subgraph with the trial values (compiled once,
  * never re-parsed). The fitting itself is shared/fitting's.
  *
- * Units: the window `from`/`to` is in the display unit of the `x` cell. Fitted energies (Eg, Eg_err, Eu, Eu_err) are
- * shown in the fit's `unit` (default: the x cell's unit when it is an energy unit, else J); other outputs in SI.
- * Model-fit parameters, their start values and bounds are in each parameter cell's display unit. Formulas read a
- * fit's results in SI: `edge.Eg` is in joules.
+ * Units: the window `from`/`to` is in the display unit of the `x` cell. Fitted energies (Eg, Eg_err, Eu, Eu_err, E0)
+ * are shown in the fit's `unit` (default: the x cell's unit when it is an energy unit, else J); an Urbach α0 in the y
+ * cell's display unit (1/cm); a Tauc B in the unit made of the x and y cells' display units ((1/cm·eV)^(1/r)/eV, so
+ * eV/cm^2 for r = 1/2); a model fit's χ² and residuals in the y cell's display unit (χ² dimensionless when weighted).
+ * The result states each output's unit in `units`. Model-fit parameters, their start values and bounds are in each
+ * parameter cell's display unit. Formulas read a fit's results in SI: `edge.Eg` is in joules.
+ *
+ * Weighted fits: `sigma` names a cell of standard deviations of y (same length, y's units); the fit then minimises
+ * χ² = Σ((y − f)/σ)² and its errors come from σ as given (Bevington & Robinson (2003) ch. 6 and 8).
  */
 import type { FitCell, ParameterCell } from '../schema/sheet'
 import { taucFit, urbachFit, fitModel } from '../fitting/index'
@@ -15,7 +20,7 @@ import type { CellState, Env, PreparedCell } from './cells'
 import { parameterValue } from './cells'
 import { INPUT_DIGITS, MESSAGE_DIGITS, dimPhrase, formatNumber, formatPair } from './describe'
 import { DIMENSIONLESS, ENERGY, INV_LENGTH, LENGTH, dimDiv, dimEquals, dimMul, dimPow, type Dim } from './dimensions'
-import { clean, displayFor } from './display'
+import { clean, displayFor, siUnit } from './display'
 import { CellError } from './errors'
 import { parseUnit } from './units'
 import { RecordValue, asNum, type Field, type Value } from './values'
@@ -124,6 +129,66 @@ function withWindowCheck<T>(cell: FitCell, x: Series, y: Series, lo: number, hi:
   }
 }
 
+/** The σ cell of a weighted fit, checked against y: same length, y's dimension, above zero inside the window. */
+function sigmaSeries(cell: FitCell, env: Env, x: Series, y: Series, lo: number, hi: number): Series | undefined {
+  if (!cell.sigma) return undefined
+  const s = series(env, cell.sigma, 'sigma')
+  if (s.values.length !== y.values.length)
+    throw new CellError(`the σ cell ${cell.sigma} has ${s.values.length} values but the y cell ${cell.y} has ${y.values.length}; give one standard deviation per point`, 'input')
+  if (s.dim && y.dim && !dimEquals(s.dim, y.dim))
+    throw new CellError(`the σ cell ${cell.sigma} is ${dimPhrase(s.dim)} but the y cell ${cell.y} is ${dimPhrase(y.dim)}; standard deviations are in y's units`, 'input')
+  const [a, b] = [Math.min(lo, hi), Math.max(lo, hi)]
+  for (let i = 0; i < x.values.length; i++) {
+    const v = x.values[i]
+    if (!(v >= a && v <= b) || (s.values[i] > 0 && Number.isFinite(s.values[i]))) continue
+    const at = `${formatNumber(v / x.factor)}${x.unit ? ` ${x.unit}` : ''}`
+    throw new CellError(`the σ cell ${cell.sigma} is ${Number.isFinite(s.values[i]) ? formatNumber(s.values[i] / s.factor) : 'not a finite number'} at ${cell.x} = ${at}, inside the window; every point of a weighted fit needs a standard deviation above zero`, 'fit')
+  }
+  return s
+}
+
+/** "1/cm" → "cm" (the length of an inverse-length unit), or undefined. */
+function lengthOfInverse(unit: string): string | undefined {
+  const m = /^\s*1\s*\/\s*([A-Za-zµ]+)\s*$/.exec(unit) ?? /^\s*([A-Za-zµ]+)\s*\^\s*-1\s*$/.exec(unit)
+  return m?.[1]
+}
+
+function powerText(unit: string, e: number): string {
+  if (e === 1) return unit
+  return `${unit}^${Number.isInteger(e) ? e : Number(e.toPrecision(6))}`
+}
+
+/**
+ * The unit of a Tauc slope B in the x and y cells' display units, and the factor from SI: (αE)^(1/r) = B·(E − Eg)
+ * makes B's unit (yu·xu)^(1/r)/xu, written xu^(1/r − 1)/L^(1/r) when y is an inverse length 1/L: eV/cm^2 for r = 1/2.
+ */
+export function taucSlopeDisplay(r: number, x: { unit: string | undefined; factor: number }, y: { unit: string | undefined; factor: number }): { unit: string; factor: number } {
+  const p = 1 / r
+  const factor = Math.pow(y.factor * x.factor, p) / x.factor
+  const xu = x.unit ?? 'J'
+  const yu = y.unit ?? '1/m'
+  const L = lengthOfInverse(yu)
+  if (!L) return { unit: `(${yu}*${xu})^${Number(p.toPrecision(6))}/${xu}`, factor }
+  const num: string[] = []
+  const den: string[] = []
+  const put = (u: string, e: number) => {
+    if (Math.abs(e) < 1e-12) return
+    if (e > 0) num.push(powerText(u, e))
+    else den.push(powerText(u, -e))
+  }
+  put(xu, p - 1)
+  put(L, -p)
+  const top = num.length ? num.join('*') : '1'
+  const bottom = den.length === 0 ? '' : den.length === 1 ? `/${den[0]}` : `/(${den.join('*')})`
+  return { unit: top + bottom, factor }
+}
+
+/** A unit squared, with parentheses when it is compound: mA → mA^2, 1/cm → (1/cm)^2. */
+function squared(unit: string | undefined): string {
+  if (!unit) return '1'
+  return /[/*^ ]/.test(unit) ? `(${unit})^2` : `${unit}^2`
+}
+
 function field(value: Num, dim: Dim | null): Field {
   return { value, dim }
 }
@@ -145,10 +210,12 @@ export function evaluateFit(p: PreparedCell, env: Env): CellState {
   const e = energyUnit(cell, x)
   const [lo, hi] = windowOf(cell, x)
   requirePoints(cell, x, lo, hi, 3, cell.method === 'tauc' ? 'a Tauc fit' : 'an Urbach fit')
+  const sigma = sigmaSeries(cell, env, x, y, lo, hi)
+  const yUnit = y.unit ?? '1/m'
   if (cell.method === 'tauc') {
     const r = cell.r ?? 0.5
     if (cell.r === undefined) warnings.push('r is not given: using r = 1/2 (direct allowed transition); set r = 2 for an indirect allowed one')
-    const f = withWindowCheck(cell, x, y, lo, hi, () => taucFit(x.values, y.values, r, lo, hi))
+    const f = withWindowCheck(cell, x, y, lo, hi, () => taucFit(x.values, y.values, r, lo, hi, sigma?.values))
     if (f.r2 < 0.99)
       warnings.push(`the Tauc plot is not straight in this window (r² = ${formatNumber(f.r2)}): move the window onto the linear part of the edge`)
     if (f.Eg > Math.min(lo, hi))
@@ -158,24 +225,38 @@ export function evaluateFit(p: PreparedCell, env: Env): CellState {
       ['Eg', field(f.Eg, ENERGY)], ['Eg_err', field(f.Eg_err, ENERGY)], ['B', field(f.B, bDim)],
       ['B_err', field(f.B_err, bDim)], ['r2', field(f.r2, DIMENSIONLESS)], ['n', field(f.n, DIMENSIONLESS)],
     ])
-    return {
-      status: 'ok', value: new RecordValue('fit', cell.name, fields), dim: null, warnings,
-      shown: { Eg: clean(f.Eg / e.factor), Eg_err: clean(f.Eg_err / e.factor), B: f.B, B_err: f.B_err, r2: f.r2, n: f.n },
-      unit: e.unit,
+    const b = taucSlopeDisplay(r, x, { unit: yUnit, factor: y.factor })
+    const shown: Record<string, number> = {
+      Eg: clean(f.Eg / e.factor), Eg_err: clean(f.Eg_err / e.factor), B: clean(f.B / b.factor), B_err: clean(f.B_err / b.factor), r2: f.r2, n: f.n,
     }
+    const units: Record<string, string> = { Eg: e.unit, Eg_err: e.unit, B: b.unit, B_err: b.unit, r2: '1', n: '1' }
+    weightedOutputs(f, fields, shown, units)
+    return { status: 'ok', value: new RecordValue('fit', cell.name, fields), dim: null, warnings, shown, unit: e.unit, units }
   }
-  const f = withWindowCheck(cell, x, y, lo, hi, () => urbachFit(x.values, y.values, lo, hi))
+  const f = withWindowCheck(cell, x, y, lo, hi, () => urbachFit(x.values, y.values, lo, hi, sigma?.values))
   if (f.r2 < 0.98)
     warnings.push(`ln α is not straight in this window (r² = ${formatNumber(f.r2)}): an Urbach tail is exponential only below the gap; move the window below the gap`)
   const fields = new Map<string, Field>([
     ['Eu', field(f.Eu, ENERGY)], ['Eu_err', field(f.Eu_err, ENERGY)], ['alpha0', field(f.alpha0, INV_LENGTH)],
     ['E0', field(f.E0, ENERGY)], ['r2', field(f.r2, DIMENSIONLESS)], ['n', field(f.n, DIMENSIONLESS)],
   ])
-  return {
-    status: 'ok', value: new RecordValue('fit', cell.name, fields), dim: null, warnings,
-    shown: { Eu: clean(f.Eu / e.factor), Eu_err: clean(f.Eu_err / e.factor), alpha0: f.alpha0, E0: clean(f.E0 / e.factor), r2: f.r2, n: f.n },
-    unit: e.unit,
+  const shown: Record<string, number> = {
+    Eu: clean(f.Eu / e.factor), Eu_err: clean(f.Eu_err / e.factor), alpha0: clean(f.alpha0 / y.factor), E0: clean(f.E0 / e.factor), r2: f.r2, n: f.n,
   }
+  const units: Record<string, string> = { Eu: e.unit, Eu_err: e.unit, alpha0: yUnit, E0: e.unit, r2: '1', n: '1' }
+  weightedOutputs(f, fields, shown, units)
+  return { status: 'ok', value: new RecordValue('fit', cell.name, fields), dim: null, warnings, shown, unit: e.unit, units }
+}
+
+/** A weighted edge fit's χ² and reduced χ² (dimensionless), added to its outputs. */
+function weightedOutputs(f: { chi2?: number; reducedChi2?: number }, fields: Map<string, Field>, shown: Record<string, number>, units: Record<string, string>): void {
+  if (f.chi2 === undefined || f.reducedChi2 === undefined) return
+  fields.set('chi2', field(f.chi2, DIMENSIONLESS))
+  fields.set('reducedChi2', field(f.reducedChi2, DIMENSIONLESS))
+  shown.chi2 = f.chi2
+  shown.reducedChi2 = f.reducedChi2
+  units.chi2 = '1'
+  units.reducedChi2 = '1'
 }
 
 interface FreeParameter {
@@ -240,6 +321,8 @@ function modelFit(cell: FitCell, env: Env): CellState {
     if (v >= a && v <= b) picked.push(i)
   })
   const yWindow = Float64Array.from(picked, (i) => y.values[i])
+  const sigma = sigmaSeries(cell, env, x, y, lo, hi)
+  const weights = sigma ? Float64Array.from(picked, (i) => 1 / (sigma.values[i] * sigma.values[i])) : undefined
   const e = cell.unit ? energyUnit(cell, x) : undefined
   const warnings: string[] = []
   const modelState = env.stateOf(model.id)
@@ -262,7 +345,7 @@ function modelFit(cell: FitCell, env: Env): CellState {
   try {
     fit = fitModel({
       evaluate, y: yWindow, start: free.map((f) => f.start), min: free.map((f) => f.min ?? -Infinity),
-      max: free.map((f) => f.max ?? Infinity), names: free.map((f) => f.name),
+      max: free.map((f) => f.max ?? Infinity), names: free.map((f) => f.name), weights, absoluteSigma: !!weights,
       timeBudgetMs: Number.isFinite(env.budget.remainingMs()) ? env.budget.remainingMs() : undefined,
     })
   } catch (err) {
@@ -274,24 +357,33 @@ function modelFit(cell: FitCell, env: Env): CellState {
   if (!fit.converged)
     warnings.push(`the fit stopped after ${fit.iterations} iterations without converging; try start values closer to the result, or bounds on the free parameters`)
   const shown: Record<string, unknown> = {}
+  const units: Record<string, string> = {}
   const fields = new Map<string, Field>()
   free.forEach((f, k) => {
-    const showFactor = e && dimEquals(f.dim, ENERGY) ? e.factor : f.factor
+    const energy = e && dimEquals(f.dim, ENERGY)
+    const showFactor = energy ? e.factor : f.factor
     shown[f.name] = clean(fit.params[k] / showFactor)
     shown[`${f.name}_err`] = clean(fit.errors[k] / showFactor)
+    const unit = (energy ? e.unit : f.unit) || siUnit(f.dim) || '1'
+    units[f.name] = unit
+    units[`${f.name}_err`] = unit
     fields.set(f.name, field(fit.params[k], f.dim))
     fields.set(`${f.name}_err`, field(fit.errors[k], f.dim))
   })
   const yDim = y.dim
-  const chi2Dim = yDim ? dimPow(yDim, 2) : null
+  // weighted: χ² = Σ((y − f)/σ)² is a plain number; unweighted: Σ(y − f)², shown in the y cell's unit squared
+  const chi2Dim = weights ? DIMENSIONLESS : yDim ? dimPow(yDim, 2) : null
+  const chi2Factor = weights ? 1 : y.factor * y.factor
+  const chi2Unit = weights ? '1' : squared(y.unit)
   Object.assign(shown, {
-    chi2: fit.chi2, reducedChi2: fit.reducedChi2, residuals: Array.from(fit.residuals), iterations: fit.iterations,
-    converged: fit.converged, n: picked.length,
+    chi2: clean(fit.chi2 / chi2Factor), reducedChi2: clean(fit.reducedChi2 / chi2Factor),
+    residuals: Array.from(fit.residuals, (v) => clean(v / y.factor)), iterations: fit.iterations, converged: fit.converged, n: picked.length,
   })
+  Object.assign(units, { chi2: chi2Unit, reducedChi2: chi2Unit, residuals: y.unit ?? '1', iterations: '1', n: '1' })
   fields.set('chi2', field(fit.chi2, chi2Dim))
   fields.set('reducedChi2', field(fit.reducedChi2, chi2Dim))
   fields.set('residuals', field(fit.residuals, yDim))
   fields.set('iterations', field(fit.iterations, DIMENSIONLESS))
   fields.set('n', field(picked.length, DIMENSIONLESS))
-  return { status: 'ok', value: new RecordValue('fit', cell.name, fields), dim: null, warnings, shown, unit: e?.unit }
+  return { status: 'ok', value: new RecordValue('fit', cell.name, fields), dim: null, warnings, shown, unit: e?.unit, units }
 }

@@ -8,8 +8,9 @@
  * `parser.functions` (see functions/registry.ts), never in an evaluation scope.
  */
 import { Parser } from 'expr-eval-fork'
-import { CellError } from './errors'
+import { CellError, EMPTY_FORMULA } from './errors'
 import { MAX_FORMULA_LENGTH, MAX_NODES } from './limits'
+import { formulaUnitTable } from './units'
 
 export type BinaryOp = '+' | '-' | '*' | '/' | '^' | '==' | '!=' | '<' | '>' | '<=' | '>=' | 'and' | 'or'
 export type UnaryOp = '-' | '+' | 'not'
@@ -84,7 +85,9 @@ interface Instr {
 export function parseFormula(source: string): Node {
   if (source.length > MAX_FORMULA_LENGTH)
     throw new CellError(`the formula is ${source.length.toLocaleString('en-US')} characters long; the limit is ${MAX_FORMULA_LENGTH.toLocaleString('en-US')}: split it into several formula cells`, 'limit')
-  if (source.trim() === '') throw new CellError('the formula is empty', 'syntax')
+  if (source.trim() === '') throw new CellError(EMPTY_FORMULA, 'syntax')
+  const juxtaposed = numberBesideName(source)
+  if (juxtaposed) throw new CellError(juxtaposed, 'syntax')
   let tokens: Instr[]
   try {
     tokens = (formulaParser().parse(source) as unknown as { tokens: Instr[] }).tokens
@@ -96,6 +99,27 @@ export function parseFormula(source: string): Node {
   }
   const counter = { n: 0 }
   return toTree(tokens, counter)
+}
+
+/** A number written straight before a name, `532 nm` or `532nm` (not `x2 nm`, not `1e-3`, not `2 and x`). */
+// (the number sits in a lookahead, which never gives characters back: `1e4` is not read as 1 then e4)
+const NUMBER_THEN_NAME = /(?<![\w.])(?=(\d+\.?\d*(?:[eE][+-]?\d+)?|\.\d+(?:[eE][+-]?\d+)?))\1[ \t]*([A-Za-z_µ]\w*)/g
+const WORD_OPERATORS: ReadonlySet<string> = new Set(['and', 'or', 'not', 'in'])
+
+/**
+ * "write 532*nm …" for a number next to a unit or a name, which the parser would otherwise read as the end of the
+ * formula or, inside a call, as a missing comma (an argument-count error); undefined when there is none.
+ * Text in quotes is left to the parser's own message.
+ */
+export function numberBesideName(source: string): string | undefined {
+  if (/["']/.test(source)) return undefined
+  for (const m of source.matchAll(NUMBER_THEN_NAME)) {
+    const [whole, number, name] = m
+    if (WORD_OPERATORS.has(name)) continue
+    const unit = formulaUnitTable().has(name)
+    return `write ${number}*${name}, not "${whole.trim()}": ${unit ? 'a unit is a number that multiplies its value, with' : 'a number and a name need'} a * between them`
+  }
+  return undefined
 }
 
 /** JavaScript and expr-eval words a formula might try; after them the parser only says it expected the end. */

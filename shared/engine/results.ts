@@ -42,14 +42,18 @@ export function toCellJson(p: PreparedCell, s: CellState): CellJson {
       const columns: Record<string, (number | null)[]> = {}
       const units: Record<string, string> = {}
       for (const [name, col] of Object.entries(cell.columns)) {
-        columns[name] = col.values
+        columns[name] = col.values ?? []
         units[name] = col.unit
       }
       return { ...base, value: { columns, units }, warnings }
     }
     case 'fit':
     case 'sweep':
-      return { ...base, value: (s.shown ?? null) as CellJson['value'], unit: s.unit, warnings }
+    case 'stack': {
+      const out: CellJson = { ...base, value: (s.shown ?? null) as CellJson['value'], unit: s.unit, warnings }
+      if (s.units) out.units = s.units
+      return out
+    }
     default:
       return { ...base, value: null, warnings }
   }

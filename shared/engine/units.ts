@@ -206,7 +206,7 @@ export const FORMULA_UNIT_NAMES: readonly string[] = [
   'V', 'mV',
   'C',
   'kg', 'g',
-  'sr',
+  'sr', 'rad', 'deg',
   'percent',
 ]
 

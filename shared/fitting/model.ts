@@ -21,6 +21,11 @@ export interface ModelFitOptions {
   max?: number[]
   /** Statistical weights 1/σᵢ² (one number for all, or one per point); default 1. */
   weights?: number | ArrayLike<number>
+  /**
+   * True when the weights are 1/σᵢ² of known standard deviations: the errors are then √diag((JᵀWJ)⁻¹), not rescaled
+   * by χ²/(n − p) (Bevington & Robinson (2003) ch. 8). Default false (errors scaled by the scatter of the data).
+   */
+  absoluteSigma?: boolean
   /** Levenberg–Marquardt iterations at most (default 200). */
   maxIterations?: number
   /** Parameter names, for the messages. */
@@ -31,7 +36,7 @@ export interface ModelFitOptions {
 
 export interface ModelFit {
   params: number[]
-  /** Standard errors √diag(C), C = (JᵀWJ)⁻¹·χ²/(n − p). */
+  /** Standard errors √diag(C), C = (JᵀWJ)⁻¹·χ²/(n − p) (or (JᵀWJ)⁻¹ with `absoluteSigma`). */
   errors: number[]
   covariance: number[][]
   /** Σ wᵢ·(yᵢ − modelᵢ)² at the optimum. */
@@ -50,7 +55,8 @@ export interface ModelFit {
  * Levenberg–Marquardt fit of a vector-valued model to data, with bounds and start values.
  *
  * - `evaluate(params)`: model values at the n data points; `y`: the n data; `start`: p start values (n > p)
- * - `min`/`max`: optional bounds; `weights`: 1/σ² (default 1); `maxIterations` (default 200)
+ * - `min`/`max`: optional bounds; `weights`: 1/σ² (default 1), `absoluteSigma` (errors from σ as given);
+ *   `maxIterations` (default 200)
  * - result: { params, errors, covariance, chi2, reducedChi2, residuals, iterations, converged }
  *
  * Source: K. Levenberg, Q. Appl. Math. 2, 164 (1944); D. W. Marquardt, J. SIAM 11, 431 (1963); parameter
@@ -265,7 +271,8 @@ export function fitModel(options: ModelFitOptions): ModelFit {
     chi2 += w[i] * residuals[i] * residuals[i]
   }
   const dof = n - p
-  const scaledReduced = chi / dof
+  // in scaled coordinates (JᵀWJ)⁻¹ = inv·scale²/yScale² and χ² = chi·yScale²
+  const scaledReduced = options.absoluteSigma ? 1 / (yScale * yScale) : chi / dof
   const covariance: number[][] = []
   for (let a = 0; a < p; a++) {
     const row: number[] = []

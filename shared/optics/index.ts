@@ -26,3 +26,7 @@ export {
   planckPhotonRadiance, photonFlux, photocurrent, detailedBalance, shockleyQueisserPoint, boseIntegral2,
 } from './spectra'
 export type { DetailedBalanceResult } from './spectra'
+export { tmm, solveTmmPoint, tmmPoint } from './tmm'
+export type { TmmOptions, TmmPoint } from './tmm'
+export { stackResponse } from './stack'
+export type { StackPolarization, StackSubstrate, StackResult } from './stack'

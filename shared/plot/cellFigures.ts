@@ -4,7 +4,8 @@
  */
 import type { CellResult, SweepValue } from '../schema/result'
 import { buildFigure, type FigureModel } from './figure'
-import { fitPlotData, type FitSpec } from './fitplot'
+import { fitPlotData, type FitSpec, type WindowFit } from './fitplot'
+import { formatWithError } from './format'
 import { traceColor } from './palette'
 import { prettyUnit } from './units'
 
@@ -62,8 +63,12 @@ export function sweepFigure(result: CellResult | undefined, opts: SweepFigureOpt
   return model
 }
 
-/** A band-edge fit drawn as its Tauc or Urbach plot: the data as points, the fitted line, the window shaded, Eg marked. */
-export function fitFigure(spec: FitSpec, results: Record<string, CellResult | undefined>): FigureModel {
+/**
+ * A band-edge fit drawn as its Tauc or Urbach plot: the data as points, the fitted line, the window shaded, Eg marked.
+ * `live` draws a window being chosen on the figure instead of the cell's own: its shading, and its refit line and gap
+ * (see windowFit).
+ */
+export function fitFigure(spec: FitSpec, results: Record<string, CellResult | undefined>, live?: { window: [number, number]; fit: WindowFit | null }): FigureModel {
   const base: FigureModel = {
     series: [],
     x: { title: '', unit: '', scale: 'linear', quantity: 'energy' },
@@ -81,18 +86,31 @@ export function fitFigure(spec: FitSpec, results: Record<string, CellResult | un
   base.x = { title: `${spec.x} (${prettyUnit(p.xUnit)})`, unit: p.xUnit, scale: 'linear', quantity: 'energy' }
   base.y = { title: p.yTitle, unit: '', scale: 'linear', quantity: null }
   base.series.push({ name: 'data', x: p.x, y: p.y, style: 'points', color: traceColor(0) })
-  if (p.line)
+  // the x axis spans the data, not the fitted line: a window dragged across the plot must not move the axis under it
+  const xs = p.x.filter(Number.isFinite)
+  if (xs.length > 1) {
+    const [lo, hi] = [Math.min(...xs), Math.max(...xs)]
+    const pad = 0.02 * (hi - lo)
+    if (hi > lo) base.x.range = [lo - pad, hi + pad]
+  }
+  if (live) {
+    const f = live.fit
+    const text = f ? `${f.quantity} = ${formatWithError(f.value, f.err)} ${prettyUnit(p.xUnit)}` : ''
+    if (f) base.series.push({ name: f.quantity === 'Eu' ? `fitted line, ${text}` : 'fitted line', x: [...f.line.x], y: [...f.line.y], style: 'line', color: 'accent' })
+    base.regions.push({ from: live.window[0], to: live.window[1], label: 'fit window' })
+    if (f && f.quantity === 'Eg') base.marks.push({ ref: `${spec.name}.Eg`, at: f.value, band: f.err > 0 ? [f.value - f.err, f.value + f.err] : undefined, label: `${spec.name}.${text}` })
+  } else if (p.line)
     base.series.push({ name: p.method === 'urbach' && p.result ? `fitted line, ${p.result}` : 'fitted line', x: [...p.line.x], y: [...p.line.y], style: 'line', color: 'accent' })
-  if (p.window) base.regions.push({ from: p.window[0], to: p.window[1], label: 'fit window' })
+  if (!live && p.window) base.regions.push({ from: p.window[0], to: p.window[1], label: 'fit window' })
   const value = results[spec.name]?.value as Record<string, unknown> | undefined
-  if (p.method === 'tauc' && p.result && typeof value?.Eg === 'number') {
+  if (!live && p.method === 'tauc' && p.result && typeof value?.Eg === 'number') {
     const err = typeof value.Eg_err === 'number' ? value.Eg_err : undefined
     base.marks.push({ ref: `${spec.name}.Eg`, at: value.Eg, band: err ? [value.Eg - err, value.Eg + err] : undefined, label: `${spec.name}.${p.result}` })
   }
   // the line runs to zero at Eg: keep the plot's y from starting far below zero
   if (p.method === 'tauc') {
     const finite = p.y.filter(Number.isFinite)
-    const top = Math.max(...finite, ...(p.line ? p.line.y : []))
+    const top = Math.max(...finite, ...(live?.fit ? live.fit.line.y : p.line ? p.line.y : []))
     if (Number.isFinite(top) && top > 0) base.y.range = [-0.03 * top, 1.05 * top]
   }
   base.messages = p.notes

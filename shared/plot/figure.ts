@@ -23,6 +23,8 @@ export interface FigureSeries {
   y: number[]
   style: 'line' | 'points' | 'line+points'
   color: string
+  /** A dashed line (an earlier version's curve, drawn under the current one when two versions are compared). */
+  dashed?: boolean
   /** Points in the source series when it was thinned for drawing. */
   thinnedFrom?: number
 }

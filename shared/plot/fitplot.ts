@@ -7,6 +7,7 @@
  * fitted Eg or Eu, not the slope's units. Values are shown in the conventional units: α in cm⁻¹, E in eV.
  */
 import type { CellResult } from '../schema/result'
+import { linearFit, taucFit, urbachFit } from '../fitting/index'
 import { formatWithError } from './format'
 import { resolveRef, unusable, type Resolved, type Results } from './resolve'
 import { converter, prettyUnit, spectralQuantity } from './units'
@@ -28,7 +29,13 @@ export interface FitPlotData {
   x: number[]
   /** (αE)^(1/r) with α in cm⁻¹ and E in eV (Tauc), or ln(α / cm⁻¹) (Urbach). */
   y: number[]
+  /** α in cm⁻¹ at each x (what a window refit needs). */
+  alpha: number[]
+  /** Tauc exponent (1/2 when not given). */
+  r: number
   xUnit: string
+  /** The x cell's display unit: the unit of the fit cell's from/to. */
+  windowUnit: string
   yTitle: string
   /** Fit window in `xUnit`, low to high. */
   window?: [number, number]
@@ -111,7 +118,7 @@ export function fitPlotData(spec: FitSpec, results: Results): Resolved<FitPlotDa
     }
   }
 
-  const data: FitPlotData = { method, x, y, xUnit: fitUnit, yTitle, window, notes }
+  const data: FitPlotData = { method, x, y, alpha, r, xUnit: fitUnit, windowUnit: xs.unit, yTitle, window, notes }
   const why = unusable(spec.name, fitResult)
   if (why) {
     notes.push(why)
@@ -148,4 +155,77 @@ export function fitPlotData(spec: FitSpec, results: Results): Resolved<FitPlotDa
     } else notes.push('Too few points in the fit window to draw the fitted line.')
   }
   return { ok: true, value: data }
+}
+
+export interface WindowFit {
+  /** Eg (Tauc) or Eu (Urbach) with its standard error, in the plot's x unit. */
+  quantity: 'Eg' | 'Eu'
+  value: number
+  err: number
+  r2: number
+  n: number
+  /** The fitted straight line in the plot's coordinates, drawn across the window (Tauc: from Eg). */
+  line: { x: [number, number]; y: [number, number] }
+  /** Data minus line at each point inside the window, in the plot's y. */
+  residuals: { x: number[]; y: number[] }
+}
+
+/**
+ * Refits a Tauc or Urbach plot over the window [lo, hi] (x unit of the plot), as the figure does while a window is
+ * dragged: the value ± standard error from shared/fitting (the same numbers the fit cell gives, its x in the plot's
+ * unit), and the straight line and residuals in the plot's own coordinates. Returns a plain sentence when the window
+ * gives no fit.
+ */
+export function windowFit(data: FitPlotData, lo: number, hi: number): { ok: true; value: WindowFit } | { ok: false; message: string } {
+  const a = Math.min(lo, hi)
+  const b = Math.max(lo, hi)
+  const px: number[] = []
+  const py: number[] = []
+  let bad = 0
+  for (let i = 0; i < data.x.length; i++) {
+    if (!(data.x[i] >= a && data.x[i] <= b)) continue
+    const alpha = data.alpha[i]
+    if (!Number.isFinite(alpha) || alpha < 0 || (data.method === 'urbach' && alpha === 0)) bad++
+    else {
+      px.push(data.x[i])
+      py.push(data.y[i])
+    }
+  }
+  if (bad > 0) {
+    const need = data.method === 'urbach' ? 'a finite α above zero' : 'a finite α of zero or more'
+    return { ok: false, message: `${bad} point${bad === 1 ? '' : 's'} inside this window ${bad === 1 ? 'has' : 'have'} no usable α (the fit needs ${need} throughout): move the window onto the edge.` }
+  }
+  if (px.length < 3) return { ok: false, message: `The window holds ${px.length} point${px.length === 1 ? '' : 's'}; a fit needs at least 3.` }
+  let value: number
+  let err: number
+  let r2: number
+  try {
+    if (data.method === 'tauc') {
+      const f = taucFit(data.x, data.alpha, data.r, a, b)
+      ;[value, err, r2] = [f.Eg, f.Eg_err, f.r2]
+    } else {
+      const f = urbachFit(data.x, data.alpha, a, b)
+      ;[value, err, r2] = [f.Eu, f.Eu_err, f.r2]
+    }
+  } catch (e) {
+    // what is left is a falling plot or equal x values: sentences without numbers in units
+    return { ok: false, message: e instanceof Error ? e.message : String(e) }
+  }
+  const line = linearFit(px, py)
+  const at = (x: number) => line.intercept + line.slope * x
+  const pad = 0.15 * (b - a)
+  const x0 = data.method === 'tauc' ? Math.min(value, a) : a - pad
+  const x1 = b + pad
+  return {
+    ok: true,
+    value: {
+      quantity: data.method === 'tauc' ? 'Eg' : 'Eu',
+      value,
+      err,
+      r2,
+      n: px.length,
+      line: { x: [x0, x1], y: [at(x0), at(x1)] },
+      residuals: { x: px, y: py.map((y, i) => y - at(px[i])) },
+    },
+  }
 }

@@ -13,8 +13,14 @@ export type Quantity =
 
 export type Results = Record<string, CellResult | undefined>
 
-/** Fit outputs given in the fit's own unit (DESIGN §5); all other fit outputs are SI. */
+/** Fit outputs given in the fit's own unit (DESIGN §5), for results that do not state their units. */
 const FIT_ENERGIES = new Set(['Eg', 'Eg_err', 'Eu', 'Eu_err'])
+
+/** The unit a fit or stack result states for one output ('' for a plain number), else the fallback. */
+function statedUnit(result: CellResult, key: string, fallback: string): string {
+  const u = result.units?.[key]
+  return u === undefined ? fallback : u === '1' ? '' : u
+}
 
 function toNumbers(values: readonly unknown[]): number[] {
   const out = new Array<number>(values.length)
@@ -49,7 +55,8 @@ function stripStop(s: string): string {
 
 /**
  * Resolves one reference: a parameter or formula cell name gives its value; `spectrum.column` a dataset column
- * (nulls become NaN, a gap); `fit.key` one fit output (energies in the fit's unit, others SI, so unit '').
+ * (nulls become NaN, a gap); `fit.key` one fit output and `stack.key` one stack output, each in the unit the result
+ * states for it.
  */
 export function resolveRef(ref: string, results: Results): Resolved<Quantity> {
   const text = ref.trim()
@@ -57,7 +64,7 @@ export function resolveRef(ref: string, results: Results): Resolved<Quantity> {
   const dot = text.indexOf('.')
   const name = dot < 0 ? text : text.slice(0, dot)
   const member = dot < 0 ? undefined : text.slice(dot + 1)
-  const result = results[name]
+  const result = Object.hasOwn(results, name) ? results[name] : undefined
   const why = unusable(name, result)
   if (why || !result) return { ok: false, message: why ?? `There is no cell named "${name}" in this sheet.` }
   const value = result.value
@@ -81,7 +88,7 @@ export function resolveRef(ref: string, results: Results): Resolved<Quantity> {
       const key = member ?? ('Eg' in value ? 'Eg' : 'Eu' in value ? 'Eu' : undefined)
       if (key === undefined) return { ok: false, message: `"${name}" is a fit; name one of its values (${Object.keys(value).map((k) => `${name}.${k}`).join(', ')}).` }
       const v = value[key]
-      const keyUnit = FIT_ENERGIES.has(key) ? unit : ''
+      const keyUnit = statedUnit(result, key, FIT_ENERGIES.has(key) ? unit : '')
       if (typeof v === 'number') {
         const errKey = `${key}_err`
         const err = typeof value[errKey] === 'number' ? (value[errKey] as number) : undefined
@@ -89,6 +96,15 @@ export function resolveRef(ref: string, results: Results): Resolved<Quantity> {
       }
       if (isNumberArray(v)) return { ok: true, value: { kind: 'array', ref: text, cell: name, values: toNumbers(v), unit: keyUnit } }
       return { ok: false, message: `Fit "${name}" has no value "${key}"; it has ${Object.keys(value).join(', ')}.` }
+    }
+    case 'stack': {
+      if (!isRecord(value)) return { ok: false, message: `Stack "${name}" has no result yet.` }
+      const outputs = Object.keys(value)
+      if (member === undefined)
+        return { ok: false, message: `"${name}" is a stack; name one of its outputs (${outputs.map((k) => `${name}.${k}`).join(', ')}).` }
+      const v = value[member]
+      if (!isNumberArray(v)) return { ok: false, message: `Stack "${name}" has no output "${member}"; it has ${outputs.join(', ')}.` }
+      return { ok: true, value: { kind: 'array', ref: text, cell: name, values: toNumbers(v), unit: statedUnit(result, member, '') } }
     }
     case 'sweep':
       return {
@@ -120,7 +136,10 @@ export function drawableRefs(results: Results): { ref: string; unit: string; kin
     } else if (r.kind === 'fit' && isRecord(v)) {
       for (const [key, val] of Object.entries(v))
         if (typeof val === 'number' || isNumberArray(val))
-          out.push({ ref: `${name}.${key}`, unit: FIT_ENERGIES.has(key) ? (r.unit ?? '') : '', kind: 'fit', length: Array.isArray(val) ? val.length : 1 })
+          out.push({ ref: `${name}.${key}`, unit: statedUnit(r, key, FIT_ENERGIES.has(key) ? (r.unit ?? '') : ''), kind: 'fit', length: Array.isArray(val) ? val.length : 1 })
+    } else if (r.kind === 'stack' && isRecord(v)) {
+      for (const [key, val] of Object.entries(v))
+        if (isNumberArray(val)) out.push({ ref: `${name}.${key}`, unit: statedUnit(r, key, ''), kind: 'stack', length: val.length })
     } else if (typeof v === 'number' || isNumberArray(v)) {
       out.push({ ref: name, unit: r.unit ?? '', kind: r.kind, length: Array.isArray(v) ? v.length : 1 })
     }

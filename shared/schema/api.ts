@@ -14,6 +14,7 @@
  * - The session is an httpOnly cookie (`penumbra_session`); the client never reads it.
  */
 import { z } from 'zod'
+import { IDENTIFIER, SPECTRUM_QUANTITIES } from './sheet'
 
 /** Lab roles, most powerful first (DESIGN §2). Kept in step with server/db/schema.ts. */
 export const LAB_ROLES = ['owner', 'editor', 'reviewer', 'viewer'] as const
@@ -304,6 +305,7 @@ export const cellResultSchema = z
     status: z.enum(['ok', 'error', 'blocked']),
     value: z.unknown().optional(),
     unit: z.string().optional(),
+    units: z.record(z.string(), z.string()).optional(),
     dimension: z.string().optional(),
     warnings: z.array(z.string()).optional(),
     error: z.string().optional(),
@@ -331,3 +333,339 @@ export type DevMail = z.infer<typeof devMailSchema>
 /** GET /dev/mail.json → 200, newest first. GET /dev/mail is the same list as an HTML page. */
 export const devMailReply = z.object({ messages: z.array(devMailSchema) })
 export type DevMailReply = z.infer<typeof devMailReply>
+
+// ---------------------------------------------------------------------------------------------------------------
+// datasets (measured spectra)
+
+const quantityCode = z.enum(SPECTRUM_QUANTITIES)
+
+/**
+ * The `options` field of POST /api/sheets/:sheetId/datasets(/preview): the confirmed mapping (which columns, their
+ * names, quantities and units; which sample) and what to do with duplicate x and empty cells.
+ */
+export const datasetImportOptions = z.object({
+  columns: z
+    .array(z.object({
+      key: z.string().max(16),
+      name: z.string().regex(IDENTIFIER, 'must start with a letter and use only letters, digits and _').max(64).optional(),
+      quantity: quantityCode.optional(),
+      unit: z.string().max(64).optional(),
+    }))
+    .max(200)
+    .optional(),
+  sample: z.string().max(200).optional(),
+  /** The spectrum's name (the cell's name in formulas); default from the file name. */
+  name: z.string().regex(IDENTIFIER, 'must start with a letter and use only letters, digits and _').max(64).optional(),
+  averageDuplicates: z.boolean().optional(),
+  dropEmptyRows: z.boolean().optional(),
+})
+export type DatasetImportOptions = z.infer<typeof datasetImportOptions>
+
+const nullableNumbers = z.array(z.number().nullable())
+
+export const datasetPreviewReply = z.object({
+  columns: z.array(z.object({
+    key: z.string(), label: z.string(), quantity: quantityCode, unit: z.string(), guessed: z.boolean(), note: z.string(),
+    count: z.number(), min: z.number().nullable(), max: z.number().nullable(),
+  })),
+  samples: z.array(z.object({ key: z.string(), name: z.string(), columns: z.array(z.string()) })),
+  /** The first rows of the numbers (null for an empty cell). */
+  rows: z.array(nullableNumbers),
+  warnings: z.array(z.string()),
+  dialect: z.object({ separator: z.string(), decimal: z.string(), encoding: z.string(), firstLine: z.number(), headerLine: z.number().optional() }),
+  /** Every column thinned to at most a few hundred points, by key, for the preview's plot. */
+  plot: z.record(z.string(), nullableNumbers),
+  /** A name for the spectrum, from the file name. */
+  name: z.string(),
+  /** The mapping's problem, when the guesses cannot be imported as they are (duplicate x, empty cells …). */
+  problem: z.object({ error: z.string(), issues: z.array(issueSchema), offer: z.enum(['averageDuplicates', 'dropEmptyRows']).optional() }).optional(),
+})
+export type DatasetPreview = z.infer<typeof datasetPreviewReply>
+export type DatasetPreviewColumn = DatasetPreview['columns'][number]
+
+export const datasetCreatedReply = z.object({
+  id: z.string(),
+  name: z.string(),
+  source: z.string(),
+  sample: z.string(),
+  columns: z.array(z.object({ name: z.string(), quantity: z.string(), unit: z.string(), count: z.number(), min: z.number().optional(), max: z.number().optional() })),
+  warnings: z.array(z.string()),
+})
+export type DatasetCreated = z.infer<typeof datasetCreatedReply>
+
+export const datasetReply = z.object({
+  id: z.string(),
+  name: z.string(),
+  source: z.string().nullable(),
+  createdAt: z.number(),
+  columns: z.array(z.object({ name: z.string(), quantity: z.string().optional(), unit: z.string(), values: nullableNumbers })),
+})
+export type DatasetReply = z.infer<typeof datasetReply>
+
+// ---------------------------------------------------------------------------------------------------------------
+// snapshots (DESIGN §11 item 5)
+
+/** Routes the SPA serves for snapshots and guests (the pages then call the API). */
+export const SNAPSHOT_PAGE_ROUTES = {
+  /** One snapshot, read-only (mailed review requests and decisions link here). */
+  snapshot: '/snapshots/:snapshotId',
+  /** A live sheet (mentions link here, with `?cell=<cellId>`). */
+  sheet: '/sheets/:sheetId',
+  /** A guest link as mailed or handed out: the page calls GET /api/guest/:token. */
+  guest: '/guest/:token',
+} as const
+
+/** The short code of a snapshot hash shown beside it (the first 10 hex digits of the SHA-256). */
+export const SHORT_HASH_LENGTH = 10
+export function shortHash(hash: string): string {
+  return hash.slice(0, SHORT_HASH_LENGTH)
+}
+
+export const REVIEW_STATES = ['open', 'approved', 'changes-requested'] as const
+export type ReviewState = (typeof REVIEW_STATES)[number]
+export const reviewStateSchema = z.enum(REVIEW_STATES)
+export const REVIEW_DECISION_VALUES = ['approved', 'changes-requested'] as const
+export const reviewDecisionSchema = z.enum(REVIEW_DECISION_VALUES, { message: 'must be approved or changes-requested' })
+export type ReviewDecisionValue = z.infer<typeof reviewDecisionSchema>
+
+const messageText = z.string({ message: 'required' }).trim().max(500, 'must be at most 500 characters')
+const noteText = z.string().trim().max(4000, 'must be at most 4000 characters')
+
+/**
+ * POST /api/sheets/:sheetId/snapshots {message} (owner, editor) → 201 SnapshotSummary. The server reads the live
+ * document, exports its sheet file (datasets inlined), evaluates it with its own engine and stores all of it.
+ */
+export const createSnapshotBody = z.object({ message: messageText.min(1, 'must not be empty') })
+export type CreateSnapshotBody = z.infer<typeof createSnapshotBody>
+
+export const snapshotSummarySchema = z.object({
+  id: z.string(),
+  sheetId: z.string(),
+  labId: z.string(),
+  /** SHA-256 (hex) of the canonical sheet file; show `shortHash(hash)`. */
+  hash: z.string(),
+  createdAt: timestampSchema,
+  /** The author's user id, and name. */
+  createdBy: z.string(),
+  authorName: z.string(),
+  message: z.string(),
+  engineVersion: z.string(),
+  /** The sheet's title when frozen. */
+  title: z.string(),
+  /** The newest review's state, or null when nobody was asked to review it. */
+  reviewState: reviewStateSchema.nullable(),
+  /** Open guest links (neither expired nor revoked) and reviews using it: while either is non-zero it cannot be deleted. */
+  guestLinkCount: z.number().int(),
+  reviewCount: z.number().int(),
+})
+export type SnapshotSummary = z.infer<typeof snapshotSummarySchema>
+
+/** GET /api/sheets/:sheetId/snapshots (any member) → 200, newest first. */
+export const snapshotsReply = z.object({ snapshots: z.array(snapshotSummarySchema) })
+export type SnapshotsReply = z.infer<typeof snapshotsReply>
+
+/**
+ * GET /api/snapshots/:snapshotId (any member of its lab) → 200: the summary plus the sheet file and the stored
+ * result object (DESIGN §5). DELETE /api/snapshots/:snapshotId (owner) → 204; 409 while a review or an open guest
+ * link uses it. There is no route that changes a snapshot.
+ *
+ * GET /api/snapshots/:snapshotId/file → 200 the sheet file with `snapshot: { hash, results, … }`, as a download
+ * (`npm run evaluate -- FILE --check` recomputes it).
+ * GET /api/snapshots/:snapshotId/cells/:cellId/csv → 200 text/csv of that cell's series (a formula array, a spectrum's
+ * columns, a sweep's table, a fit's residuals), as a download; 404 when the cell has no series.
+ */
+export const snapshotReply = snapshotSummarySchema.extend({
+  file: z.object({ format: z.string(), version: z.number(), title: z.string(), cells: z.array(z.record(z.string(), z.unknown())) }).passthrough(),
+  results: evaluationReply,
+})
+export type SnapshotDetail = z.infer<typeof snapshotReply>
+
+/**
+ * POST /api/snapshots/:snapshotId/restore {into: "new", title?} (owner, editor) → 201 Sheet: a new sheet in the same
+ * lab made from the snapshot's file. Restoring into the live sheet is done by the client (see DEVELOPERS.md): it
+ * fetches the snapshot's file and replaces the cells in one Yjs transaction, so the person can undo it.
+ */
+export const restoreSnapshotBody = z.object({ into: z.literal('new'), title: sheetTitleSchema.optional() })
+export type RestoreSnapshotBody = z.infer<typeof restoreSnapshotBody>
+
+/** One word-level piece of a formula's text diff: unchanged, added or removed. */
+export const textPartSchema = z.object({ value: z.string(), added: z.boolean().optional(), removed: z.boolean().optional() })
+export type TextPart = z.infer<typeof textPartSchema>
+
+export const compareReply = z.object({
+  /** Ids and hashes of the two sides; `b` is `live` for the live sheet (its hash is that of its sheet file now). */
+  a: z.object({ id: z.string(), hash: z.string(), createdAt: timestampSchema.nullable() }),
+  b: z.object({ id: z.string(), hash: z.string(), createdAt: timestampSchema.nullable() }),
+  /** Parameter cells whose value or unit changed: values in each side's own unit. */
+  parameters: z.array(z.object({ name: z.string(), before: z.number(), after: z.number(), unit: z.string(), unitBefore: z.string().optional() })),
+  /** Formula cells whose source changed, with a word-level diff. */
+  formulas: z.array(z.object({ name: z.string(), before: z.string(), after: z.string(), diff: z.array(textPartSchema) })),
+  /** Other cells whose settings changed (fit windows, sweep ranges, figure traces, note texts…): the changed fields. */
+  settings: z.array(z.object({ name: z.string(), kind: z.string(), fields: z.array(z.string()) })),
+  /** Cells only in `b` / only in `a`, by name (unnamed cells as `<kind> <id>`). */
+  added: z.array(z.string()),
+  removed: z.array(z.string()),
+  renamed: z.array(z.object({ from: z.string(), to: z.string() })),
+  /** Cells whose place in the sheet changed (0-based positions). */
+  moved: z.array(z.object({ name: z.string(), from: z.number().int(), to: z.number().int() })),
+  /**
+   * Results that moved. `change` is the relative change (after − before)/|before| of a scalar, the largest relative
+   * change of an array (at `index`), or of a fit's main value; null when not a number (a status change, a new cell).
+   * `flagged`: a fit value moved by more than the combined uncertainty √(σ₁² + σ₂²).
+   */
+  results: z.array(
+    z.object({
+      name: z.string(),
+      kind: z.string(),
+      change: z.number().nullable(),
+      note: z.string(),
+      index: z.number().int().optional(),
+      flagged: z.boolean().optional(),
+      fit: z.array(z.object({ key: z.string(), before: z.number().nullable(), beforeErr: z.number().nullable(), after: z.number().nullable(), afterErr: z.number().nullable(), flagged: z.boolean() })).optional(),
+    }),
+  ),
+})
+export type CompareReply = z.infer<typeof compareReply>
+
+// reviews
+
+/** POST /api/snapshots/:snapshotId/reviews {reviewerIds, note} (owner, editor) → 201 Review. Reviewers must be owners or reviewers of the lab. */
+export const createReviewBody = z.object({
+  reviewerIds: z.array(z.string().min(1)).min(1, 'name at least one reviewer').max(20),
+  note: noteText.default(''),
+})
+export type CreateReviewBody = z.infer<typeof createReviewBody>
+
+/** PATCH /api/reviews/:reviewId {decision, note} (one of its reviewers) → 200 Review. Deciding again replaces one's decision. */
+export const decideReviewBody = z.object({ decision: reviewDecisionSchema, note: noteText.default('') })
+export type DecideReviewBody = z.infer<typeof decideReviewBody>
+
+export const reviewerDecisionSchema = z.object({
+  reviewerId: z.string(),
+  reviewerName: z.string(),
+  decision: reviewDecisionSchema.nullable(),
+  note: z.string().nullable(),
+  decidedAt: timestampSchema.nullable(),
+})
+export type ReviewerDecision = z.infer<typeof reviewerDecisionSchema>
+
+export const reviewSchema = z.object({
+  id: z.string(),
+  snapshotId: z.string(),
+  snapshotHash: z.string(),
+  snapshotMessage: z.string(),
+  sheetId: z.string(),
+  sheetTitle: z.string(),
+  labId: z.string(),
+  requestedBy: z.string(),
+  requestedByName: z.string(),
+  note: z.string(),
+  createdAt: timestampSchema,
+  /** `changes-requested` when anyone asked for changes, `approved` when everyone approved, else `open`. */
+  state: reviewStateSchema,
+  decisions: z.array(reviewerDecisionSchema),
+})
+export type Review = z.infer<typeof reviewSchema>
+
+/**
+ * GET /api/labs/:labId/reviews (any member) → 200: `waiting` asks the caller and they have not decided; `requested`
+ * were asked by the caller; `decided` are every other review of the lab that is no longer open. Newest first.
+ * GET /api/snapshots/:snapshotId/reviews (any member) → 200 { reviews }.
+ */
+export const reviewQueueReply = z.object({ waiting: z.array(reviewSchema), requested: z.array(reviewSchema), decided: z.array(reviewSchema) })
+export type ReviewQueue = z.infer<typeof reviewQueueReply>
+export const reviewsReply = z.object({ reviews: z.array(reviewSchema) })
+export type ReviewsReply = z.infer<typeof reviewsReply>
+
+// comments
+
+/**
+ * POST /api/sheets/:sheetId/comments {cellId, text, snapshotId?, parentId?} (owner, editor, reviewer) → 201 Comment.
+ * A reply names its thread's first comment as `parentId` (and inherits its cell and snapshot). `@Name` of a member
+ * (their name without spaces, or the part of their e-mail before @) mails them.
+ */
+export const createCommentBody = z.object({
+  cellId: z.string().min(1).max(64),
+  text: z.string({ message: 'required' }).trim().min(1, 'must not be empty').max(4000, 'must be at most 4000 characters'),
+  snapshotId: z.string().min(1).optional(),
+  parentId: z.string().min(1).optional(),
+})
+export type CreateCommentBody = z.infer<typeof createCommentBody>
+
+/** PATCH /api/comments/:commentId {resolved} (owner, editor, reviewer) → 200 Comment (a thread is resolved on its first comment). */
+export const updateCommentBody = z.object({ resolved: z.boolean({ message: 'must be true or false' }) })
+export type UpdateCommentBody = z.infer<typeof updateCommentBody>
+
+export const commentSchema = z.object({
+  id: z.string(),
+  sheetId: z.string(),
+  cellId: z.string(),
+  /** The snapshot it was made on, or null for the live sheet; the hash lets the live sheet say "on an older version". */
+  snapshotId: z.string().nullable(),
+  snapshotHash: z.string().nullable(),
+  parentId: z.string().nullable(),
+  text: z.string(),
+  authorId: z.string(),
+  authorName: z.string(),
+  resolved: z.boolean(),
+  createdAt: timestampSchema,
+  updatedAt: timestampSchema,
+})
+export type Comment = z.infer<typeof commentSchema>
+
+/**
+ * GET /api/sheets/:sheetId/comments[?snapshotId=…|live] (any member) → 200, oldest first: every comment of the sheet
+ * (live and every snapshot's), or only one snapshot's / the live sheet's.
+ * GET /api/sheets/:sheetId/comments/events (any member) → text/event-stream: one `comment` event (data: a Comment)
+ * each time a comment is made, resolved or reopened on the sheet.
+ */
+export const commentsReply = z.object({ comments: z.array(commentSchema) })
+export type CommentsReply = z.infer<typeof commentsReply>
+
+// guest links
+
+/** POST /api/snapshots/:snapshotId/guest-links {expiresInDays, note} (owner, editor) → 201 GuestLinkCreated (the only time the URL is shown). */
+export const createGuestLinkBody = z.object({
+  expiresInDays: z.number({ message: 'must be a number of days' }).int('must be a whole number of days').min(1, 'must be at least 1 day').max(90, 'must be at most 90 days'),
+  note: z.string().trim().max(500, 'must be at most 500 characters').default(''),
+})
+export type CreateGuestLinkBody = z.infer<typeof createGuestLinkBody>
+
+export const guestLinkSchema = z.object({
+  id: z.string(),
+  snapshotId: z.string(),
+  note: z.string(),
+  createdBy: z.string(),
+  createdByName: z.string(),
+  createdAt: timestampSchema,
+  expiresAt: timestampSchema,
+  revokedAt: timestampSchema.nullable(),
+  viewCount: z.number().int(),
+  lastViewAt: timestampSchema.nullable(),
+  state: z.enum(['active', 'expired', 'revoked']),
+})
+export type GuestLink = z.infer<typeof guestLinkSchema>
+export const guestLinkCreatedReply = guestLinkSchema.extend({ url: z.string() })
+export type GuestLinkCreated = z.infer<typeof guestLinkCreatedReply>
+
+/** GET /api/snapshots/:snapshotId/guest-links (any member) → 200, newest first. DELETE /api/guest-links/:linkId (owner, editor) → 204, revoked at once. */
+export const guestLinksReply = z.object({ links: z.array(guestLinkSchema) })
+export type GuestLinksReply = z.infer<typeof guestLinksReply>
+
+/**
+ * GET /api/guest/:token (no session) → 200: that one snapshot and nothing else of the lab (no ids of other things,
+ * no member names but the author's); 404 unknown link; 410 `{ error }` when expired or revoked.
+ */
+export const guestSnapshotReply = z.object({
+  hash: z.string(),
+  title: z.string(),
+  message: z.string(),
+  authorName: z.string(),
+  createdAt: timestampSchema,
+  engineVersion: z.string(),
+  expiresAt: timestampSchema,
+  note: z.string(),
+  file: snapshotReply.shape.file,
+  results: evaluationReply,
+})
+export type GuestSnapshot = z.infer<typeof guestSnapshotReply>

@@ -23,6 +23,8 @@ export interface CellResult {
   status: CellStatus
   value?: CellValue
   unit?: string
+  /** Fit and stack cells: the unit of each output in `value` ("1" for a plain number or fraction). */
+  units?: Record<string, string>
   dimension?: string
   warnings?: string[]
   error?: string

@@ -9,6 +9,9 @@ export const SHEET_FORMAT = 'penumbra.sheet'
 export const SHEET_VERSION = 1
 
 /** Cell names: a letter first, then letters, digits or `_`. */
+// Cells and their parts are strict: a field the schema does not name is an error (with the right field, when one is
+// close: see unknownFieldMessage), not silently dropped. The stack cell keeps its own rules.
+
 export const IDENTIFIER = /^[A-Za-z][A-Za-z0-9_]*$/
 const name = z.string().regex(IDENTIFIER, 'must start with a letter and use only letters, digits and _').max(64)
 const id = z.string().min(1).max(64)
@@ -16,7 +19,7 @@ const unit = z.string().max(64)
 const finite = z.number().finite()
 const description = z.string().max(2000)
 
-export const parameterCell = z.object({
+export const parameterCell = z.strictObject({
   id: id.optional(),
   kind: z.literal('parameter'),
   name,
@@ -28,7 +31,7 @@ export const parameterCell = z.object({
   description: description.optional(),
 })
 
-export const formulaCell = z.object({
+export const formulaCell = z.strictObject({
   id: id.optional(),
   kind: z.literal('formula'),
   name,
@@ -37,34 +40,78 @@ export const formulaCell = z.object({
   description: description.optional(),
 })
 
-export const datasetColumn = z.object({
+/**
+ * What a spectrum column measures (the `quantity` of a dataset column): wavelength, photon energy, wavenumber,
+ * transmittance T, reflectance R, absorbance A10 (base 10), absorptance A, absorption coefficient alpha, refractive
+ * index n, extinction coefficient k, or other.
+ */
+export const SPECTRUM_QUANTITIES = ['wavelength', 'energy', 'wavenumber', 'T', 'R', 'A10', 'A', 'alpha', 'n', 'k', 'other'] as const
+export type SpectrumQuantity = (typeof SPECTRUM_QUANTITIES)[number]
+
+/** Words for each quantity code, for the interface. */
+export const QUANTITY_LABELS: Record<SpectrumQuantity, string> = {
+  wavelength: 'wavelength',
+  energy: 'photon energy',
+  wavenumber: 'wavenumber',
+  T: 'transmittance',
+  R: 'reflectance',
+  A10: 'absorbance (base 10)',
+  A: 'absorptance',
+  alpha: 'absorption coefficient α',
+  n: 'refractive index n',
+  k: 'extinction coefficient k',
+  other: 'other',
+}
+
+/**
+ * One column of a spectrum. In a sheet file it carries its `values` (in `unit`; null for an empty entry). In the live
+ * document of a sheet the numbers stay in the database: the column carries only its metadata (`unit`, `quantity`,
+ * `count`, `min`, `max`) and the cell's `datasetId` names the stored dataset the engine loads the values from.
+ */
+export const datasetColumn = z.strictObject({
   unit: unit,
-  values: z.array(z.number().nullable()).max(1_000_000),
-  /** What the column measures, when known: wavelength, energy, T (transmittance), R, A10 (absorbance), alpha … */
+  values: z.array(z.number().nullable()).max(1_000_000).optional(),
+  /** What the column measures: one of SPECTRUM_QUANTITIES when known (other strings are kept as they are). */
   quantity: z.string().max(64).optional(),
+  /** Points in the column, and the range of its finite values (in `unit`): metadata for the live document. */
+  count: z.number().int().nonnegative().optional(),
+  min: finite.optional(),
+  max: finite.optional(),
 })
 
-export const spectrumCell = z.object({
+/**
+ * A measured spectrum. Sheet file form: `{ "kind": "spectrum", "name": "filmB", "columns": { "wavelength": { "unit":
+ * "nm", "quantity": "wavelength", "values": [...] }, "T": { "unit": "%", "quantity": "T", "values": [...] } } }`.
+ * Live document form: the same with `datasetId` set and no `values` in the columns (metadata only), e.g.
+ * `{ "kind": "spectrum", "name": "filmB", "datasetId": "ds_…", "source": "filmB.csv", "sample": "film B",
+ *    "columns": { "wavelength": { "unit": "nm", "quantity": "wavelength", "count": 401, "min": 300, "max": 700 }, … } }`.
+ * Formulas read the columns as `filmB.wavelength`, `filmB.T` (in SI). Export inlines the values; importing a file with
+ * inline values stores them as a dataset. A column without values in a cell without `datasetId` is an error.
+ */
+export const spectrumCell = z.strictObject({
   id: id.optional(),
   kind: z.literal('spectrum'),
   name,
   columns: z.record(z.string().regex(IDENTIFIER, 'column names must be identifiers'), datasetColumn),
-  /** The stored dataset this cell shows, when the app keeps it in the database; export inlines `columns`. */
+  /** The stored dataset holding this cell's numbers (live document); export inlines them into `columns`. */
   datasetId: z.string().max(64).optional(),
+  /** The name of the file the data came from. */
   source: z.string().max(500).optional(),
+  /** Which sample of the file, when it held several. */
+  sample: z.string().max(200).optional(),
   description: description.optional(),
 })
 
 const cellRef = z.string().regex(IDENTIFIER, 'must name a cell').max(64)
 
-export const fitParameter = z.object({
+export const fitParameter = z.strictObject({
   name: cellRef,
   start: finite.optional(),
   min: finite.optional(),
   max: finite.optional(),
 })
 
-export const fitCell = z.object({
+export const fitCell = z.strictObject({
   id: id.optional(),
   kind: z.literal('fit'),
   name,
@@ -81,10 +128,15 @@ export const fitCell = z.object({
   /** method `model`: the formula cell evaluated as the model, and its free parameter cells. */
   model: cellRef.optional(),
   parameters: z.array(fitParameter).max(20).optional(),
+  /**
+   * A cell holding the standard deviation σ of each y value (same length as y, in the y cell's units). When given,
+   * the fit minimises χ² = Σ((y − f)/σ)² and its errors come from the weights.
+   */
+  sigma: cellRef.optional(),
   description: description.optional(),
 })
 
-export const sweepCell = z.object({
+export const sweepCell = z.strictObject({
   id: id.optional(),
   kind: z.literal('sweep'),
   name,
@@ -98,14 +150,14 @@ export const sweepCell = z.object({
   description: description.optional(),
 })
 
-export const figureTrace = z.object({
+export const figureTrace = z.strictObject({
   x: cellRef.or(z.string().max(200)),
   y: cellRef.or(z.string().max(200)),
   label: z.string().max(200).optional(),
   style: z.enum(['line', 'points', 'line+points']).optional(),
 })
 
-export const figureAxis = z.object({
+export const figureAxis = z.strictObject({
   scale: z.enum(['linear', 'log']).optional(),
   unit: unit.optional(),
   label: z.string().max(200).optional(),
@@ -113,7 +165,7 @@ export const figureAxis = z.object({
   max: finite.optional(),
 })
 
-export const figureCell = z.object({
+export const figureCell = z.strictObject({
   id: id.optional(),
   kind: z.literal('figure'),
   name: name.optional(),
@@ -129,30 +181,75 @@ export const figureCell = z.object({
   description: description.optional(),
 })
 
-export const noteCell = z.object({
+export const noteCell = z.strictObject({
   id: id.optional(),
   kind: z.literal('note'),
   name: name.optional(),
   text: z.string().max(100000),
 })
 
-export const stackLayer = z.object({
-  name: z.string().max(64).optional(),
-  d: z.union([finite, z.string().max(2000)]),
-  n: z.union([finite, z.string().max(2000)]),
-  k: z.union([finite, z.string().max(2000)]).optional(),
-})
+/** A formula written in a stack cell's field (a constant such as "1.52", a dispersion model, a spectrum column). */
+const stackFormula = z.string().min(1, 'must not be empty: write a formula').max(2000)
 
-/** Accepted now so files written by later versions import; evaluated once the stack cell lands. */
+/** One coherent layer of a stack: its thickness, refractive index n and extinction coefficient k, all formulas. */
+export const stackLayer = z
+  .object({
+    name,
+    thickness: stackFormula,
+    n: stackFormula,
+    k: stackFormula,
+  })
+  .strict()
+
+/**
+ * The substrate under a stack's layers. Without `thickness` it is semi-infinite (T is the light entering it); with a
+ * thickness it is a slab with the ambient behind it, its two faces summed by intensity unless `coherent` is true.
+ */
+export const stackSubstrate = z
+  .object({
+    name,
+    n: stackFormula,
+    k: stackFormula,
+    thickness: stackFormula.optional(),
+    coherent: z.boolean().optional(),
+  })
+  .strict()
+
+export const STACK_POLARIZATIONS = ['s', 'p', 'unpolarized'] as const
+
+/**
+ * A multilayer optical stack: layers from ambient to substrate over a wavelength grid, at an angle of incidence, for
+ * s-, p- or unpolarised light. Every field but `polarization` and `coherent` is a formula. Its outputs are
+ * `name.R`, `name.T`, `name.A` and `name.A_<layer>` over the grid (and `name.wavelength`, the grid itself).
+ */
 export const stackCell = z
   .object({
     id: id.optional(),
     kind: z.literal('stack'),
     name,
-    layers: z.array(stackLayer).max(100).optional(),
+    /** The wavelength grid (a length, usually a cell such as `lam`). */
+    wavelength: stackFormula,
+    /** Ambient index (default 1). */
+    ambient: stackFormula.optional(),
+    /** Angle of incidence in the ambient (default 0; `45*deg`). */
+    angle: stackFormula.optional(),
+    polarization: z.enum(STACK_POLARIZATIONS).optional(),
+    layers: z.array(stackLayer).max(50),
+    substrate: stackSubstrate,
     description: description.optional(),
   })
-  .passthrough()
+  .strict()
+
+/** The formula fields of a stack cell, keyed by path: wavelength, ambient, angle, layers.i.thickness|n|k, substrate.*. */
+export function stackFormulas(cell: z.infer<typeof stackCell>): [string, string][] {
+  const out: [string, string][] = [['wavelength', cell.wavelength]]
+  if (cell.ambient !== undefined) out.push(['ambient', cell.ambient])
+  if (cell.angle !== undefined) out.push(['angle', cell.angle])
+  cell.layers.forEach((l, i) => out.push([`layers.${i}.thickness`, l.thickness], [`layers.${i}.n`, l.n], [`layers.${i}.k`, l.k]))
+  out.push(['substrate.n', cell.substrate.n], ['substrate.k', cell.substrate.k])
+  if (cell.substrate.thickness !== undefined) out.push(['substrate.thickness', cell.substrate.thickness])
+  return out
+}
 
 export const cell = z.discriminatedUnion('kind', [
   parameterCell,
@@ -164,6 +261,23 @@ export const cell = z.discriminatedUnion('kind', [
   noteCell,
   stackCell,
 ])
+
+/** The schema of each cell kind, by kind (own-property safe: a Map, never an object indexed by user text). */
+export const CELL_SCHEMAS: ReadonlyMap<string, (typeof cell.options)[number]> = new Map(cell.options.map((o) => [o.shape.kind.value, o]))
+
+/** True when the kind's schema keeps fields it does not name (the stack cell, until its own schema lands). */
+export function keepsUnknownFields(schema: (typeof cell.options)[number]): boolean {
+  const catchall = (schema._zod.def as { catchall?: { _zod: { def: { type: string } } } }).catchall
+  return catchall !== undefined && catchall._zod.def.type !== 'never'
+}
+
+/** The fields a cell of each kind must have (in the live document every cell has its `id` too). */
+export const REQUIRED_FIELDS: ReadonlyMap<string, ReadonlySet<string>> = new Map(
+  [...CELL_SCHEMAS].map(([kind, schema]) => [
+    kind,
+    new Set(['id', ...Object.entries(schema.shape as Record<string, z.ZodType>).filter(([, f]) => !f.safeParse(undefined).success).map(([k]) => k)]),
+  ]),
+)
 
 export const sheetFile = z
   .object({
@@ -207,6 +321,8 @@ export type FigureCell = z.infer<typeof figureCell>
 export type FigureTrace = z.infer<typeof figureTrace>
 export type NoteCell = z.infer<typeof noteCell>
 export type StackCell = z.infer<typeof stackCell>
+export type StackLayer = z.infer<typeof stackLayer>
+export type StackSubstrate = z.infer<typeof stackSubstrate>
 export type Cell = z.infer<typeof cell>
 export type CellKind = Cell['kind']
 export type SheetFile = z.infer<typeof sheetFile>
@@ -238,15 +354,81 @@ export function formatPath(path: readonly PropertyKey[]): string {
 export function toSchemaIssues(error: z.ZodError, input?: unknown): SchemaIssue[] {
   const issues: SchemaIssue[] = []
   for (const issue of error.issues) {
+    if (issue.code === 'unrecognized_keys') {
+      for (const key of issue.keys) issues.push({ path: formatPath([...issue.path, key]), message: unknownFieldMessage(issue.path, key, input) })
+      continue
+    }
     if (issue.code === 'invalid_union' && 'errors' in issue && Array.isArray(issue.errors) && issue.errors.length > 0) {
       // discriminated union with a known kind: report the branch's own problems
       const branch = issue.errors[0] as z.core.$ZodIssue[]
-      for (const sub of branch) issues.push(describe(sub, [...issue.path, ...sub.path], input))
+      for (const sub of branch) {
+        const path = [...issue.path, ...sub.path]
+        if (sub.code === 'unrecognized_keys') for (const key of sub.keys) issues.push({ path: formatPath([...path, key]), message: unknownFieldMessage(path, key, input) })
+        else issues.push(describe(sub, path, input))
+      }
       continue
     }
     issues.push(describe(issue, issue.path, input))
   }
   return issues
+}
+
+/** Fields people reach for that are spelt otherwise here, per part of the file: the right field(s), in words. */
+const FIELD_HINTS: Record<string, Record<string, string>> = {
+  fit: { window: 'the window is from/to', range: 'the window is from/to', start: 'the window is from/to', end: 'the window is from/to', xmin: 'the window is from/to', xmax: 'the window is from/to', exponent: 'the Tauc exponent is r', model_cell: 'the model formula is model' },
+  sweep: { start: 'the range is from/to', end: 'the range is from/to', range: 'the range is from/to', n: 'the number of points is steps', points: 'the number of points is steps', output: 'the swept cells are outputs' },
+  parameter: { default: 'the value is value', val: 'the value is value', minimum: 'the bounds are min/max', maximum: 'the bounds are min/max' },
+  formula: { formula: 'the formula text is source', expression: 'the formula text is source', expr: 'the formula text is source' },
+  note: { content: 'the note text is text', body: 'the note text is text', markdown: 'the note text is text' },
+  figure: { series: 'the curves are traces', lines: 'the curves are traces', xaxis: 'the axes are x and y', yaxis: 'the axes are x and y' },
+}
+
+/** What a part of the file is called, and the fields it has, for the object at `path` of the parsed `input`. */
+function partAt(path: readonly PropertyKey[], input: unknown): { noun: string; hintsFor: string; fields: string[] } | null {
+  const fieldsOf = (schema: { shape: Record<string, unknown> }) => Object.keys(schema.shape)
+  if (path.length === 2 && path[0] === 'cells' && typeof path[1] === 'number') {
+    const kind = (valueAt(input, path) as { kind?: unknown } | undefined)?.kind
+    const schema = typeof kind === 'string' ? CELL_SCHEMAS.get(kind) : undefined
+    return schema ? { noun: `${article(kind as string)} cell`, hintsFor: kind as string, fields: fieldsOf(schema) } : null
+  }
+  const last = path[path.length - 1]
+  const parent = path[path.length - 2]
+  if (parent === 'traces') return { noun: 'a figure trace', hintsFor: 'trace', fields: fieldsOf(figureTrace) }
+  if (parent === 'parameters') return { noun: 'a fit parameter', hintsFor: 'fitParameter', fields: fieldsOf(fitParameter) }
+  if (parent === 'columns') return { noun: 'a spectrum column', hintsFor: 'column', fields: fieldsOf(datasetColumn) }
+  if (last === 'x' || last === 'y') return { noun: 'a figure axis', hintsFor: 'axis', fields: [...fieldsOf(figureAxis), ...(last === 'x' ? ['visibleBand'] : [])] }
+  return null
+}
+
+/** Edit distance of two short words (case-insensitive), capped: enough to spot a slip of the keyboard. */
+function distance(a: string, b: string): number {
+  a = a.toLowerCase()
+  b = b.toLowerCase()
+  let prev = Array.from({ length: b.length + 1 }, (_, j) => j)
+  for (let i = 1; i <= a.length; i++) {
+    const row = [i]
+    for (let j = 1; j <= b.length; j++) row[j] = Math.min(prev[j] + 1, row[j - 1] + 1, prev[j - 1] + (a[i - 1] === b[j - 1] ? 0 : 1))
+    prev = row
+  }
+  return prev[b.length]
+}
+
+/**
+ * "not a field of a fit cell; the window is from/to": an unknown field, named with the right one where one is close
+ * (a known confusion, or a field a letter or two away).
+ */
+export function unknownFieldMessage(path: readonly PropertyKey[], key: string, input: unknown): string {
+  const part = partAt(path, input)
+  if (!part) return 'not a field here'
+  const hints = Object.hasOwn(FIELD_HINTS, part.hintsFor) ? FIELD_HINTS[part.hintsFor] : {}
+  if (Object.hasOwn(hints, key)) return `not a field of ${part.noun}; ${hints[key]}`
+  const lower = key.toLowerCase()
+  const close = part.fields
+    .map((f) => ({ f, d: f.toLowerCase() === lower || f.toLowerCase() === lower.replace(/s$/, '') ? 0 : distance(key, f) }))
+    .filter((x) => x.d <= Math.min(2, Math.floor(x.f.length / 3)))
+    .sort((a, b) => a.d - b.d)[0]
+  if (close) return `not a field of ${part.noun}; did you mean ${close.f}?`
+  return `not a field of ${part.noun} (its fields: ${part.fields.join(', ')})`
 }
 
 /** zod's own wording starts like this; a message written in our schemas is kept as it is. */
@@ -283,7 +465,6 @@ function describe(issue: z.core.$ZodIssue, path: readonly PropertyKey[], input?:
       input !== undefined && valueAt(input, path) === undefined
         ? `required; one of ${CELL_KINDS.join(', ')}`
         : `unknown cell kind; expected one of ${CELL_KINDS.join(', ')}`
-  else if (issue.code === 'unrecognized_keys') message = `unknown field(s): ${issue.keys.join(', ')}`
   else if (ZOD_DEFAULT.test(issue.message)) message = plainWording(issue) ?? issue.message
   return { path: formatPath(path), message }
 }

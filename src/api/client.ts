@@ -14,6 +14,9 @@ export class ApiError extends Error {
   /** One entry per problem on a 400 (`path` like `email` or `cells[3].source`). */
   readonly issues: ApiIssue[]
 
+  /** An option of the request that would get past the problem (an upload's `averageDuplicates`, `dropEmptyRows`). */
+  offer?: string
+
   constructor(status: number, message: string, issues: ApiIssue[] = []) {
     super(message)
     this.name = 'ApiError'
@@ -84,7 +87,12 @@ async function request<T>(method: string, path: string, body: unknown, schema: Z
   if (!res.ok) {
     if (res.status === 401 && !options.quiet401) unauthorizedHandler?.()
     const parsed = errorReply.safeParse(json)
-    if (parsed.success) throw new ApiError(res.status, parsed.data.error, parsed.data.issues ?? [])
+    if (parsed.success) {
+      const error = new ApiError(res.status, parsed.data.error, parsed.data.issues ?? [])
+      const offer = (json as { offer?: unknown }).offer
+      if (typeof offer === 'string') error.offer = offer
+      throw error
+    }
     throw new ApiError(res.status, fallbackMessage(res.status))
   }
 

@@ -6,7 +6,7 @@
  */
 import { onScopeDispose, ref } from 'vue'
 import * as Y from 'yjs'
-import { mapToCell, type CellMap } from '../../shared/doc/sheetDoc'
+import { entryCells, mapToCell, type CellMap } from '../../shared/doc/sheetDoc'
 import type { SheetCell } from '../../shared/schema/sheet'
 import type { CellResult } from '../../shared/schema/result'
 import type { FromWorker, ToWorker } from '@/workers/protocol'
@@ -194,24 +194,30 @@ export function useEvaluator(cells: Y.Array<CellMap>, store: SheetStore, title: 
   function refresh(changedIds: Set<string>, structural: boolean): void {
     const before = order.map((id) => plain.get(id)).filter((c): c is SheetCell => !!c)
     if (structural) {
-      const maps = cells.toArray()
+      // entries the app cannot read as cells become placeholders the page shows as invalid (entryCells)
+      const reread = (map: CellMap, id: string) => {
+        const known = plain.get(id)
+        if (known && !changedIds.has(id)) return known
+        changedIds.add(id)
+        return mapToCell(map)
+      }
+      const entries = entryCells(cells as unknown as Y.Array<unknown>, reread) as SheetCell[]
       const nextOrder: string[] = []
-      const seen = new Set<string>()
-      for (const map of maps) {
-        const id = String(map.get('id') ?? '')
-        if (!id || seen.has(id)) continue
-        seen.add(id)
-        nextOrder.push(id)
-        if (!plain.has(id) || changedIds.has(id)) {
-          plain.set(id, mapToCell(map))
-          changedIds.add(id)
+      for (const cell of entries) {
+        nextOrder.push(cell.id)
+        // a cell read again, or a placeholder (made anew each time: its id is a position, whatever stands there now)
+        if (plain.get(cell.id) !== cell) {
+          plain.set(cell.id, cell)
+          changedIds.add(cell.id)
         }
       }
+      const seen = new Set(nextOrder)
       for (const id of [...plain.keys()]) if (!seen.has(id)) plain.delete(id)
       if (nextOrder.join('\n') !== order.join('\n')) orderChanged = true
       order = nextOrder
     } else {
-      for (const map of cells.toArray()) {
+      for (const map of cells.toArray() as unknown[]) {
+        if (!(map instanceof Y.Map)) continue
         const id = String(map.get('id') ?? '')
         if (changedIds.has(id)) plain.set(id, mapToCell(map))
       }

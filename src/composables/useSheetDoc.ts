@@ -19,7 +19,7 @@ import * as awarenessProtocol from 'y-protocols/awareness'
 import * as syncProtocol from 'y-protocols/sync'
 import * as decoding from 'lib0/decoding'
 import * as encoding from 'lib0/encoding'
-import { cellToMap, cellsOf, mapToCell, metaOf, newCellId, type CellMap } from '../../shared/doc/sheetDoc'
+import { cellToMap, cellsOf, entryIndex, mapToCell, metaOf, newCellId, type CellMap } from '../../shared/doc/sheetDoc'
 import type { Cell, SheetCell } from '../../shared/schema/sheet'
 import { keepPageForOffline, openLocalCopy } from '@/lib/localCopy'
 import { NO_PENDING_EDITS, noteChange, noteSent, restoredPending, type PendingEdits } from '@/lib/localCopyPending'
@@ -96,6 +96,8 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
   const synced = ref(false)
   /** Set when the server closed the connection for good (access revoked, sheet deleted): a plain sentence. */
   const closedReason = ref('')
+  /** The server closed the connection because this person may no longer see the sheet (removed, or the sheet is gone). */
+  const accessLost = ref(false)
   /** Set when the server refused an edit (the role was changed to a reader while the page was open). */
   const denied = ref('')
   const canUndo = ref(false)
@@ -136,6 +138,7 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
   p.on('closed', ({ code, reason }) => {
     connection.value = 'offline'
     if (code === 4403 || code === 4404) {
+      accessLost.value = true
       // the sheet is gone or no longer ours to see: its copy must not stay on this device
       void localCopy?.clear()
       keptOnDevice.value = false
@@ -256,13 +259,15 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     return true
   }
 
+  /** Where a cell (or a placeholder for an entry that is not one, `entry-<index>`) stands in the list. */
   function indexOf(id: string): number {
-    const arr = cells.toArray()
-    return arr.findIndex((m) => m.get('id') === id)
+    return entryIndex(cells as unknown as Y.Array<unknown>, id)
   }
 
   function mapOf(id: string): CellMap | undefined {
-    return cells.toArray().find((m) => m.get('id') === id)
+    const i = indexOf(id)
+    const entry: unknown = i < 0 ? undefined : cells.get(i)
+    return entry instanceof Y.Map ? (entry as CellMap) : undefined
   }
 
   /** Writes plain fields of a cell; `undefined` removes a field. Text fields go through setText. */
@@ -289,6 +294,25 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     return ok ? id : null
   }
 
+  /**
+   * Inserts several new cells at `index` (end when omitted) as one undo step (e.g. the cells of an α extraction);
+   * returns their ids in order.
+   */
+  function insertCells(next: Cell[], index = cells.length): string[] | null {
+    const ids = next.map(() => newCellId())
+    const ok = transactStep(() => cells.insert(Math.max(0, Math.min(index, cells.length)), next.map((c, i) => cellToMap({ ...c, id: ids[i] }, ids[i]))))
+    return ok ? ids : null
+  }
+
+  /** Writes plain fields of a cell as an undo step of its own (a fit window set on the figure, a value taken over). */
+  function setFieldsStep(id: string, fields: Record<string, unknown>): boolean {
+    if (readonly) return false
+    undoManager.stopCapturing()
+    const ok = setFields(id, fields)
+    undoManager.stopCapturing()
+    return ok
+  }
+
   function deleteCell(id: string): boolean {
     const i = indexOf(id)
     if (i < 0) return false
@@ -301,9 +325,10 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     if (from < 0) return false
     const target = Math.max(0, Math.min(to, cells.length - 1))
     if (target === from) return false
-    const map = cells.get(from)
+    const map: unknown = cells.get(from)
+    if (!(map instanceof Y.Map)) return false
     return transactStep(() => {
-      const copy = copyMap(map, id)
+      const copy = copyMap(map as CellMap, id)
       cells.delete(from, 1)
       cells.insert(target, [copy])
     })
@@ -314,7 +339,9 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     const i = indexOf(id)
     if (i < 0) return null
     const newId = newCellId()
-    const copy = copyMap(cells.get(i), newId)
+    const original: unknown = cells.get(i)
+    if (!(original instanceof Y.Map)) return null
+    const copy = copyMap(original as CellMap, newId)
     if (name !== undefined) copy.set('name', name)
     const ok = transactStep(() => cells.insert(i + 1, [copy]))
     return ok ? newId : null
@@ -364,6 +391,7 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     connection,
     synced,
     closedReason,
+    accessLost,
     denied,
     canUndo,
     canRedo,
@@ -372,6 +400,8 @@ export function useSheetDoc(sheetId: string, options: SheetDocOptions) {
     indexOf,
     setFields,
     insertCell,
+    insertCells,
+    setFieldsStep,
     deleteCell,
     moveCell,
     duplicateCell,

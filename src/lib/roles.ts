@@ -30,3 +30,13 @@ export function canManageMembers(role: LabRole | null | undefined): boolean {
 export function canDeleteSheet(role: LabRole | null | undefined, createdBy: string, userId: string | undefined): boolean {
   return role === 'owner' || (role === 'editor' && !!userId && createdBy === userId)
 }
+
+/** Owners, editors and reviewers comment on cells; viewers read the threads. */
+export function canComment(role: LabRole | null | undefined): boolean {
+  return role === 'owner' || role === 'editor' || role === 'reviewer'
+}
+
+/** Reviewers and owners may be asked for a review and decide it. */
+export function canReview(role: LabRole | null | undefined): boolean {
+  return role === 'owner' || role === 'reviewer'
+}

@@ -10,6 +10,7 @@ import type { CellResult } from '../../shared/schema/result'
 import type { FromWorker, ToWorker } from './protocol'
 import { EngineMirror } from './mirror'
 import { packResults } from './pack'
+import { DatasetFiller, fetchDatasetColumns } from './datasets'
 
 const scope = self as unknown as DedicatedWorkerGlobalScope
 
@@ -33,10 +34,20 @@ function remember(results: readonly CellResult[]): void {
   for (const r of results) if (r.id) posted.set(r.id, r)
 }
 
+/** A spectrum waiting for its stored dataset says so, instead of the engine's "not loaded". */
+function withDatasetState(results: CellResult[]): CellResult[] {
+  return results.map((r) => {
+    if (r.kind !== 'spectrum' || r.status !== 'error' || !r.id) return r
+    const datasetId = filler.datasetOf(r.id)
+    const message = datasetId ? filler.pendingMessage(datasetId) : undefined
+    return message ? { ...r, error: message } : r
+  })
+}
+
 function post(message: FromWorker): void {
   if (message.type === 'results' || message.type === 'partial') {
     // long arrays travel as transferred buffers (see pack.ts)
-    const { results, transfer } = packResults(message.results)
+    const { results, transfer } = packResults(withDatasetState(message.results))
     scope.postMessage({ ...message, results }, transfer)
     return
   }
@@ -73,15 +84,22 @@ function onProgress(cellId: string, fraction: number): void {
 }
 
 let engine = new SheetEngine({ onProgress })
-let mirror = new EngineMirror(engine)
+/** Spectrum cells of the document name stored datasets: their values are fetched by id and filled in. */
+const filler = new DatasetFiller(engine, fetchDatasetColumns, (recomputed) => {
+  const results = recomputed.map((id) => engine.resultOf(id)).filter((r): r is CellResult => r !== undefined)
+  remember(results)
+  post({ type: 'partial', seq: currentSeq, results })
+})
+let mirror = new EngineMirror(filler)
 
 function load(title: string, cells: SheetCell[]): CellResult[] {
   engine = new SheetEngine({ onProgress })
-  mirror = new EngineMirror(engine)
+  filler.rebind(engine)
+  mirror = new EngineMirror(filler)
   mirror.reset(cells)
   posted.clear()
   knownIds = cells.map((c) => c.id)
-  return engine.load(cells, title).cells
+  return engine.load(cells.map((c) => filler.fill(c)), title).cells
 }
 
 scope.onmessage = (event: MessageEvent<ToWorker>) => {

@@ -53,3 +53,39 @@ describe('collab: presence in a crowded sheet', () => {
     expect(t.server.collab.stats().counters.malformedFrames).toBe(0)
   })
 })
+
+describe('collab: presence fields other clients put in style attributes and labels', () => {
+  const t = useCollab()
+
+  const bad: [string, Record<string, unknown>][] = [
+    ['a colour that is not a hex colour', { user: { color: 'red; background: url(https://example.invalid/x)' }, cell: null }],
+    ['a light colour that is not a hex colour', { user: { color: '#123456', colorLight: 'expression(alert(1))' }, cell: null }],
+    ['a name with markup', { user: { name: '<img src=x onerror=alert(1)>' }, cell: null }],
+    ['a name far too long', { user: { name: 'n'.repeat(200) }, cell: null }],
+    ['a user that is a string', { user: 'me', cell: null }],
+    ['a cell that is an object', { user: { color: '#123456' }, cell: { id: 'cx' } }],
+  ]
+
+  it.each(bad)('drops presence with %s (counted, never relayed); the connection stays', async (_what, state) => {
+    const watcher = t.connect('editor2')
+    await watcher.synced()
+    const editor = await t.raw('editor')
+    editor.ws.send(awarenessFrame([{ clientId: 4242, clock: 1, state }]))
+    // a valid presence from a second connection, sent after: once it has arrived, the first would have too
+    const other = await t.raw('owner')
+    other.ws.send(awarenessFrame([{ clientId: 4343, clock: 1, state: { user: { color: '#1f6feb', colorLight: '#1f6feb33' }, cell: 'cx' } }]))
+    await until(() => watcher.provider.awareness.getStates().get(4343)?.cell === 'cx', 'the valid presence at the watcher')
+    expect(watcher.provider.awareness.getStates().has(4242)).toBe(false)
+    expect(t.server.collab.stats().counters.awarenessRefused).toBe(1)
+    expect(editor.isOpen()).toBe(true)
+  })
+
+  it('relays a valid presence with the signed-in name in place of the claimed one', async () => {
+    const watcher = t.connect('editor2')
+    await watcher.synced()
+    const editor = await t.raw('editor')
+    editor.ws.send(awarenessFrame([{ clientId: 4444, clock: 1, state: { user: { name: 'Somebody Else', color: '#abc' }, cell: 'cEg' } }]))
+    await until(() => watcher.provider.awareness.getStates().has(4444), 'the presence at the watcher')
+    expect(watcher.provider.awareness.getStates().get(4444)).toMatchObject({ user: { name: 'Tomás Reyes', color: '#abc' }, cell: 'cEg' })
+  })
+})

@@ -5,7 +5,7 @@
 import { describe, expect, it, vi } from 'vitest'
 import * as Y from 'yjs'
 import * as encoding from 'lib0/encoding'
-import { cellsOf } from '../../shared/doc/sheetDoc'
+import { cellToMap, cellsOf } from '../../shared/doc/sheetDoc'
 import { loadDocument } from '../../server/services/documents'
 import { CLOSE, MAX_PAYLOAD } from '../../server/collab/index'
 import { MAX_AWARENESS_ENTRIES, MAX_AWARENESS_STATE_CHARS } from '../../server/collab/protocol'
@@ -194,12 +194,12 @@ describe('collab: readers on the wire', () => {
   })
 })
 
-/** A document update that, framed as a sync update message, is exactly `size` bytes long. */
+/** A document update (a note cell of one long text) that, framed as a sync update message, is exactly `size` bytes. */
 function updateFramedAs(size: number): Uint8Array {
-  let pad = size - 64
+  let pad = size - 128
   for (let i = 0; i < 8; i++) {
     const doc = new Y.Doc()
-    doc.getMap('meta').set('pad', 'p'.repeat(pad))
+    cellsOf(doc).push([cellToMap({ kind: 'note', text: 'p'.repeat(pad) }, 'pad')])
     const frame = syncFrame(2, Y.encodeStateAsUpdate(doc))
     if (frame.length === size) return frame
     pad += size - frame.length
@@ -217,8 +217,9 @@ describe('collab: the size limit', () => {
     const frame = updateFramedAs(MAX_PAYLOAD)
     expect(frame.length).toBe(MAX_PAYLOAD)
     editor.ws.send(frame)
-    await until(() => typeof watcher.doc.getMap('meta').get('pad') === 'string', 'the padded update at the watcher', 15_000)
-    expect((watcher.doc.getMap('meta').get('pad') as string).length).toBeGreaterThan(MAX_PAYLOAD - 64)
+    const padText = () => cellsOf(watcher.doc).toArray().find((m) => m.get('id') === 'pad')?.get('text')
+    await until(() => padText() instanceof Y.Text, 'the padded update at the watcher', 15_000)
+    expect((padText() as Y.Text).length).toBeGreaterThan(MAX_PAYLOAD - 128)
     expect(storedRows(t.lab)).toBe(1)
     expect(editor.isOpen()).toBe(true)
   })
@@ -338,6 +339,7 @@ describe('collab: deeply nested values in a writer’s update', () => {
     const cell = new Y.Map<unknown>()
     cell.set('id', 'cs')
     cell.set('kind', 'spectrum')
+    cell.set('name', 'measured')
     cell.set('columns', { wavelength: { unit: 'nm', values: Array.from({ length: 5000 }, (_, i) => 300 + i / 10) } })
     cellsOf(local).push([cell])
     const editor = await t.raw('editor')

@@ -48,14 +48,14 @@ describe('lab dialogs', () => {
 })
 
 describe('cards', () => {
-  it('shows the Tauc slope in J·m⁻², and a blocked cell names its failed input, asking only an editor to fix it', async () => {
+  it('shows the Tauc slope in eV/cm² (the units of its x and y cells), and a blocked cell names its failed input, asking only an editor to fix it', async () => {
     const editor = await e2e.newBrowser({ label: 'editor' })
     await signIn(editor.page, e2e.server.url, DEMO.editor)
     const sheetId = await createSheet(editor.page, 'Cards check', EDGE_SHEET)
     await openLive(editor.page, sheetId)
 
     const fit = card(editor.page, 'edge')
-    await expect.poll(() => fit.locator('.el-table').textContent(), { timeout: 20_000 }).toContain('J·m⁻²')
+    await expect.poll(() => fit.locator('.el-table').textContent(), { timeout: 20_000 }).toContain('eV/cm²')
     expect(await fit.locator('.el-table').textContent()).not.toMatch(/\bSI\b/)
 
     const blocked = card(editor.page, 'twice').locator('.blocked')
@@ -89,7 +89,7 @@ describe('cards', () => {
     await openLive(editor.page, sheetId)
     const fit = card(editor.page, 'edge')
     // every result is in (nothing above moves any more) before the field's place on its card is measured
-    await expect.poll(() => fit.locator('.el-table').textContent(), { timeout: 20_000 }).toContain('J·m⁻²')
+    await expect.poll(() => fit.locator('.el-table').textContent(), { timeout: 20_000 }).toContain('eV/cm²')
     await expect.poll(() => card(editor.page, 'twice').locator('.blocked').count(), { timeout: 20_000 }).toBe(1)
     await fit.scrollIntoViewIfNeeded()
     const offset = () => fit.evaluate((el) => el.querySelector('input[aria-label="x cell"]')!.getBoundingClientRect().top - el.getBoundingClientRect().top)
@@ -120,21 +120,22 @@ describe('cards', () => {
     const sheetId = await createSheet(phone.page, 'Cards on a phone', EDGE_SHEET)
     await openLive(phone.page, sheetId)
     const list = card(phone.page, 'edge').locator('dl[aria-label="Fit results"]')
-    await expect.poll(() => list.textContent(), { timeout: 20_000 }).toContain('J·m⁻²')
+    await expect.poll(() => list.textContent(), { timeout: 20_000 }).toContain('eV/cm²')
     expect(await list.textContent()).toContain('band gap')
     expect(await card(phone.page, 'edge').locator('.el-table').count()).toBe(0)
     const overflow = await card(phone.page, 'edge').evaluate((el) => el.scrollWidth - el.clientWidth)
     expect(overflow).toBeLessThanOrEqual(1)
   })
 
-  it('adds a parameter from the keyboard: its name, Enter, then the number typed replaces the starting value', async () => {
+  it('adds a parameter from the keyboard through the command palette: its name, Enter, then the number typed replaces the starting value', async () => {
     const editor = await e2e.newBrowser({ label: 'editor' })
     await signIn(editor.page, e2e.server.url, DEMO.editor)
     const sheetId = await createSheet(editor.page, 'Keyboard', [])
     await openLive(editor.page, sheetId)
     const page = editor.page
-    await page.getByRole('button', { name: 'Add the first cell' }).click()
-    await page.keyboard.press('p')
+    await page.keyboard.press('Control+KeyK')
+    await page.getByLabel('Command', { exact: true }).fill('param')
+    await page.keyboard.press('Enter')
     await expect.poll(() => page.evaluate(() => document.activeElement?.getAttribute('aria-label'))).toBe('Cell name')
     await page.keyboard.type('T_cell')
     await page.keyboard.press('Enter')

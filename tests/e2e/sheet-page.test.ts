@@ -150,7 +150,7 @@ describe('the sheet page', () => {
     const order = () => page.locator('.pn-cell').evaluateAll((els) => els.map((e) => (e as HTMLElement).dataset.cellName ?? '').join(','))
     await expect.poll(order).toBe('a,c')
     await card(page, 'c').focus()
-    await page.keyboard.press('d') // duplicate: c_2 below c, focused
+    await page.keyboard.press('Control+KeyD') // duplicate: c_2 below c, focused
     await expect.poll(order).toBe('a,c,c_2')
     await page.keyboard.press('Delete') // delete the copy at once
     await expect.poll(order).toBe('a,c')

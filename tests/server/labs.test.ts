@@ -150,12 +150,31 @@ describe('invitations', () => {
     expect((await call(t, guest.cookie).get(`/api/labs/${lab.labId}`)).body.role).toBe('viewer')
   })
 
+  it('accepting with an account of another address answers 403 asking to sign in with the invited one; no role is given', async () => {
+    const t = makeTestApp()
+    const lab = await seedLab(t)
+    await call(t, lab.users.owner.cookie).post(`/api/labs/${lab.labId}/invitations`, { email: 'Invited@Elsewhere.example', role: 'editor' })
+    const token = t.mailer.tokenFor('invited@elsewhere.example', '/invitations/')
+    const stranger = lab.users.outsider
+    const res = await call(t, stranger.cookie).post(`/api/invitations/${token}/accept`, {})
+    expect(res.status).toBe(403)
+    expect(res.body.error).toBe(
+      `This invitation was sent to invited@elsewhere.example, and you are signed in as ${stranger.email}. Sign out, then sign in with invited@elsewhere.example (or create its account) to accept it.`,
+    )
+    expect((await call(t, stranger.cookie).get(`/api/labs/${lab.labId}`)).status).toBe(404)
+    // the link still works for the invited address
+    const invited = await createTestUser(t, { email: 'invited@elsewhere.example' })
+    expect((await call(t, invited.cookie).post(`/api/invitations/${token}/accept`, {})).status).toBe(200)
+    expect((await call(t, invited.cookie).get(`/api/labs/${lab.labId}`)).body.role).toBe('editor')
+  })
+
   it('a link works once: the second accept answers 410', async () => {
     const t = makeTestApp()
     const lab = await seedLab(t)
+    const invited = await createTestUser(t, { email: 'once@elsewhere.example' })
     await call(t, lab.users.owner.cookie).post(`/api/labs/${lab.labId}/invitations`, { email: 'once@elsewhere.example', role: 'viewer' })
     const token = t.mailer.tokenFor('once@elsewhere.example', '/invitations/')
-    expect((await call(t, lab.users.outsider.cookie).post(`/api/invitations/${token}/accept`, {})).status).toBe(200)
+    expect((await call(t, invited.cookie).post(`/api/invitations/${token}/accept`, {})).status).toBe(200)
     const other = await createTestUser(t)
     const again = await call(t, other.cookie).post(`/api/invitations/${token}/accept`, {})
     expect(again.status).toBe(410)

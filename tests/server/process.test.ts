@@ -75,6 +75,12 @@ describe('server/index.ts as a process', () => {
 
     const health = await fetch(`${s.url}/api/health`)
     expect(await health.json()).toMatchObject({ ok: true })
+    // the demo guest link is printed and opens without a session
+    const guestUrl = /Demo guest link \(a snapshot of Film H-17, no sign-in\): (\S+)/.exec(s.output())?.[1]
+    expect(guestUrl).toMatch(new RegExp(`^${s.url}/guest/[A-Za-z0-9_-]{43}$`))
+    const guest = await fetch(`${s.url}/api/guest/${guestUrl!.split('/').pop()}`)
+    expect(guest.status).toBe(200)
+    expect(((await guest.json()) as { authorName: string }).authorName).toBe('Tomás Reyes')
     const cookie = await signInDemoOwner(s.url)
     const labs = (await (await fetch(`${s.url}/api/labs`, { headers: { Cookie: cookie } })).json()) as { labs: { id: string; name: string; role: string; sheetCount: number }[] }
     expect(labs.labs).toEqual([expect.objectContaining({ name: 'Halvorsen Thin-Film Lab', role: 'owner', sheetCount: exampleCount })])

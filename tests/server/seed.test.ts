@@ -80,3 +80,35 @@ describe('serving the built client', () => {
     }
   })
 })
+
+describe('seedDemo with the server secret', () => {
+  it('seeds two snapshots of the band-edge sheet, reviews in each state, a comment thread and a live guest link', async () => {
+    const { seedDemo: seed } = await import('../../server/db/seed')
+    const { demoGuestUrl } = await import('../../server/db/seedSnapshots')
+    const t = makeTestApp()
+    const result = await seed({ db: t.db, config: { ...t.config, argon2: TEST_ARGON2 } }, { secret: t.secret })
+    expect(result.review).toBeDefined()
+    const owner = await signIn(t, DEMO_ACCOUNTS[0].email, DEMO_ACCOUNTS[0].password)
+    const bandEdge = result.sheets.find((s) => s.title.includes('H-17'))!
+    const timeline = (await call(t, owner).get(`/api/sheets/${bandEdge.id}/snapshots`)).body.snapshots
+    expect(timeline.map((s: { reviewState: string; authorName: string }) => [s.reviewState, s.authorName])).toEqual([
+      ['approved', 'Tomás Reyes'],
+      ['changes-requested', 'Tomás Reyes'],
+    ])
+    const reviewer = await signIn(t, DEMO_ACCOUNTS[2].email, DEMO_ACCOUNTS[2].password)
+    const queue = (await call(t, reviewer).get(`/api/labs/${result.labId}/reviews`)).body
+    expect(queue.waiting.map((r: { state: string }) => r.state)).toEqual(['open'])
+    expect(queue.decided.map((r: { state: string }) => r.state).sort()).toEqual(['approved', 'changes-requested'])
+    const thread = (await call(t, owner).get(`/api/sheets/${bandEdge.id}/comments`)).body.comments
+    expect(thread).toHaveLength(2)
+    expect(thread[1].parentId).toBe(thread[0].id)
+    const url = demoGuestUrl(t.db, t.secret, t.config)
+    expect(url).toBe(result.review!.guestUrl)
+    const shown = await call(t).get(`/api/guest/${url!.split('/').pop()}`)
+    expect(shown.status).toBe(200)
+    expect(shown.body.hash).toBe(timeline[0].hash)
+    // the stored results of the seeded snapshots are those of its sheet file, as everywhere
+    const detail = (await call(t, owner).get(`/api/snapshots/${timeline[1].id}`)).body
+    expect(detail.file.cells.find((c: { id: string }) => c.id === 'h17-tauc').from).toBe(1.48)
+  })
+})

@@ -97,6 +97,7 @@ export function makeTestApp(options: { config?: Partial<AppConfig>; secret?: Uin
   const hooks: AppHooks = {
     membershipChanged: (labId, userId) => void hookCalls.push({ hook: 'membershipChanged', args: [labId, userId] }),
     sheetDeleted: (sheetId) => void hookCalls.push({ hook: 'sheetDeleted', args: [sheetId] }),
+    sessionsEnded: (userId) => void hookCalls.push({ hook: 'sessionsEnded', args: [userId] }),
   }
   const deps: AppDeps = { db: handle.db, secret, mailer, config, hooks }
   return { app: createApp(deps), db: handle.db, handle, secret, mailer, config, deps, hookCalls, close: () => handle.close() }

@@ -5,7 +5,7 @@
  */
 import type { Num } from '../../optics/num'
 import { INPUT_DIGITS, formatNumber } from '../describe'
-import { CellError } from '../errors'
+import { CellError, OutsideDataError } from '../errors'
 
 function fail(fn: string, message: string): never {
   throw new CellError(`${fn}: ${message}`, 'value')
@@ -232,8 +232,8 @@ export function clip(x: Num, lo: Num, hi: Num): Num {
 
 /**
  * `interpolate(xq, x, y)`: linear interpolation of the samples (x, y) at xq. x must be monotonic, increasing or
- * decreasing (photon energies of a wavelength grid decrease); outside the range of x the result is NaN (no
- * extrapolation). Units: xq and x alike; result in the unit of y. Range: x strictly monotonic, at least 2 points,
+ * decreasing (photon energies of a wavelength grid decrease). No extrapolation: a single point outside the range of
+ * x, or an array of points all outside it, is an error giving that range; an array partly outside is NaN there. Units: xq and x alike; result in the unit of y. Range: x strictly monotonic, at least 2 points,
  * as long as y. Source: piecewise-linear interpolation (e.g. Press et al., Numerical Recipes, 3rd ed., §3.1).
  * Example: interpolate(1.5, [1, 2], [10, 20]) → 15.
  */
@@ -248,10 +248,15 @@ export function interpolate(xq: Num, x: Num, y: Num): Num {
     const step = xs[i] - xs[i - 1]
     if (!(increasing ? step > 0 : step < 0)) fail('interpolate', `x must be strictly ${increasing ? 'increasing' : 'decreasing'} (it is not at index ${i})`)
   }
+  const lo = increasing ? xs[0] : xs[n - 1]
+  const hi = increasing ? xs[n - 1] : xs[0]
+  const inside = (q: number): boolean => q >= lo && q <= hi
+  if (typeof xq === 'number' ? !inside(xq) : xq.length > 0 && !xq.some(inside)) {
+    const q = typeof xq === 'number' ? xq : xq[0]
+    throw new OutsideDataError(q, lo, hi)
+  }
   const one = (q: number): number => {
-    const lo = increasing ? xs[0] : xs[n - 1]
-    const hi = increasing ? xs[n - 1] : xs[0]
-    if (!(q >= lo && q <= hi)) return NaN
+    if (!inside(q)) return NaN
     // binary search for the interval holding q
     let a = 0
     let b = n - 1

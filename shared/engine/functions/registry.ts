@@ -49,7 +49,7 @@ const ARRAYS: Builtin[] = [
   entry('where', ['cond', 'a', 'b'], ['any', 'x', 'x'], 'x', 'a where cond is true, b elsewhere, element-wise',
     ([c, a, b]) => A.where(c, a, b)),
   entry('clip', ['x', 'lo', 'hi'], ['x', 'x', 'x'], 'x', 'x limited to the range lo…hi', ([x, lo, hi]) => A.clip(x, lo, hi)),
-  entry('interpolate', ['xq', 'x', 'y'], ['x', 'x', 'y'], 'y', 'linear interpolation of the samples (x, y) at xq (NaN outside)',
+  entry('interpolate', ['xq', 'x', 'y'], ['x', 'x', 'y'], 'y', 'linear interpolation of the samples (x, y) at xq (no extrapolation: outside the data is an error, or NaN for the points of an array outside it)',
     ([q, x, y]) => A.interpolate(q, x, y)),
   entry('integrate', ['y', 'x'], ['any', 'any'], (d) => (d[0] && d[1] ? dimMul(d[0], d[1]) : null),
     'trapezoid integral of y over x', ([y, x]) => A.integrate(y, x)),

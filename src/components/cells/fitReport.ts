@@ -7,6 +7,7 @@ import type { FitCell, SheetCell } from '../../../shared/schema/sheet'
 import type { CellResult } from '../../../shared/schema/result'
 import { converter, isEnergyUnit } from '../../../shared/plot/units'
 import { formatNumber, formatWithError } from '../../../shared/plot/format'
+import { prettyUnit } from './resultFormat'
 
 export interface FitRow {
   quantity: string
@@ -66,13 +67,14 @@ export function taucSlopeUnit(r: number): string {
 
 const MEANING: Record<string, string> = {
   Eg: 'band gap (intercept of the Tauc line)',
-  B: 'slope of the Tauc line, with α in 1/m and E in J',
+  B: 'slope of the Tauc line',
   Eu: 'Urbach energy (width of the exponential tail)',
   alpha0: 'α of the tail at E0',
   E0: 'reference energy of α₀ (top of the window)',
   r2: 'coefficient of determination',
   n: 'points in the window',
   chi2: 'sum of squared residuals',
+  chi2Weighted: 'Σ((y − fit)/σ)², weighted by the σ cell',
   reducedChi2: 'χ² per degree of freedom',
   iterations: 'Levenberg–Marquardt steps taken',
 }
@@ -82,8 +84,9 @@ function isRecord(v: unknown): v is Record<string, unknown> {
 }
 
 /**
- * Rows for a fit result. Energies (Eg, Eu, E0 and errors) are in the fit's unit; alpha0 is SI (1/m) and shown in 1/cm;
- * for model fits, `<name>` with `<name>_err`, or `params`/`errors` records, become one row per free parameter.
+ * Rows for a fit result, each in the unit the result states for it (`units`); results of an older engine without
+ * `units` fall back to: energies in the fit's unit, alpha0 SI (1/m, shown in 1/cm), B SI. For model fits, `<name>`
+ * with `<name>_err`, or `params`/`errors` records, become one row per free parameter.
  */
 export function fitRows(cell: FitCell, result: CellResult | undefined, unitOf: (name: string) => string | undefined): FitRow[] {
   const value = result?.status === 'ok' ? result.value : undefined
@@ -93,6 +96,9 @@ export function fitRows(cell: FitCell, result: CellResult | undefined, unitOf: (
   const used = new Set<string>()
   const numberAt = (rec: Record<string, unknown>, key: string) => (typeof rec[key] === 'number' ? (rec[key] as number) : undefined)
 
+  const stated = result?.units
+  // "1" marks a plain number in the result; the table leaves its unit empty
+  const statedUnit = (key: string): string | undefined => (stated && key in stated ? (stated[key] === '1' ? '' : prettyUnit(stated[key])) : undefined)
   const push = (key: string, v: number, err: number | undefined, unit: string, meaning?: string) => {
     rows.push({ quantity: key, meaning: meaning ?? MEANING[key] ?? '', value: valueWithError(v, err), unit })
   }
@@ -119,19 +125,23 @@ export function fitRows(cell: FitCell, result: CellResult | undefined, unitOf: (
     if (cell.method === 'model' && err !== undefined) {
       // a free parameter: shown in its own cell's unit, energies in the fit's unit when the fit sets one
       const own = unitOf(key) ?? ''
-      push(key, v, err, cell.unit && isEnergyUnit(own) ? cell.unit : own, 'fitted parameter')
+      push(key, v, err, statedUnit(key) ?? (cell.unit && isEnergyUnit(own) ? cell.unit : own), 'fitted parameter')
     } else if (key === 'r2') {
       rows.push({ quantity: 'R²', meaning: MEANING.r2, value: v.toFixed(5), unit: '' })
     } else if (key === 'n' || key === 'iterations') {
       rows.push({ quantity: key === 'n' ? 'points' : key, meaning: MEANING[key], value: String(v), unit: '' })
     } else if (key === 'alpha0') {
-      push('α₀', v / 100, err !== undefined ? err / 100 : undefined, '1/cm', MEANING.alpha0)
+      const unit = statedUnit(key)
+      if (unit !== undefined) push('α₀', v, err, unit, MEANING.alpha0)
+      else push('α₀', v / 100, err !== undefined ? err / 100 : undefined, '1/cm', MEANING.alpha0)
     } else if (ENERGY_KEYS.has(key)) {
-      push(key, v, err, fitUnit)
+      push(key, v, err, statedUnit(key) ?? fitUnit)
     } else if (key === 'chi2' || key === 'reducedChi2') {
-      rows.push({ quantity: key === 'chi2' ? 'χ²' : 'reduced χ²', meaning: MEANING[key], value: formatNumber(v), unit: '' })
+      const unit = statedUnit(key) ?? ''
+      const meaning = key === 'chi2' && cell.sigma ? MEANING.chi2Weighted : MEANING[key]
+      rows.push({ quantity: key === 'chi2' ? 'χ²' : 'reduced χ²', meaning, value: formatNumber(v), unit })
     } else {
-      push(key, v, err, key === 'B' && cell.method === 'tauc' ? taucSlopeUnit(cell.r ?? 0.5) : '')
+      push(key, v, err, statedUnit(key) ?? (key === 'B' && cell.method === 'tauc' ? taucSlopeUnit(cell.r ?? 0.5) : ''))
     }
   }
   if (typeof value.converged === 'boolean' && !value.converged) {

@@ -2,24 +2,25 @@
  * New cells as the add menu makes them: a sensible start for each kind with a name not yet used in the sheet.
  * The starting values are plain placeholders a researcher overwrites, chosen so the cell evaluates at once.
  */
-import type { Cell, CellKind, SheetCell } from '../../../shared/schema/sheet'
+import type { Cell, CellKind, FigureTrace, SheetCell } from '../../../shared/schema/sheet'
+import { referencedNames } from './references'
 
 export interface KindInfo {
   kind: CellKind
   label: string
   hint: string
-  /** Single-letter key in the add menu. */
-  key: string
 }
 
-/** Kinds a person can add from the page (spectrum cells come from an upload or an imported file). */
+/** Kinds a person can add from the page (a spectrum opens the import of a measured file). */
 export const ADDABLE_KINDS: KindInfo[] = [
-  { kind: 'parameter', label: 'Parameter', hint: 'a named input with unit and range', key: 'p' },
-  { kind: 'formula', label: 'Formula', hint: 'a named computed quantity', key: 'f' },
-  { kind: 'fit', label: 'Fit', hint: 'Tauc, Urbach or a model fit', key: 't' },
-  { kind: 'sweep', label: 'Sweep', hint: 'one parameter over a range', key: 's' },
-  { kind: 'figure', label: 'Figure', hint: 'a chart of other cells', key: 'g' },
-  { kind: 'note', label: 'Note', hint: 'free text in Markdown', key: 'n' },
+  { kind: 'parameter', label: 'Parameter', hint: 'a named input with unit and range' },
+  { kind: 'formula', label: 'Formula', hint: 'a named computed quantity' },
+  { kind: 'spectrum', label: 'Spectrum', hint: 'measured data from an instrument file' },
+  { kind: 'fit', label: 'Fit', hint: 'Tauc, Urbach or a model fit' },
+  { kind: 'sweep', label: 'Sweep', hint: 'one parameter over a range' },
+  { kind: 'figure', label: 'Figure', hint: 'a chart of other cells' },
+  { kind: 'stack', label: 'Stack', hint: 'layers on a substrate: R, T and each layer\'s absorptance' },
+  { kind: 'note', label: 'Note', hint: 'free text in Markdown' },
 ]
 
 export const KIND_LABELS: Record<CellKind, string> = {
@@ -63,8 +64,55 @@ export function copyName(name: string, cells: readonly SheetCell[]): string {
   }
 }
 
-/** A new cell of `kind`, referring to cells above it where that makes a working start. */
-export function newCell(kind: CellKind, cells: readonly SheetCell[], above: readonly SheetCell[]): Cell {
+const GRID = /\b(log)?grid\s*\(/
+
+/**
+ * A series worth plotting first: the latest array above drawn against the grid it is computed on (`alpha` against
+ * `E` when alpha's formula reads E, directly or through other formulas, and E is made by grid() or loggrid()). With
+ * `lengthOf` (element counts of the current results) both must be arrays of the same length. Else the first two
+ * columns of the latest spectrum; else nothing, and the figure's editor asks.
+ */
+export function defaultSeries(above: readonly SheetCell[], lengthOf: (name: string) => number | undefined = () => undefined): FigureTrace | undefined {
+  const formulas = new Map(above.filter((c) => c.kind === 'formula' && c.name).map((c) => [c.name!, c]))
+  const isGrid = (c: SheetCell | undefined) => c?.kind === 'formula' && GRID.test(c.source)
+  const fits = (x: string, y: string) => {
+    const nx = lengthOf(x)
+    const ny = lengthOf(y)
+    return (nx === undefined || nx > 1) && (ny === undefined || ny > 1) && (nx === undefined || ny === undefined || nx === ny)
+  }
+  for (const y of [...above].reverse()) {
+    if (y.kind !== 'formula' || !y.name || isGrid(y)) continue
+    // the grids this formula reads, nearest first
+    const seen = new Set<string>([y.name])
+    let frontier = [y.name]
+    while (frontier.length > 0) {
+      const next: string[] = []
+      for (const name of frontier) {
+        const cell = formulas.get(name)
+        if (!cell) continue
+        for (const r of referencedNames(cell)) {
+          if (seen.has(r) || !formulas.has(r)) continue
+          seen.add(r)
+          if (isGrid(formulas.get(r)) && fits(r, y.name)) return { x: r, y: y.name }
+          next.push(r)
+        }
+      }
+      frontier = next
+    }
+  }
+  const spectrum = [...above].reverse().find((c) => c.kind === 'spectrum' && c.name && Object.keys(c.columns ?? {}).length >= 2)
+  if (spectrum?.kind === 'spectrum') {
+    const [x, y] = Object.keys(spectrum.columns)
+    return { x: `${spectrum.name}.${x}`, y: `${spectrum.name}.${y}` }
+  }
+  return undefined
+}
+
+/**
+ * A new cell of `kind`, referring to cells above it where that makes a working start. `lengthOf` gives the element
+ * count of a named cell's current result, where known.
+ */
+export function newCell(kind: CellKind, cells: readonly SheetCell[], above: readonly SheetCell[], lengthOf?: (name: string) => number | undefined): Cell {
   const name = freeName(PREFIX[kind], cells)
   const lastOf = (k: CellKind) => [...above].reverse().find((c) => c.kind === k && c.name)?.name
   const arrays = [...above].reverse().filter((c) => c.kind === 'formula' && c.name)
@@ -74,8 +122,9 @@ export function newCell(kind: CellKind, cells: readonly SheetCell[], above: read
     case 'formula':
       return { kind, name, source: '' }
     case 'fit': {
-      const x = arrays[1]?.name ?? arrays[0]?.name ?? 'E'
-      const y = arrays[0]?.name ?? 'alpha'
+      const series = defaultSeries(above, lengthOf)
+      const x = series?.x ?? arrays[1]?.name ?? arrays[0]?.name ?? 'E'
+      const y = series?.y ?? arrays[0]?.name ?? 'alpha'
       return { kind, name, method: 'tauc', x, y, r: 0.5, unit: 'eV' }
     }
     case 'sweep': {
@@ -96,15 +145,21 @@ export function newCell(kind: CellKind, cells: readonly SheetCell[], above: read
       }
     }
     case 'figure': {
-      const y = arrays[0]?.name
-      const x = arrays[1]?.name
-      return { kind, name, traces: x && y ? [{ x, y }] : [] }
+      const series = defaultSeries(above, lengthOf)
+      return { kind, name, traces: series ? [series] : [] }
     }
     case 'note':
       return { kind, text: '' }
     case 'spectrum':
       return { kind, name, columns: {} }
-    case 'stack':
-      return { kind, name, layers: [] }
+    case 'stack': {
+      // the nearest length-valued grid above is the usual wavelength grid; a working start otherwise
+      const lam = arrays.find((c) => c.kind === 'formula' && /^(nm|um)$|^lam|wavelength/i.test(c.unit ?? c.name ?? ''))?.name
+      return {
+        kind, name, wavelength: lam ?? 'grid(300*nm, 1100*nm, 401)', ambient: '1', angle: '0*deg', polarization: 'unpolarized',
+        layers: [{ name: 'film', thickness: '500*nm', n: '2.5', k: '0.05' }],
+        substrate: { name: 'glass', n: '1.52', k: '0', thickness: '1*mm', coherent: false },
+      }
+    }
   }
 }

@@ -3,7 +3,7 @@
  * stale the moment an edit is made (the worker's answer then says exactly what was recomputed), so reading a little
  * too much is harmless and reading too little is not: every identifier in a source counts.
  */
-import type { SheetCell } from '../../../shared/schema/sheet'
+import { stackFormulas, type SheetCell } from '../../../shared/schema/sheet'
 
 const IDENT = /[A-Za-z_][A-Za-z0-9_]*/g
 
@@ -23,6 +23,7 @@ export function referencedNames(cell: SheetCell): Set<string> {
       names.add(cell.x)
       names.add(cell.y)
       if (cell.model) names.add(cell.model)
+      if (cell.sigma) names.add(cell.sigma)
       for (const p of cell.parameters ?? []) names.add(p.name)
       break
     case 'sweep':
@@ -38,9 +39,7 @@ export function referencedNames(cell: SheetCell): Set<string> {
       if (cell.sweep) names.add(cell.sweep)
       break
     case 'stack':
-      for (const layer of cell.layers ?? []) {
-        for (const v of [layer.d, layer.n, layer.k]) if (typeof v === 'string') identifiers(v, names)
-      }
+      for (const [, source] of stackFormulas(cell)) identifiers(source, names)
       break
     default:
       break

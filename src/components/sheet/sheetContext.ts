@@ -2,7 +2,7 @@
  * What every cell card reaches through inject: the live document's editing operations, presence, the results store
  * and the formula vocabulary. SheetView provides it; cards never create documents or workers themselves.
  */
-import { inject, type InjectionKey, type Ref } from 'vue'
+import { inject, type Component, type InjectionKey, type Ref } from 'vue'
 import type { SheetDoc } from '@/composables/useSheetDoc'
 import type { Presence } from '@/composables/usePresence'
 import type { FormulaVocabulary } from '@/components/cells/formulaLanguage'
@@ -18,6 +18,8 @@ export interface SheetContext {
   focusCard: (cellId: string) => void
   /** List operations with their focus handling (buttons and keyboard share them). */
   ops: CellOps
+  /** Drawn in every card's header with the cell's id (the comment badge of the review feature). */
+  cellAddon?: Component
 }
 
 export interface CellOps {
@@ -29,6 +31,10 @@ export interface CellOps {
   addAfter: (cellId: string | null) => void
   /** Puts focus in the cell's main field (its formula, value or text). */
   edit: (cellId: string) => void
+  /** Opens the measured-data import to replace a spectrum cell's data. */
+  replaceData: (cellId: string) => void
+  /** Downloads the cell's series or table as CSV (readers too). */
+  downloadCsv: (cellId: string) => void
 }
 
 export const SHEET_CONTEXT: InjectionKey<SheetContext> = Symbol('penumbra-sheet')

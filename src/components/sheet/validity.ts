@@ -4,11 +4,16 @@
  * Plain cells are replaced only when they change, so the check is cached per object.
  */
 import { cell as cellSchema, toSchemaIssues, type SchemaIssue, type SheetCell } from '../../../shared/schema/sheet'
+import { NOT_A_CELL, type NotACell } from '../../../shared/doc/sheetDoc'
 
 const cache = new WeakMap<SheetCell, SchemaIssue[]>()
 
 export function cellIssues(cell: SheetCell): SchemaIssue[] {
   let issues = cache.get(cell)
+  if (!issues && (cell.kind as string) === NOT_A_CELL) {
+    issues = [{ path: '', message: `this entry of the sheet is ${(cell as unknown as NotACell).entry}, not a cell` }]
+    cache.set(cell, issues)
+  }
   if (!issues) {
     const parsed = cellSchema.safeParse(cell)
     issues = parsed.success ? [] : toSchemaIssues(parsed.error)

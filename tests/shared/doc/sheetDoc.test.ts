@@ -46,7 +46,11 @@ const EVERY_KIND: SheetFile = {
       marks: ['edge.Eg'],
     },
     { id: 'n1', kind: 'note', text: 'Edge model for the **annealed** film.' },
-    { id: 'st1', kind: 'stack', name: 'coating', layers: [{ name: 'ITO', d: 120, n: 1.9, k: '0.01' }] },
+    {
+      id: 'st1', kind: 'stack', name: 'coating', wavelength: 'lam', ambient: '1', angle: '0*deg', polarization: 'unpolarized',
+      layers: [{ name: 'ITO', thickness: '120*nm', n: '1.9', k: '0.01' }],
+      substrate: { name: 'glass', n: '1.52', k: '0', thickness: '1*mm', coherent: false },
+    },
   ],
 }
 

@@ -26,10 +26,32 @@ describe('fit cells: tauc', () => {
     const v = fit.value as Record<string, number>
     expect(rel(v.Eg, 1.5)).toBeLessThan(1e-9)
     expect(v.Eg_err).toBeLessThan(1e-9)
-    // B of the Tauc law in SI: 4e9 eV/cm² = 4e9·e/1e-4 J/m²
-    expect(rel(v.B, (4e9 * eV) / 1e-4)).toBeLessThan(1e-9)
+    // B in the units of the x and y cells (eV and 1/cm): (αE)² = B·(E − Eg) gives eV/cm², the 4e9 of the formula
+    expect(rel(v.B, 4e9)).toBeLessThan(1e-9)
     expect(v.r2).toBeCloseTo(1, 12)
     expect(v.n).toBe(201)
+    expect(fit.units).toEqual({ Eg: 'eV', Eg_err: 'eV', B: 'eV/cm^2', B_err: 'eV/cm^2', r2: '1', n: '1' })
+  })
+
+  it('a tauc fit states B in units made of the x and y cells\' units, which read back through the unit parser', () => {
+    const res = run([
+      { kind: 'formula', name: 'E', source: 'grid(1.2*eV, 2.2*eV, 501)', unit: 'meV' },
+      { kind: 'formula', name: 'alpha', source: 'alpha_direct(E, 1.5*eV, 4e9*eV/cm^2)', unit: '1/um' },
+      { kind: 'fit', name: 'edge', method: 'tauc', x: 'E', y: 'alpha', r: 0.5, from: 1600, to: 2000 },
+      { kind: 'formula', name: 'Bsi', source: 'edge.B', unit: 'meV/um^2' },
+    ])
+    const fit = pick(res, 'edge')
+    expect(fit.units?.B).toBe('meV/um^2')
+    // the same B read by a formula in the stated unit: one number, two routes
+    expect(rel((fit.value as Record<string, number>).B, pick(res, 'Bsi').value as number)).toBeLessThan(1e-12)
+    // 4e9 eV/cm² = 4e9·1000 meV / (1e4 µm)² = 4e4 meV/µm²
+    expect(rel((fit.value as Record<string, number>).B, 4e4)).toBeLessThan(1e-9)
+    const indirect = run([
+      { kind: 'formula', name: 'E', source: 'grid(1.2*eV, 2.2*eV, 501)', unit: 'eV' },
+      { kind: 'formula', name: 'alpha', source: 'alpha_indirect(E, 1.12*eV, 1e9*eV/cm^0.5)', unit: '1/cm' },
+      { kind: 'fit', name: 'edge', method: 'tauc', x: 'E', y: 'alpha', r: 2, from: 1.3, to: 1.8 },
+    ])
+    expect(pick(indirect, 'edge').units?.B).toBe('1/(eV^0.5*cm^0.5)')
   })
 
   it('the window is read in the x cell\'s display unit, and the gap is shown in the fit\'s unit', () => {
@@ -117,11 +139,12 @@ describe('fit cells: urbach', () => {
     const v = pick(res, 'tail').value as Record<string, number>
     expect(rel(v.Eu, 20)).toBeLessThan(1e-9)
     expect(v.r2).toBeCloseTo(1, 12)
-    // E0 is the top of the data in the window (shown in meV) and alpha0 the tail's α there, in SI:
-    // α = 1e7 /m · exp((E0 − 1.5 eV) / 20 meV), the form alpha_urbach(E, alpha0, E0, Eu) (Urbach 1953)
+    // E0 is the top of the data in the window (shown in meV) and alpha0 the tail's α there, in the α cell's 1/cm:
+    // α = 1e5 /cm · exp((E0 − 1.5 eV) / 20 meV), the form alpha_urbach(E, alpha0, E0, Eu) (Urbach 1953)
     expect(v.E0).toBeLessThanOrEqual(1450 + 1e-9)
     expect(v.E0).toBeGreaterThan(1400)
-    expect(rel(v.alpha0, 1e7 * Math.exp((v.E0 - 1500) / 20))).toBeLessThan(1e-6)
+    expect(rel(v.alpha0, 1e5 * Math.exp((v.E0 - 1500) / 20))).toBeLessThan(1e-6)
+    expect(pick(res, 'tail').units).toEqual({ Eu: 'meV', Eu_err: 'meV', alpha0: '1/cm', E0: 'meV', r2: '1', n: '1' })
   })
 
   it('an urbach fit over a window with zero absorption is a clear error', () => {

@@ -71,7 +71,7 @@ describe('dependency graph: order, cycles, unknown names, blocked cells', () => 
       { kind: 'sweep', name: 'sw', parameter: 'd', from: 1, to: 2, steps: 2, outputs: ['y'] },
       { kind: 'formula', name: 'bad', source: 'sw + 1' },
     ])
-    expect(pick(res, 'bad').error).toBe('the input sw is a sweep cell, which has no value to compute with; formulas and fits can use parameters, formulas, spectra and fits')
+    expect(pick(res, 'bad').error).toBe('the input sw is a sweep cell, which has no value to compute with; formulas and fits can use parameters, formulas, spectra, fits and stacks')
   })
 })
 

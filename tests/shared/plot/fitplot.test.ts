@@ -1,5 +1,5 @@
 import { describe, it, expect } from 'vitest'
-import { fitPlotData, taucPower } from '../../../shared/plot/fitplot'
+import { fitPlotData, taucPower, windowFit } from '../../../shared/plot/fitplot'
 import { HC_EV_NM } from '../../../shared/plot/units'
 import type { CellResult } from '../../../shared/schema/result'
 import { E, alpha, results } from './fixtures'
@@ -89,5 +89,32 @@ describe('fitPlotData', () => {
     })
     const r = fitPlotData({ ...spec, x: 'A1', y: 'alpha' }, results())
     expect(!r.ok && r.message).toContain('needs photon energies')
+  })
+})
+
+describe('windowFit', () => {
+  const spec = { name: 'edge', method: 'tauc' as const, x: 'E', y: 'alpha', r: 0.5, from: 1.55, to: 1.9, unit: 'eV' }
+
+  it('windowFit refits a straight Tauc segment to the gap of the closed form, with zero residuals and the line from Eg', () => {
+    const r = fitPlotData(spec, results())
+    if (!r.ok) throw new Error(r.message)
+    // the fixture's closed form (αE)² = 2.5e9 (E − 1.48) above 1.48 eV
+    const f = windowFit(r.value, 1.6, 1.9)
+    if (!f.ok) throw new Error(f.message)
+    expect(f.value.quantity).toBe('Eg')
+    expect(rel(f.value.value, 1.48)).toBeLessThan(1e-12)
+    expect(f.value.r2).toBeCloseTo(1, 12)
+    expect(f.value.line.x[0]).toBeCloseTo(1.48, 12)
+    expect(Math.abs(f.value.line.y[0])).toBeLessThan(1e-3 * 2.5e9 * 0.42)
+    for (const res of f.value.residuals.y) expect(Math.abs(res)).toBeLessThan(1e-6 * 2.5e9)
+    expect(f.value.residuals.x.every((x) => x >= 1.6 - 1e-12 && x <= 1.9 + 1e-12)).toBe(true)
+  })
+
+  it('windowFit says why a window gives no fit: too few points', () => {
+    const r = fitPlotData(spec, results())
+    if (!r.ok) throw new Error(r.message)
+    const f = windowFit(r.value, 1.6001, 1.6002)
+    expect(f.ok).toBe(false)
+    if (!f.ok) expect(f.message).toMatch(/holds 0 points; a fit needs at least 3/)
   })
 })

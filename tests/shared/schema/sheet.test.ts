@@ -77,8 +77,25 @@ describe('parseSheetFile', () => {
     expect(p).toEqual(['format: required', 'version: required', 'cells[0].method: required', 'cells[1].value: required'])
   })
 
-  it('parseSheetFile accepts a stack cell with extra fields, for files of later versions', () => {
-    expect(parseSheetFile(sheet([{ kind: 'stack', name: 'st', layers: [{ d: 100e-9, n: 2 }], ambient: 'air' }])).ok).toBe(true)
+  it('parseSheetFile accepts the stack cell of the sheet-file form, formulas as strings', () => {
+    const stack = {
+      kind: 'stack', name: 'cell1', wavelength: 'lam', ambient: '1', angle: '0*deg', polarization: 'unpolarized',
+      layers: [{ name: 'absorber', thickness: '500*nm', n: 'n_abs', k: 'k_abs' }],
+      substrate: { name: 'glass', n: '1.52', k: '0', thickness: '1*mm', coherent: false },
+    }
+    expect(parseSheetFile(sheet([stack])).ok).toBe(true)
+  })
+
+  it('parseSheetFile names an unknown field, a bad polarisation and a number where a stack formula belongs', () => {
+    const p = problems(sheet([{
+      kind: 'stack', name: 'st', wavelength: 'lam', polarization: 'circular', colour: 'red',
+      layers: [{ name: 'ITO', thickness: 120, n: '1.9', k: '0' }], substrate: { name: 'glass', n: '1.52', k: '0' },
+    }]))
+    expect(p).toEqual([
+      'cells[0].polarization: must be one of "s", "p", "unpolarized"',
+      'cells[0].layers[0].thickness: must be a string, not a number',
+      'cells[0]: unknown field(s): colour',
+    ])
   })
 })
 

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest'
 import { dependentsOf, referencedNames } from '../../../src/components/sheet/references'
-import { copyName, freeName, newCell } from '../../../src/components/sheet/newCells'
+import { copyName, defaultSeries, freeName, newCell } from '../../../src/components/sheet/newCells'
 import { fitCautions, fitRows, taucSlopeUnit, valueWithError } from '../../../src/components/cells/fitReport'
 import { blockedInput, prettyUnit, sentence, summarizeArray } from '../../../src/components/cells/resultFormat'
 import type { FitCell, SheetCell } from '../../../shared/schema/sheet'
@@ -94,6 +94,16 @@ describe('fit report', () => {
     ])
   })
 
+  it('fitRows shows each output in the unit the result states: B in eV/cm², α₀ in 1/cm as given, χ² weighted', () => {
+    const tauc = { ...ok({ Eg: 1.5, Eg_err: 0.01, B: 4e9, B_err: 1e7, r2: 0.999, n: 30, chi2: 27.5, reducedChi2: 0.98 }), units: { Eg: 'eV', Eg_err: 'eV', B: 'eV/cm^2', B_err: 'eV/cm^2', r2: '1', n: '1', chi2: '1', reducedChi2: '1' } }
+    const rows = fitRows({ ...fit, sigma: 'salpha' }, tauc, () => undefined)
+    expect(rows.find((r) => r.quantity === 'B')?.unit).toBe('eV/cm²')
+    expect(rows.find((r) => r.quantity === 'χ²')).toMatchObject({ unit: '', meaning: 'Σ((y − fit)/σ)², weighted by the σ cell' })
+    const urbach = { ...ok({ Eu: 22, Eu_err: 1, alpha0: 1.2e4, E0: 1450, r2: 0.99, n: 20 }), unit: 'meV', units: { Eu: 'meV', Eu_err: 'meV', alpha0: '1/cm', E0: 'meV', r2: '1', n: '1' } }
+    const u = fitRows({ ...fit, method: 'urbach', unit: 'meV' }, urbach, () => undefined)
+    expect(u.find((r) => r.quantity === 'α₀')).toMatchObject({ value: '12000', unit: 'cm⁻¹' })
+  })
+
   it('taucSlopeUnit(r) gives the SI unit J^(1/r − 1)·m^(−1/r) of the Tauc slope for each usual exponent', () => {
     // (αE)^(1/r) = B·(E − Eg), α in 1/m and E in J: B carries (J/m)^(1/r) per joule
     expect(taucSlopeUnit(0.5)).toBe('J·m⁻²')
@@ -150,5 +160,36 @@ describe('prettyUnit on cards', () => {
     expect(prettyUnit('1/cm')).toBe('cm⁻¹')
     expect(prettyUnit('mA/cm^2')).toBe('mA/cm²')
     expect(prettyUnit(undefined)).toBe('')
+  })
+})
+
+describe('defaultSeries (a new figure’s first trace)', () => {
+  const sheet: SheetCell[] = [
+    { id: 'p', kind: 'parameter', name: 'Eg', value: 1.5, unit: 'eV' },
+    { id: 'e', kind: 'formula', name: 'E', source: 'grid(1*eV, 2*eV, 11)', unit: 'eV' },
+    { id: 'a', kind: 'formula', name: 'alpha', source: 'alpha_direct(E, Eg, 1e4)', unit: '1/cm' },
+    { id: 'd', kind: 'parameter', name: 'd', value: 500, unit: 'nm' },
+    { id: 'f', kind: 'formula', name: 'A1', source: 'absorbed_fraction(alpha, d)', unit: '%' },
+    { id: 'm', kind: 'formula', name: 'A_mean', source: 'mean(A1)', unit: '%' },
+  ]
+  const lengths: Record<string, number> = { Eg: 1, E: 11, alpha: 11, d: 1, A1: 11, A_mean: 1 }
+
+  it('newCell("figure") plots the latest array against the grid it is computed on, skipping a scalar below it', () => {
+    expect(newCell('figure', sheet, sheet, (n) => lengths[n])).toEqual({ kind: 'figure', name: 'fig1', traces: [{ x: 'E', y: 'A1' }] })
+  })
+
+  it('defaultSeries never pairs the last two cells when they are a scalar and an array', () => {
+    expect(defaultSeries(sheet.slice(0, 3), (n) => lengths[n])).toEqual({ x: 'E', y: 'alpha' })
+    expect(defaultSeries(sheet.slice(0, 2), (n) => lengths[n])).toBeUndefined()
+  })
+
+  it('defaultSeries without results follows the sources; with arrays of different lengths it offers nothing', () => {
+    expect(defaultSeries(sheet.slice(0, 3))).toEqual({ x: 'E', y: 'alpha' })
+    expect(defaultSeries(sheet.slice(0, 3), (n) => ({ E: 11, alpha: 12 })[n])).toBeUndefined()
+  })
+
+  it('defaultSeries falls back to the first two columns of a spectrum', () => {
+    const spec: SheetCell[] = [{ id: 's', kind: 'spectrum', name: 'filmB', columns: { wavelength: { unit: 'nm', values: [400, 500] }, T: { unit: '%', values: [10, 20] } } }]
+    expect(defaultSeries(spec)).toEqual({ x: 'filmB.wavelength', y: 'filmB.T' })
   })
 })
