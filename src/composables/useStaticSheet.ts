@@ -62,6 +62,9 @@ function staticDoc(file: SheetFile): SheetDoc {
     undo: () => undefined,
     redo: () => undefined,
     transact: refuse,
+    // a frozen sheet keeps no results in the browser: they come with the snapshot
+    readKeptResults: async () => [],
+    keepResults: () => undefined,
   }
 }
 
