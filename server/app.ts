@@ -48,6 +48,9 @@ export function createApp(deps: AppDeps): Express {
           'img-src': ["'self'", 'data:', 'blob:'],
           'worker-src': ["'self'", 'blob:'],
           'connect-src': ["'self'"],
+          // helmet's defaults also allow any https: origin for styles and fonts; Penumbra serves its own
+          'style-src': ["'self'", "'unsafe-inline'"],
+          'font-src': ["'self'", 'data:'],
           'upgrade-insecure-requests': publicHttps ? [] : null,
         },
       },

@@ -91,6 +91,13 @@ const BASE_CONFIG: Partial<Config> = {
   responsive: false, // we follow the element with our own ResizeObserver
 }
 
+/** A deep copy of plain data (objects, arrays, primitives), e.g. a plotly layout. */
+function copyPlain<T>(value: T): T {
+  if (Array.isArray(value)) return value.map(copyPlain) as T
+  if (value && typeof value === 'object') return Object.fromEntries(Object.entries(value).map(([k, v]) => [k, copyPlain(v)])) as T
+  return value
+}
+
 function message(err: unknown): string {
   const text = err instanceof Error ? err.message : String(err)
   return text.replace(/[.\s]+$/, '')
@@ -172,7 +179,9 @@ export function usePlot(target: Ref<HTMLElement | null | undefined>, spec: Ref<P
       // from scratch is right, and widths change rarely.
       if (drawn === el && w !== drawnWidth) P.purge(el)
       drawnWidth = w
-      await P.react(el, s.data, w ? { ...s.layout, width: w } : s.layout, { ...BASE_CONFIG, ...s.config })
+      // plotly writes zoom and pan into the layout it is given (axis ranges): a copy keeps the figure's own for a reset
+      const layout = copyPlain(s.layout)
+      await P.react(el, s.data, w ? { ...layout, width: w } : layout, { ...BASE_CONFIG, ...s.config })
       if (drawn !== el) observe(el)
       drawn = el
       state.value = 'ready'

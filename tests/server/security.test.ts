@@ -48,6 +48,36 @@ describe('headers', () => {
   })
 })
 
+describe('content security policy', () => {
+  /** The policy's directives by name, e.g. { 'connect-src': ["'self'"] }. */
+  function directives(header: string): Record<string, string[]> {
+    return Object.fromEntries(
+      header
+        .split(';')
+        .map((d) => d.trim().split(/\s+/))
+        .filter((parts) => parts[0])
+        .map(([name, ...values]) => [name, values]),
+    )
+  }
+
+  it('GET / and GET /api/health keep connect-src to the app itself, so no page can post or upload elsewhere', async () => {
+    const t = makeTestApp()
+    for (const path of ['/api/health', '/sign-in']) {
+      const res = await request(t.app).get(path)
+      const csp = directives(String(res.headers['content-security-policy'] ?? ''))
+      expect(csp['connect-src'], path).toEqual(["'self'"])
+      // forms post only to the app; frames, objects and the base address cannot point elsewhere
+      expect(csp['form-action'], path).toEqual(["'self'"])
+      expect(csp['frame-ancestors'], path).toEqual(["'self'"])
+      expect(csp['object-src'], path).toEqual(["'none'"])
+      expect(csp['base-uri'], path).toEqual(["'self'"])
+      // every fetch directive names only the app, data: and blob: (fonts, images and workers of its own)
+      for (const name of ['default-src', 'script-src', 'img-src', 'font-src', 'worker-src', 'style-src'])
+        for (const source of csp[name] ?? []) expect(["'self'", 'data:', 'blob:', "'unsafe-inline'"].includes(source) ? source : `${name} ${source}`, path).toBe(source)
+    }
+  })
+})
+
 describe('errors', () => {
   it('an unknown API route answers a JSON 404', async () => {
     const t = makeTestApp()
