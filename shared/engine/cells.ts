@@ -248,8 +248,14 @@ function dataUnitShow(p: PreparedCell, env: Env): (si: number) => string {
       if (n.fn === 'interpolate') calls.push(n)
       n.args.forEach(walk)
     } else if (n.t === 'unary') walk(n.arg)
-    else if (n.t === 'binary') (walk(n.left), walk(n.right))
-    else if (n.t === 'cond') (walk(n.test), walk(n.then), walk(n.else))
+    else if (n.t === 'binary') {
+      walk(n.left)
+      walk(n.right)
+    } else if (n.t === 'cond') {
+      walk(n.test)
+      walk(n.then)
+      walk(n.else)
+    }
     else if (n.t === 'array') n.items.forEach(walk)
   }
   if (p.compiled) walk(p.compiled.tree)

@@ -124,6 +124,7 @@ export function cellCsvColumns(results: EvaluationResult, cells: readonly SheetC
 
 /** A download name for a cell's CSV: `<sheet title> - <cell name>.csv`, without path separators. */
 export function csvFileName(title: string, cellName: string | undefined): string {
+  // eslint-disable-next-line no-control-regex -- control characters are exactly what a file name must not carry
   const base = `${title} - ${cellName ?? 'cell'}`.replace(/[\\/\u0000-\u001f\u007f]+/g, ' ').replace(/\s+/g, ' ').trim().slice(0, 150)
   return `${base || 'cell'}.csv`
 }
