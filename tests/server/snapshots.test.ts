@@ -30,9 +30,9 @@ describe('POST /api/sheets/:sheetId/snapshots', () => {
     const detail = snapshotReply.parse((await call(t, lab.users.viewer.cookie).get(`/api/snapshots/${summary.id}`)).body)
     expect(createHash('sha256').update(canonicalJson(detail.file)).digest('hex')).toBe(summary.hash)
     expect(detail.results.cells.find((c) => c.name === 'lambda_g')).toMatchObject({ status: 'ok', unit: 'nm' })
-    // the spectrum's numbers live in the datasets table; the snapshot's file carries them inline
+    // the spectrum's numbers live in the datasets table; the snapshot's file carries them inline and stands alone
     const spectrum = detail.file.cells.find((c) => c.name === 'filmH17') as { datasetId?: string; columns: Record<string, { values: number[] }> }
-    expect(spectrum.datasetId).toEqual(expect.any(String))
+    expect(spectrum.datasetId).toBeUndefined()
     expect(spectrum.columns.wavelength.values).toHaveLength(161)
     expect(detail.results.cells.find((c) => c.name === 'tauc_m')).toMatchObject({ status: 'ok' })
     t.close()
