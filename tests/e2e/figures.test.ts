@@ -23,9 +23,15 @@ async function demoSheetId(page: Page, titleStart: string): Promise<string> {
 
 const plotlyRequested = (urls: string[]) => urls.some((u) => /\/assets\/plotly[^/]*\.js$/.test(u))
 
-/** A drawn figure's x-axis range, as plotly holds it. */
+/**
+ * A drawn figure's x-axis range as plotly last drew it: `_rl` is the range in use (with autorange the stored
+ * `range` can keep plotly's placeholder −1 to 6).
+ */
 const xRange = (figure: Locator) =>
-  figure.locator('.js-plotly-plot').evaluate((el) => [...(el as unknown as { _fullLayout: { xaxis: { range: number[] } } })._fullLayout.xaxis.range])
+  figure.locator('.js-plotly-plot').evaluate((el) => {
+    const axis = (el as unknown as { _fullLayout: { xaxis: { range: number[]; _rl?: number[] } } })._fullLayout.xaxis
+    return [...(axis._rl ?? axis.range)]
+  })
 
 describe('figures', () => {
   it('loads the charting library only when a figure nears the viewport, after the first cards', async () => {

@@ -60,6 +60,8 @@ async function dragSlider(page: Page, name: string, dx: number): Promise<void> {
 async function openLive(page: Page, base: string, sheetId: string): Promise<void> {
   await page.goto(`${base}/sheets/${sheetId}`)
   await expect.poll(() => page.getByTestId('connection').textContent(), { timeout: 20_000 }).toContain('Live')
+  // figures draw when they come near the viewport, as a reader scrolls to them
+  await card(page, FIGURE).scrollIntoViewIfNeeded()
   await expect.poll(() => figureSignature(page, FIGURE), { timeout: 30_000 }).not.toBe('')
 }
 

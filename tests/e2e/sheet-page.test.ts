@@ -109,6 +109,7 @@ describe('the sheet page', () => {
     const page = editor.page
     await signIn(page, e2e.server.url, DEMO.editor)
     await openLive(page, await createSheet(page, 'Thickness on a linear axis', SWEEP_SHEET))
+    await card(page, 'fig_thick').scrollIntoViewIfNeeded() // figures draw as they come near the viewport
     const ticks = card(page, 'fig_thick').locator('.xtick text')
     await expect.poll(() => ticks.count(), { timeout: 60_000 }).toBeGreaterThan(2)
     const labels = await ticks.allTextContents()

@@ -112,7 +112,7 @@ describe('snapshots, review and guest links in the browser', () => {
     await owner.page.goto(`${e2e.server.url}${second}`)
     await owner.page.getByTestId('guest-links').click()
     await owner.page.getByTestId('make-guest-link').click()
-    const address = owner.page.getByTestId('guest-link-url').locator('input')
+    const address = owner.page.getByLabel('Guest link address') // Element Plus puts the attributes on the input itself
     await expect.poll(() => address.inputValue(), { timeout: 15_000 }).toMatch(/\/guest\//)
     const guestPath = new URL(await address.inputValue()).pathname
 
