@@ -569,17 +569,20 @@ export function mapSpectrum(file: ParsedSpectrumFile, options: MappingOptions = 
   if (taken.length < 2) throw new SpectrumFileError('Choose at least two columns: an x column and a measured one.', [{ message: 'one column chosen' }])
   const warnings: string[] = []
   const length = Math.max(...taken.map((t) => t.values.length))
-  // empty cells (including a column that ends early)
-  const keep = new Uint8Array(length).fill(1)
+  // empty cells (including a column that ends early); most files have none, so look before building a row mask
+  const holes = taken.some((t) => t.values.length < length || t.values.some(Number.isNaN))
+  const keep = holes ? new Uint8Array(length).fill(1) : null
   const emptyIssues: FileIssue[] = []
   let dropped = 0
-  for (let r = 0; r < length; r++) {
-    for (const t of taken) {
-      if (r < t.values.length && !Number.isNaN(t.values[r])) continue
-      if (emptyIssues.length < 20) emptyIssues.push({ line: firstLine + r, column: Number(t.col.key.slice(1)), message: `empty or not a number (${t.col.label})` })
-      keep[r] = 0
+  if (keep) {
+    for (let r = 0; r < length; r++) {
+      for (const t of taken) {
+        if (r < t.values.length && !Number.isNaN(t.values[r])) continue
+        if (emptyIssues.length < 20) emptyIssues.push({ line: firstLine + r, column: Number(t.col.key.slice(1)), message: `empty or not a number (${t.col.label})` })
+        keep[r] = 0
+      }
+      if (!keep[r]) dropped++
     }
-    if (!keep[r]) dropped++
   }
   if (dropped && !options.dropEmptyRows) {
     const first = emptyIssues[0]
@@ -590,14 +593,23 @@ export function mapSpectrum(file: ParsedSpectrumFile, options: MappingOptions = 
     )
   }
   let columns = taken.map((t) => {
-    if (!dropped) return t.values.length === length ? t.values : Float64Array.from({ length }, (_, i) => t.values[i])
+    if (!keep || !dropped) return t.values
     const out = new Float64Array(length - dropped)
     let j = 0
     for (let r = 0; r < length; r++) if (keep[r]) out[j++] = t.values[r]
     return out
   })
-  const lineOf: number[] = []
-  for (let r = 0; r < length; r++) if (keep[r]) lineOf.push(firstLine + r)
+  /** The file line of the kept row `r` (before sorting). */
+  let keptLines: Int32Array | null = null
+  const lineOf = (r: number): number => {
+    if (!keep || !dropped) return firstLine + r
+    if (!keptLines) {
+      keptLines = new Int32Array(length - dropped)
+      let j = 0
+      for (let q = 0; q < length; q++) if (keep[q]) keptLines[j++] = firstLine + q
+    }
+    return keptLines[r]
+  }
   if (dropped) warnings.push(`Dropped ${dropped} row${dropped === 1 ? '' : 's'} with an empty or NaN cell (first: line ${emptyIssues[0].line}).`)
   if (columns[0].length === 0) throw new SpectrumFileError('No rows are left once the rows with empty cells are dropped.', [{ message: 'no rows' }])
   // sort by x (the first taken column of an x quantity, else the first)
@@ -610,24 +622,25 @@ export function mapSpectrum(file: ParsedSpectrumFile, options: MappingOptions = 
     if (!(x[i] > x[i - 1])) ascending = false
     if (!(x[i] < x[i - 1])) descending = false
   }
-  let order: number[] | null = null
+  /** Sorted row → row before sorting (identity when x already ascends). */
+  let from: (i: number) => number = (i) => i
   if (!ascending) {
     if (descending) {
-      order = new Array<number>(n)
-      for (let i = 0; i < n; i++) order[i] = n - 1 - i
+      from = (i) => n - 1 - i
+      columns = columns.map((c) => c.slice().reverse())
       warnings.push(`The ${taken[xi].name} column was descending (${fmt(x[0])} to ${fmt(x[n - 1])}); the rows were reversed so it ascends.`)
     } else {
-      order = Array.from({ length: n }, (_, i) => i).sort((a, b) => x[a] - x[b] || a - b)
-      const dupes = order.some((v, i) => i > 0 && x[v] === x[order![i - 1]])
+      const order = Array.from({ length: n }, (_, i) => i).sort((a, b) => x[a] - x[b] || a - b)
+      from = (i) => order[i]
+      const dupes = order.some((v, i) => i > 0 && x[v] === x[order[i - 1]])
       if (!dupes) warnings.push(`The ${taken[xi].name} column was not in order; the rows were sorted by it.`)
       else warnings.push(`The rows were sorted by ${taken[xi].name}.`)
+      columns = columns.map((c) => {
+        const out = new Float64Array(n)
+        for (let i = 0; i < n; i++) out[i] = c[order[i]]
+        return out
+      })
     }
-    const o = order
-    columns = columns.map((c) => {
-      const out = new Float64Array(n)
-      for (let i = 0; i < n; i++) out[i] = c[o[i]]
-      return out
-    })
   }
   // duplicate x
   const xs = columns[xi]
@@ -637,8 +650,8 @@ export function mapSpectrum(file: ParsedSpectrumFile, options: MappingOptions = 
     if (xs[i] !== xs[i - 1]) continue
     dupCount++
     if (dupIssues.length < 20) {
-      const a = lineOf[order ? order[i - 1] : i - 1]
-      const b = lineOf[order ? order[i] : i]
+      const a = lineOf(from(i - 1))
+      const b = lineOf(from(i))
       dupIssues.push({ line: Math.max(a, b), column: Number(taken[xi].col.key.slice(1)), message: `${taken[xi].name} ${fmt(xs[i])} also on line ${Math.min(a, b)}` })
     }
   }
