@@ -15,7 +15,10 @@ export const users = sqliteTable('users', {
   name: text('name').notNull(),
   passwordHash: text('password_hash').notNull(),
   createdAt: createdAt(),
-  /** Seconds since the epoch: session tokens issued before this (a password reset or change) are refused. */
+  /**
+   * Milliseconds since the epoch: session tokens issued before this (a password reset or change) are refused. Values
+   * below 1e11 were written in seconds by older builds and are read as seconds.
+   */
   sessionsValidFrom: integer('sessions_valid_from', { mode: 'number' }),
 })
 
