@@ -12,6 +12,7 @@
  */
 import { onScopeDispose, ref, shallowRef, watch, type Ref } from 'vue'
 import type { Config, Data, Layout } from 'plotly.js-dist-min'
+import { mark } from '@/lib/marks'
 
 type PlotlyModule = typeof import('plotly.js-dist-min').default
 
@@ -137,6 +138,7 @@ export function usePlot(target: Ref<HTMLElement | null | undefined>, spec: Ref<P
           .then(
             (m) => {
               if (disposed || !m) return
+              mark('pn:plotly-ready')
               plotly.value = m
             },
             (err) => {
@@ -184,6 +186,7 @@ export function usePlot(target: Ref<HTMLElement | null | undefined>, spec: Ref<P
       await P.react(el, s.data, w ? { ...layout, width: w } : layout, { ...BASE_CONFIG, ...s.config })
       if (drawn !== el) observe(el)
       drawn = el
+      mark('pn:first-figure')
       state.value = 'ready'
       error.value = null
     } catch (err) {
