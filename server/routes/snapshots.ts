@@ -229,7 +229,8 @@ export function snapshotRoutes(deps: AppDeps) {
     res.json(guestSnapshot(db, link, snap))
   })
   guest.get('/:token/cells/:cellId/csv', tokenLimit, (req, res) => {
-    const { snapshot: snap } = openGuestLink(db, String(req.params.token))
+    // a download from the page is not another view of it
+    const { snapshot: snap } = openGuestLink(db, String(req.params.token), { countView: false })
     sendCsv(res, snapshotCellCsv(snap, String(req.params.cellId), extraSeries(req.query)))
   })
 
