@@ -104,7 +104,11 @@ function message(err: unknown): string {
   return text.replace(/[.\s]+$/, '')
 }
 
-export function usePlot(target: Ref<HTMLElement | null | undefined>, spec: Ref<PlotSpec | null>) {
+/**
+ * `eager`: draw as soon as the page has painted, wherever the figure is (a page made to be printed, whose figures
+ * must all be drawn before the print dialog takes its picture).
+ */
+export function usePlot(target: Ref<HTMLElement | null | undefined>, spec: Ref<PlotSpec | null>, options: { eager?: boolean } = {}) {
   const state = ref<PlotState>('loading')
   const error = ref<string | null>(null)
   const plotly = shallowRef<PlotlyModule | null>(null)
@@ -130,7 +134,8 @@ export function usePlot(target: Ref<HTMLElement | null | undefined>, spec: Ref<P
       stopWatching?.()
       stopWatching = null
       if (!el) return
-      void whenNear(el, (stop) => (stopWatching = stop)).then(() => {
+      const near = options.eager ? Promise.resolve() : whenNear(el, (stop) => (stopWatching = stop))
+      void near.then(() => {
         if (asked || disposed) return
         asked = true
         afterFirstPaint()

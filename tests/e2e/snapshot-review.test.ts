@@ -4,6 +4,7 @@
  * and asks for changes; the editor answers, edits, freezes again and the reviewer approves; the owner makes a guest
  * link, a signed-out browser opens it and sees the figure, then sees that it was revoked once the owner revokes it.
  */
+import { readFileSync } from 'node:fs'
 import { describe, expect, it } from 'vitest'
 import type { Page } from 'playwright-core'
 import { DEMO, signIn, useBrowserSuite } from '../utils/browser'
@@ -37,6 +38,13 @@ async function freeze(page: Page, message: string): Promise<string> {
   await page.waitForURL(/\/snapshots\/[^/]+$/, { timeout: 20_000 })
   await expect.poll(() => page.getByTestId('snapshot-message').textContent()).toContain(message)
   return new URL(page.url()).pathname
+}
+
+/** Clicks a card's CSV button; resolves with the downloaded file's name and its lines. */
+async function cardCsv(page: Page, name: string): Promise<{ file: string; lines: string[] }> {
+  const [download] = await Promise.all([page.waitForEvent('download', { timeout: 30_000 }), card(page, name).getByTestId('download-csv').click()])
+  const path = await download.path()
+  return { file: download.suggestedFilename(), lines: readFileSync(path, 'utf8').trim().split(/\r?\n/) }
 }
 
 async function askForReview(page: Page, reviewer: string, note: string): Promise<void> {
@@ -103,6 +111,11 @@ describe('snapshots, review and guest links in the browser', () => {
     const second = await freeze(editor.page, 'corrected window')
     // a decision binds to its snapshot: the new one starts unreviewed
     expect(await editor.page.getByTestId('snapshot-state').textContent()).toBe('not reviewed')
+    // a card's CSV on the snapshot page is that cell's series from the stored results (121 grid points and a header)
+    const grid = await cardCsv(editor.page, 'E')
+    expect(grid.file).toBe('Film K-2 edge - E.csv')
+    expect(grid.lines[0]).toBe('E (eV)')
+    expect(grid.lines).toHaveLength(122)
     await askForReview(editor.page, DEMO.reviewer.name, 'Corrected as asked.')
     await decide(reviewer.page, second, 'Approve', 'Looks right now.')
 
@@ -121,6 +134,11 @@ describe('snapshots, review and guest links in the browser', () => {
     await expect.poll(() => guest.page.getByTestId('snapshot-message').textContent(), { timeout: 20_000 }).toContain('corrected window')
     await expect.poll(() => card(guest.page, 'fig_alpha').locator('.js-plotly-plot').count(), { timeout: 30_000 }).toBe(1)
     expect(await guest.page.getByText('Film K-2 edge').count()).toBeGreaterThan(0)
+    // the guest downloads a card's series through the link: alpha on the grid its figure draws it against
+    const alpha = await cardCsv(guest.page, 'alpha')
+    expect(alpha.file).toBe('Film K-2 edge - alpha.csv')
+    expect(alpha.lines[0]).toBe('E (eV),alpha (1/cm)')
+    expect(alpha.lines).toHaveLength(122)
 
     await owner.page.getByRole('button', { name: 'Revoke' }).click()
     await owner.page.getByRole('dialog', { name: 'Revoke guest link' }).getByRole('button', { name: 'Revoke' }).click()
