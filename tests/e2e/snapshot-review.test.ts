@@ -8,7 +8,7 @@ import { readFileSync } from 'node:fs'
 import { describe, expect, it } from 'vitest'
 import type { Page } from 'playwright-core'
 import { DEMO, signIn, useBrowserSuite } from '../utils/browser'
-import { card, sheetPage } from '../utils/sheetPage'
+import { card, demoLabId, sheetPage } from '../utils/sheetPage'
 
 const e2e = useBrowserSuite()
 const { createSheet, openLive } = sheetPage(() => e2e.server)
@@ -145,5 +145,33 @@ describe('snapshots, review and guest links in the browser', () => {
     await expect.poll(() => owner.page.getByTestId('guest-link-state').first().textContent(), { timeout: 15_000 }).toBe('revoked')
     await guest.page.reload()
     await expect.poll(() => guest.page.getByTestId('guest-gone').textContent(), { timeout: 15_000 }).toContain('revoked')
+  })
+
+  it('prints the review report of a demo snapshot with every figure drawn, without scrolling to them first', async () => {
+    const base = e2e.server.url
+    const owner = await e2e.newBrowser({ label: 'owner' })
+    await signIn(owner.page, base, DEMO.owner)
+    const labId = await demoLabId(owner.page, base)
+    const sheets = (await (await owner.page.request.get(`${base}/api/labs/${labId}/sheets`)).json()) as { sheets: { id: string; title: string }[] }
+    const sheet = sheets.sheets.find((x) => x.title.startsWith('Film H-17'))!
+    const snaps = (await (await owner.page.request.get(`${base}/api/sheets/${sheet.id}/snapshots`)).json()) as { snapshots: { id: string; hash: string }[] }
+    expect(snaps.snapshots.length).toBeGreaterThan(0)
+    const snap = snaps.snapshots[0]
+    await owner.page.goto(`${base}/sheets/${sheet.id}/snapshots/${snap.id}/report`)
+    const report = owner.page.locator('.report')
+    await expect.poll(() => report.locator('h1').count(), { timeout: 20_000 }).toBe(1)
+    expect(await report.innerText()).toContain(snap.hash)
+    // every figure of the report draws at once, however far down the page it sits
+    const figures = report.locator('figure.figure')
+    const n = await figures.count()
+    expect(n).toBeGreaterThan(0)
+    await expect.poll(() => report.locator('figure.figure .main-svg').count(), { timeout: 60_000 }).toBeGreaterThanOrEqual(n)
+    expect(await report.getByText('Loading the charting library').count()).toBe(0)
+    // printed: the page's own toolbar is left out, and the PDF holds pages
+    await owner.page.emulateMedia({ media: 'print' })
+    expect(await report.locator('.no-print').first().isVisible()).toBe(false)
+    const pdf = await owner.page.pdf({ format: 'A4' })
+    expect(pdf.subarray(0, 5).toString('latin1')).toBe('%PDF-')
+    expect(pdf.length).toBeGreaterThan(20_000)
   })
 })
