@@ -15,6 +15,7 @@ import { usePresence } from './usePresence'
 import { useSheetStore } from '@/stores/sheet'
 import { buildVocabulary } from '@/components/cells/formulaLanguage'
 import type { SheetContext } from '@/components/sheet/sheetContext'
+import { createCardEditors } from '@/components/sheet/cardEditors'
 import { NO_PENDING_EDITS } from '@/lib/localCopyPending'
 
 /** Matches stored results to cells: by id where the result carries one, otherwise by position. */
@@ -99,6 +100,7 @@ export function useStaticSheet(file: SheetFile, results: readonly { index: numbe
       replaceData: () => undefined,
       downloadCsv: () => undefined,
     },
+    editors: createCardEditors(),
     cellAddon: options.cellAddon,
   }
   onScopeDispose(() => {
