@@ -206,8 +206,8 @@ function numericRow(fields: readonly string[], decimal: '.' | ','): boolean {
 }
 
 /** The dialect whose reading gives the longest run of numeric rows with the most columns, and where the run starts. */
-function detectDialect(text: string): { dialect: Dialect; start: number; width: number } | null {
-  let best: { dialect: Dialect; start: number; width: number; score: number } | null = null
+function detectDialect(text: string): { dialect: Dialect; start: number; width: number; head: string[][] } | null {
+  let best: { dialect: Dialect; start: number; width: number; score: number; head: string[][] } | null = null
   // the first 400 lines decide (papaparse would split the whole text even for a preview)
   let cut = -1
   for (let i = 0; i < 400 && (cut = text.indexOf('\n', cut + 1)) >= 0; i++);
@@ -226,7 +226,7 @@ function detectDialect(text: string): { dialect: Dialect; start: number; width: 
       if (run > 0) {
         const width = trimmedWidth(rows[runStart])
         const score = run * 1000 + width
-        if (!best || score > best.score) best = { dialect, start: runStart, width, score }
+        if (!best || score > best.score) best = { dialect, start: runStart, width, score, head: rows }
       }
       run = 0
     }
@@ -337,6 +337,125 @@ function guessColumn(reading: LabelReading, position: number, xFound: boolean, m
   return { quantity, unit, guessed, note: guessed ? notes.join('; ') : 'from the header' }
 }
 
+interface NumericBlock {
+  /** Rows of the block, blank rows inside it included (a footer after a blank line is not). */
+  nRows: number
+  /** Each column's numbers by row (NaN where empty). */
+  values: Float64Array[]
+  /** Per column, the last row with a number (-1 for none). */
+  lastWritten: Int32Array
+  /** Text in a numeric column, or a row longer than the block (at most 20, in file order). */
+  issues: FileIssue[]
+  /** Rows shorter than the block (a broken file unless the samples are x/y pairs of different lengths). */
+  short: FileIssue[]
+}
+
+/** Rows papaparse hands over at a time while the block is read (bounds the split strings held at once). */
+const BLOCK_CHUNK_CHARS = 1 << 20
+
+/**
+ * Reads the numbers from row `start` to the end of the file, as papaparse splits them chunk by chunk: every cell goes
+ * straight into its column, so the split rows of a large file are never all held at once. The block runs to the end
+ * of the file; blank lines at its end, or a footer after a blank line (lines up to the end with no numeric row), are
+ * left out. Throws for more than `maxNumbers` numbers.
+ */
+function readBlock(text: string, dialect: Dialect, start: number, width: number, labels: readonly string[], maxNumbers: number): NumericBlock {
+  const decimal = dialect.decimal
+  const maxRows = Math.floor(maxNumbers / width)
+  let lines = 1
+  for (let p = text.indexOf('\n'); p >= 0; p = text.indexOf('\n', p + 1)) lines++
+  const capacity = Math.max(0, Math.min(lines - start, maxRows))
+  const values: Float64Array[] = Array.from({ length: width }, () => new Float64Array(capacity).fill(NaN))
+  const lastWritten = new Int32Array(width).fill(-1)
+  const issues: FileIssue[] = []
+  const short: FileIssue[] = []
+  let tooMany = false
+
+  /** Reads file row `i` (0-based) of the block into the columns. */
+  const take = (fields: readonly string[], i: number): void => {
+    const r = i - start
+    if (r >= maxRows) {
+      tooMany = true
+      return
+    }
+    if (issues.length >= 20) return
+    const line = i + 1
+    let w = fields.length
+    while (w > width && fields[w - 1].trim() === '') w--
+    if (w === 0 || (w === 1 && fields[0].trim() === '')) return
+    if (w > width) {
+      issues.push({ line, column: width + 1, message: `${w} values on this line; the rows above have ${width}` })
+      return
+    }
+    if (w < width && short.length < 20) short.push({ line, column: w + 1, message: `${w} value${w === 1 ? '' : 's'} on this line; the rows above have ${width}` })
+    for (let c = 0; c < w; c++) {
+      const raw = fields[c]
+      // fast path: a finite non-zero number not starting with 0 or a space (so not '', '0x1f', ' 0b1' either);
+      // everything else is checked against the decimal pattern
+      const f = +raw
+      const c0 = raw.charCodeAt(0)
+      const v: number | null | undefined = decimal === '.' && f - f === 0 && f !== 0 && c0 !== 48 && c0 !== 32 && c0 !== 9 ? f : cellNumber(raw, decimal)
+      if (v === undefined) {
+        issues.push({ line, column: c + 1, message: `"${raw.trim().slice(0, 40)}" is not a number${labels[c] ? ` (column ${labels[c]})` : ''}` })
+        return
+      }
+      if (v !== null) {
+        values[c][r] = v
+        lastWritten[c] = r
+      }
+    }
+  }
+
+  let row = 0
+  // rows from a blank line on, held until a numeric row shows they are not the footer
+  let held: string[][] = []
+  let heldFrom = -1
+  const body = dialect.separator === 'whitespace' ? whitespaceToTabs(text) : text
+  // papaparse streams a string in chunks of `chunkSize` characters, synchronously (its StringStreamer); the typings
+  // list `chunk` for files only, hence the widened config
+  const config: Papa.ParseConfig<string[]> & { chunkSize: number; chunk: (res: Papa.ParseResult<string[]>, parser: Papa.Parser) => void } = {
+    delimiter: DELIMITER[dialect.separator],
+    newline: '\n',
+    skipEmptyLines: false,
+    chunkSize: BLOCK_CHUNK_CHARS,
+    chunk: (res, parser) => {
+      for (const fields of res.data) {
+        const i = row++
+        if (i < start) continue
+        if (heldFrom >= 0) {
+          if (trimmedWidth(fields) > 0 && numericRow(fields, decimal)) {
+            held.forEach((h, k) => take(h, heldFrom + k))
+            held = []
+            heldFrom = -1
+            take(fields, i)
+          } else held.push(fields)
+        } else if (trimmedWidth(fields) === 0) {
+          heldFrom = i
+          held = [fields]
+        } else take(fields, i)
+        if (tooMany) {
+          parser.abort()
+          return
+        }
+      }
+    },
+  }
+  Papa.parse<string[]>(body, config)
+  if (tooMany) {
+    // the lines from the first row of numbers to the last non-blank line
+    let lastLines = 1
+    const trimmed = text.trimEnd()
+    for (let p = trimmed.indexOf('\n'); p >= 0; p = trimmed.indexOf('\n', p + 1)) lastLines++
+    const about = Math.max(lastLines - start, maxRows + 1)
+    throw new SpectrumFileError(
+      `The file holds about ${(about * width).toLocaleString('en-US')} numbers (${about.toLocaleString('en-US')} rows × ${width} columns); one import takes at most ${maxNumbers.toLocaleString('en-US')}. Split the file or thin the data first.`,
+      [{ line: start + 1, message: 'too many numbers' }],
+    )
+  }
+  const nRows = (heldFrom >= 0 ? heldFrom : row) - start
+  return { nRows, values: nRows === capacity ? values : values.map((v) => v.subarray(0, nRows)), lastWritten, issues, short }
+}
+
 /**
  * Reads a file's text (or bytes) into columns and samples. Throws SpectrumFileError for a file that has no numeric
  * block, a single column, text in a numeric column, ragged rows or more than MAX_IMPORT_NUMBERS numbers.
@@ -361,77 +480,26 @@ export function parseSpectrumFile(input: Uint8Array | string, options: { maxNumb
     )
   }
   const { dialect } = found
-  const rows = splitLines(text, dialect)
+  // the first lines, as the chosen dialect splits them: the numbers start there, and the header is above them
+  const head = found.head
   let start = found.start
   // a row with a bad cell splits the run of numbers: rows above it that start with a number belong to the data too
   // (so the bad cell is reported, not taken for a header)
-  while (start > 0 && trimmedWidth(rows[start - 1]) >= 2 && typeof cellNumber(rows[start - 1][0], dialect.decimal) === 'number') start--
+  while (start > 0 && trimmedWidth(head[start - 1]) >= 2 && typeof cellNumber(head[start - 1][0], dialect.decimal) === 'number') start--
   // the header row: the last non-empty line above the numbers with as many fields as the numbers have
   let headerLine: number | undefined
   let labels: string[] = []
   for (let i = start - 1; i >= 0; i--) {
-    const w = trimmedWidth(rows[i])
+    const w = trimmedWidth(head[i])
     if (w === 0) continue
     if (w >= found.width - 1 && w <= found.width + 1 && w >= 2) {
       headerLine = i
-      labels = rows[i].slice(0, found.width).map((s) => s.trim().replace(/^"|"$/g, ''))
+      labels = head[i].slice(0, found.width).map((s) => s.trim().replace(/^"|"$/g, ''))
     }
     break
   }
   const width = found.width
-  // the block runs to the end of the file; blank lines at its end (or a footer after a blank line) are left out
-  let end = rows.length
-  while (end > start && trimmedWidth(rows[end - 1]) === 0) end--
-  for (let i = start; i < end; i++) {
-    if (trimmedWidth(rows[i]) === 0) {
-      // a blank line inside: what follows is a footer when it holds no numeric row
-      let numericAfter = false
-      for (let j = i + 1; j < end; j++) if (numericRow(rows[j], dialect.decimal)) numericAfter = true
-      if (!numericAfter) {
-        end = i
-        break
-      }
-    }
-  }
-  const nRows = end - start
-  if (nRows * width > maxNumbers)
-    throw new SpectrumFileError(
-      `The file holds about ${(nRows * width).toLocaleString('en-US')} numbers (${nRows.toLocaleString('en-US')} rows × ${width} columns); one import takes at most ${maxNumbers.toLocaleString('en-US')}. Split the file or thin the data first.`,
-      [{ line: start + 1, message: 'too many numbers' }],
-    )
-  const values: Float64Array[] = Array.from({ length: width }, () => new Float64Array(nRows).fill(NaN))
-  const lastWritten = new Int32Array(width).fill(-1)
-  const issues: FileIssue[] = []
-  const short: FileIssue[] = []
-  const decimal = dialect.decimal
-  for (let r = 0; r < nRows && issues.length < 20; r++) {
-    const fields = rows[start + r]
-    const line = start + r + 1
-    let w = fields.length
-    while (w > width && fields[w - 1].trim() === '') w--
-    if (w === 0 || (w === 1 && fields[0].trim() === '')) continue
-    if (w > width) {
-      issues.push({ line, column: width + 1, message: `${w} values on this line; the rows above have ${width}` })
-      continue
-    }
-    if (w < width && short.length < 20) short.push({ line, column: w + 1, message: `${w} value${w === 1 ? '' : 's'} on this line; the rows above have ${width}` })
-    for (let c = 0; c < w; c++) {
-      const raw = fields[c]
-      // fast path: a finite non-zero number not starting with 0 or a space (so not '', '0x1f', ' 0b1' either);
-      // everything else is checked against the decimal pattern
-      const f = +raw
-      const c0 = raw.charCodeAt(0)
-      const v: number | null | undefined = decimal === '.' && f - f === 0 && f !== 0 && c0 !== 48 && c0 !== 32 && c0 !== 9 ? f : cellNumber(raw, decimal)
-      if (v === undefined) {
-        issues.push({ line, column: c + 1, message: `"${raw.trim().slice(0, 40)}" is not a number${labels[c] ? ` (column ${labels[c]})` : ''}` })
-        break
-      }
-      if (v !== null) {
-        values[c][r] = v
-        lastWritten[c] = r
-      }
-    }
-  }
+  const { nRows, values, lastWritten, issues, short } = readBlock(text, dialect, start, width, labels, maxNumbers)
   if (issues.length) {
     const first = issues[0]
     const ragged = first.message.includes('values on this line')
@@ -460,7 +528,7 @@ export function parseSpectrumFile(input: Uint8Array | string, options: { maxNumb
   if (columns.filter((c) => c.count > 0).length < 2)
     throw new SpectrumFileError('The file has a single column of numbers; a spectrum needs at least two.', [{ line: start + 1, message: 'one column' }])
   // a row of sample names above the header ("film A,,film B,") names the samples of x/y pairs
-  const nameRow = headerLine !== undefined && headerLine > 0 ? rows[headerLine - 1].map((t) => t.trim()) : []
+  const nameRow = headerLine !== undefined && headerLine > 0 ? head[headerLine - 1].map((t) => t.trim()) : []
   const samples = groupSamples(columns, labels, trimmedWidth(nameRow) >= 2 ? nameRow : [])
   // x/y pairs of different lengths leave later rows short; with one x column a short row is a broken file
   if (short.length && samples.every((s) => s.columns[0] === samples[0].columns[0]))
@@ -569,17 +637,20 @@ export function mapSpectrum(file: ParsedSpectrumFile, options: MappingOptions = 
   if (taken.length < 2) throw new SpectrumFileError('Choose at least two columns: an x column and a measured one.', [{ message: 'one column chosen' }])
   const warnings: string[] = []
   const length = Math.max(...taken.map((t) => t.values.length))
-  // empty cells (including a column that ends early)
-  const keep = new Uint8Array(length).fill(1)
+  // empty cells (including a column that ends early); most files have none, so look before building a row mask
+  const holes = taken.some((t) => t.values.length < length || t.values.some(Number.isNaN))
+  const keep = holes ? new Uint8Array(length).fill(1) : null
   const emptyIssues: FileIssue[] = []
   let dropped = 0
-  for (let r = 0; r < length; r++) {
-    for (const t of taken) {
-      if (r < t.values.length && !Number.isNaN(t.values[r])) continue
-      if (emptyIssues.length < 20) emptyIssues.push({ line: firstLine + r, column: Number(t.col.key.slice(1)), message: `empty or not a number (${t.col.label})` })
-      keep[r] = 0
+  if (keep) {
+    for (let r = 0; r < length; r++) {
+      for (const t of taken) {
+        if (r < t.values.length && !Number.isNaN(t.values[r])) continue
+        if (emptyIssues.length < 20) emptyIssues.push({ line: firstLine + r, column: Number(t.col.key.slice(1)), message: `empty or not a number (${t.col.label})` })
+        keep[r] = 0
+      }
+      if (!keep[r]) dropped++
     }
-    if (!keep[r]) dropped++
   }
   if (dropped && !options.dropEmptyRows) {
     const first = emptyIssues[0]
@@ -590,14 +661,23 @@ export function mapSpectrum(file: ParsedSpectrumFile, options: MappingOptions = 
     )
   }
   let columns = taken.map((t) => {
-    if (!dropped) return t.values.length === length ? t.values : Float64Array.from({ length }, (_, i) => t.values[i])
+    if (!keep || !dropped) return t.values
     const out = new Float64Array(length - dropped)
     let j = 0
     for (let r = 0; r < length; r++) if (keep[r]) out[j++] = t.values[r]
     return out
   })
-  const lineOf: number[] = []
-  for (let r = 0; r < length; r++) if (keep[r]) lineOf.push(firstLine + r)
+  /** The file line of the kept row `r` (before sorting). */
+  let keptLines: Int32Array | null = null
+  const lineOf = (r: number): number => {
+    if (!keep || !dropped) return firstLine + r
+    if (!keptLines) {
+      keptLines = new Int32Array(length - dropped)
+      let j = 0
+      for (let q = 0; q < length; q++) if (keep[q]) keptLines[j++] = firstLine + q
+    }
+    return keptLines[r]
+  }
   if (dropped) warnings.push(`Dropped ${dropped} row${dropped === 1 ? '' : 's'} with an empty or NaN cell (first: line ${emptyIssues[0].line}).`)
   if (columns[0].length === 0) throw new SpectrumFileError('No rows are left once the rows with empty cells are dropped.', [{ message: 'no rows' }])
   // sort by x (the first taken column of an x quantity, else the first)
@@ -610,24 +690,25 @@ export function mapSpectrum(file: ParsedSpectrumFile, options: MappingOptions = 
     if (!(x[i] > x[i - 1])) ascending = false
     if (!(x[i] < x[i - 1])) descending = false
   }
-  let order: number[] | null = null
+  /** Sorted row → row before sorting (identity when x already ascends). */
+  let from: (i: number) => number = (i) => i
   if (!ascending) {
     if (descending) {
-      order = new Array<number>(n)
-      for (let i = 0; i < n; i++) order[i] = n - 1 - i
+      from = (i) => n - 1 - i
+      columns = columns.map((c) => c.slice().reverse())
       warnings.push(`The ${taken[xi].name} column was descending (${fmt(x[0])} to ${fmt(x[n - 1])}); the rows were reversed so it ascends.`)
     } else {
-      order = Array.from({ length: n }, (_, i) => i).sort((a, b) => x[a] - x[b] || a - b)
-      const dupes = order.some((v, i) => i > 0 && x[v] === x[order![i - 1]])
+      const order = Array.from({ length: n }, (_, i) => i).sort((a, b) => x[a] - x[b] || a - b)
+      from = (i) => order[i]
+      const dupes = order.some((v, i) => i > 0 && x[v] === x[order[i - 1]])
       if (!dupes) warnings.push(`The ${taken[xi].name} column was not in order; the rows were sorted by it.`)
       else warnings.push(`The rows were sorted by ${taken[xi].name}.`)
+      columns = columns.map((c) => {
+        const out = new Float64Array(n)
+        for (let i = 0; i < n; i++) out[i] = c[order[i]]
+        return out
+      })
     }
-    const o = order
-    columns = columns.map((c) => {
-      const out = new Float64Array(n)
-      for (let i = 0; i < n; i++) out[i] = c[o[i]]
-      return out
-    })
   }
   // duplicate x
   const xs = columns[xi]
@@ -637,8 +718,8 @@ export function mapSpectrum(file: ParsedSpectrumFile, options: MappingOptions = 
     if (xs[i] !== xs[i - 1]) continue
     dupCount++
     if (dupIssues.length < 20) {
-      const a = lineOf[order ? order[i - 1] : i - 1]
-      const b = lineOf[order ? order[i] : i]
+      const a = lineOf(from(i - 1))
+      const b = lineOf(from(i))
       dupIssues.push({ line: Math.max(a, b), column: Number(taken[xi].col.key.slice(1)), message: `${taken[xi].name} ${fmt(xs[i])} also on line ${Math.min(a, b)}` })
     }
   }

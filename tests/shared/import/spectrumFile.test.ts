@@ -228,3 +228,45 @@ describe('parseSpectrumFile / mapSpectrum: bad files', () => {
     expect(failure(() => mapSpectrum(file, { sample: 'film Z' })).message).toBe('The file has no sample "film Z"; it has "all columns".')
   })
 })
+
+describe('parseSpectrumFile: long files, blank lines and footers', () => {
+  // 120,000 rows (about 2.4 MB) span several of the chunks papaparse hands over, so rows cross chunk boundaries
+  const ROWS = 120_000
+  const long = (tail: string) =>
+    `Halvorsen lab export (invented)\nWavelength (nm),%T\n${Array.from({ length: ROWS }, (_, i) => `${(300 + i * 0.005).toFixed(3)},${(i % 1000) / 10}`).join('\n')}\n${tail}`
+
+  it('reads every row of a file longer than one chunk, leaving out a footer after a blank line', () => {
+    const file = parseSpectrumFile(long('\nEnd of data\nOperator: T. Reyes\n\n'))
+    const x = file.values.get('c1')!
+    const t = file.values.get('c2')!
+    expect(x.length).toBe(ROWS)
+    expect(t.length).toBe(ROWS)
+    for (const i of [0, 1, 40_000, 47_661, 99_999, ROWS - 1]) {
+      expect(x[i]).toBe(Number((300 + i * 0.005).toFixed(3)))
+      expect(t[i]).toBe((i % 1000) / 10)
+    }
+    expect(file.columns.map((c) => c.count)).toEqual([ROWS, ROWS])
+  })
+
+  it('names the exact line of a bad cell far into a long file', () => {
+    const text = long('').replace('\n500.000,0\n', '\n500.000,0\n500.005,n.m.\n')
+    const e = failure(() => parseSpectrumFile(text))
+    // row 40,000 of the data (x = 500.000) is on line 40,003 (two lines above the data); the bad row follows it
+    expect(e.issues[0]).toEqual({ line: 40_004, column: 2, message: '"n.m." is not a number (column %T)' })
+  })
+
+  it('keeps a blank line inside the data as an empty row (to drop on request), and numbers after it', () => {
+    const text = 'nm,T\n400,10\n401,11\n\n402,12\n403,13\n\nscan ended\n'
+    const e = failure(() => importSpectrum(text))
+    expect(e.offer).toBe('dropEmptyRows')
+    expect(e.issues[0].line).toBe(4)
+    const { spectrum } = importSpectrum(text, { dropEmptyRows: true })
+    expect(Array.from(spectrum.columns[0].values)).toEqual([400, 401, 402, 403])
+    expect(Array.from(spectrum.columns[1].values)).toEqual([10, 11, 12, 13])
+  })
+
+  it('reports text after a blank line when numbers follow it, as part of the data', () => {
+    const e = failure(() => parseSpectrumFile('nm,T\n400,10\n401,11\n\nrecalibrated\n402,12\n403,13\n'))
+    expect(e.issues[0]).toMatchObject({ line: 5, column: 1 })
+  })
+})
