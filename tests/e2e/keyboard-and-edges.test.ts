@@ -118,7 +118,8 @@ describe('rough edges of the sheet page', () => {
     await page.keyboard.press('Enter')
     const fig = card(page, 'fig1')
     await expect.poll(() => fig.count()).toBe(1)
-    await fig.getByRole('button', { name: 'Edit figure' }).click()
+    // a new figure opens with its editor open
+    await expect.poll(() => fig.getByRole('button', { name: 'Close editor' }).count()).toBe(1)
     // an array against the grid it is computed on, not the last two cells (a single number against an array)
     await expect.poll(() => fig.getByLabel('Trace 1: y').locator('xpath=ancestor::div[contains(@class,"el-select__wrapper")]').innerText()).toContain('alpha')
     expect(await fig.getByLabel('Trace 1: y').locator('xpath=ancestor::div[contains(@class,"el-select__wrapper")]').innerText()).not.toContain('alpha_max')
