@@ -93,7 +93,7 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
   const dataDir = path.resolve(env.DATA_DIR ?? 'data')
   mkdirSync(dataDir, { recursive: true })
 
-  const handle = openDb(path.join(dataDir, 'penumbra.sqlite'))
+  const handle = openDb(path.join(dataDir, 'penumbra.sqlite'), { backgroundCheckpoints: true })
   const secret = loadSecret(dataDir, env.PENUMBRA_SECRET, warn)
 
   let mailer: Mailer

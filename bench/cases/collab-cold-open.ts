@@ -169,7 +169,7 @@ function copySheet(handle: DbHandle, from: string, to: string, labId: string, us
   handle.db.insert(sheets).values({ id: to, labId, title: SHEET.title, createdBy: userId, createdAt: now, updatedAt: now }).run()
   handle.sqlite.prepare('INSERT INTO sheet_states (sheet_id, state, upto_seq, updated_at) SELECT ?, state, upto_seq, updated_at FROM sheet_states WHERE sheet_id = ?').run(to, from)
   handle.sqlite
-    .prepare('INSERT INTO sheet_updates (sheet_id, "update", user_id, created_at) SELECT ?, "update", user_id, created_at FROM sheet_updates WHERE sheet_id = ? ORDER BY seq')
+    .prepare('INSERT INTO sheet_updates (sheet_id, seq, "update", user_id, created_at) SELECT ?, seq, "update", user_id, created_at FROM sheet_updates WHERE sheet_id = ? ORDER BY seq')
     .run(to, from)
   // Copied rows get new seqs: keep the state row's cover below them, as it was below the originals.
   handle.sqlite.prepare('UPDATE sheet_states SET upto_seq = (SELECT coalesce(min(seq), 1) - 1 FROM sheet_updates WHERE sheet_id = ?) WHERE sheet_id = ?').run(to, to)
@@ -220,8 +220,8 @@ export default async function collabColdOpen(): Promise<ColdOpenReport> {
     // History 2: the whole log on top of the seeded state.
     addSheet('raw-0')
     handle.sqlite.prepare('UPDATE sheet_states SET state = ? WHERE sheet_id = ?').run(Buffer.from(seedState), 'raw-0')
-    const insert = handle.sqlite.prepare('INSERT INTO sheet_updates (sheet_id, "update", user_id, created_at) VALUES (?, ?, ?, ?)')
-    handle.sqlite.transaction(() => updates.forEach((u) => insert.run('raw-0', Buffer.from(u), userId, now)))()
+    const insert = handle.sqlite.prepare('INSERT INTO sheet_updates (sheet_id, seq, "update", user_id, created_at) VALUES (@s, coalesce((SELECT max(seq) FROM sheet_updates WHERE sheet_id = @s), (SELECT upto_seq FROM sheet_states WHERE sheet_id = @s), 0) + 1, @u, @by, @at)')
+    handle.sqlite.transaction(() => updates.forEach((u) => insert.run({ s: 'raw-0', u: Buffer.from(u), by: userId, at: now })))()
     for (let t = 1; t <= TRIALS; t++) {
       copySheet(handle, 'compacted-0', `compacted-${t}`, labId, userId)
       copySheet(handle, 'raw-0', `raw-${t}`, labId, userId)

@@ -121,7 +121,8 @@ async function runChildServer(kind: string): Promise<void> {
   const server = http.createServer((_req, res) => res.writeHead(404).end())
   if (kind === 'real' || kind === 'real-full') {
     // Informational variant 'real-full': an fsync per commit (PENUMBRA_SQLITE_SYNC=FULL), to show what it costs.
-    const handle = openDb(process.env.COLLAB_BENCH_DB!, { durability: kind === 'real-full' ? 'FULL' : 'NORMAL' })
+    // as the server opens its database (server/index.ts)
+    const handle = openDb(process.env.COLLAB_BENCH_DB!, { durability: kind === 'real-full' ? 'FULL' : 'NORMAL', backgroundCheckpoints: true })
     const collab = createCollab({ db: handle.db, secret: Buffer.from(SECRET_HEX, 'hex'), log: () => {} })
     server.on('upgrade', (req, socket, head) => void collab.handleUpgrade(req, socket, head))
     process.on('SIGTERM', () => {

@@ -57,15 +57,15 @@ export function createSqliteStore(db: Db): CollabStore {
   // are better-sqlite3's own (a single row commits on its own): Drizzle's `db.transaction` builds a session object per
   // call, which doubled the time an edit waited before being sent on (bench/cases/collab-latency.ts).
   const sqlite = db.$client
-  const insertRow = db
-    .insert(sheetUpdates)
-    .values({
-      sheetId: sql.placeholder('sheetId'),
-      update: sql.placeholder('update'),
-      userId: sql.placeholder('userId'),
-      createdAt: sql.placeholder('createdAt'),
-    })
-    .prepare()
+  // The seq is assigned in the insert itself, under SQLite's one-writer lock: one more than the sheet's last row, or
+  // than its compacted state when compaction left no rows. `.all()` steps the statement to its end: with `.get()` a
+  // RETURNING insert commits on reset, which skips SQLite's WAL hook and so its automatic checkpoints.
+  const insertRow = sqlite.prepare<{ sheetId: string; update: Buffer; userId: string | null; createdAt: number }, { seq: number }>(
+    `INSERT INTO sheet_updates (sheet_id, seq, "update", user_id, created_at)
+     VALUES (@sheetId, coalesce((SELECT max(seq) FROM sheet_updates WHERE sheet_id = @sheetId), (SELECT upto_seq FROM sheet_states WHERE sheet_id = @sheetId), 0) + 1,
+             @update, @userId, @createdAt)
+     RETURNING seq`,
+  )
   const stateUpto = db.select({ uptoSeq: sheetStates.uptoSeq }).from(sheetStates).where(eq(sheetStates.sheetId, sql.placeholder('sheetId'))).prepare()
   const rowsInRange = db
     .select({ n: count() })
@@ -82,8 +82,7 @@ export function createSqliteStore(db: Db): CollabStore {
     .prepare()
   const deleteCovered = db.delete(sheetUpdates).where(and(eq(sheetUpdates.sheetId, sql.placeholder('sheetId')), lte(sheetUpdates.seq, sql.placeholder('upto')))).prepare()
 
-  const append = (row: PendingRow, createdAt: number) =>
-    Number(insertRow.run({ sheetId: row.sheetId, update: toBuffer(row.update), userId: row.userId, createdAt }).lastInsertRowid)
+  const append = (row: PendingRow, createdAt: number) => insertRow.all({ sheetId: row.sheetId, update: toBuffer(row.update), userId: row.userId, createdAt })[0].seq
   const appendAll = sqlite.transaction((rows: readonly PendingRow[], createdAt: number) => rows.map((row) => append(row, createdAt)))
 
   const compactNow = sqlite.transaction((sheetId: string, state: Uint8Array, prevUptoSeq: number, uptoSeq: number, known: number): CompactOutcome => {

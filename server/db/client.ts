@@ -5,6 +5,7 @@ import { migrate } from 'drizzle-orm/better-sqlite3/migrator'
 import { fileURLToPath } from 'node:url'
 import path from 'node:path'
 import * as schema from './schema'
+import { startCheckpoints } from './checkpoints'
 
 export type Db = BetterSQLite3Database<typeof schema> & { $client: Database.Database }
 export interface DbHandle {
@@ -25,6 +26,11 @@ export interface OpenOptions {
    * loss too, at the price of the disk's flush time on every relayed edit. `PENUMBRA_SQLITE_SYNC=FULL` selects it.
    */
   durability?: Durability
+  /**
+   * Run WAL checkpoints in a worker thread instead of inside the commit that crosses SQLite's mark (checkpoints.ts).
+   * The server's database turns it on; tests and scripts keep SQLite's own.
+   */
+  backgroundCheckpoints?: boolean
 }
 
 function durabilityFromEnv(): Durability {
@@ -39,5 +45,14 @@ export function openDb(file: string, options: OpenOptions = {}): DbHandle {
   sqlite.pragma('busy_timeout = 5000')
   const db = drizzle(sqlite, { schema })
   migrate(db, { migrationsFolder: MIGRATIONS_FOLDER })
-  return { db, sqlite, close: () => sqlite.close() }
+  const checkpoints = options.backgroundCheckpoints && file !== ':memory:' ? startCheckpoints(sqlite, file) : null
+  return {
+    db,
+    sqlite,
+    close: () => {
+      // the worker's connection closes on its own; the last connection to close folds the log into the file
+      void checkpoints?.stop()
+      sqlite.close()
+    },
+  }
 }

@@ -15,7 +15,10 @@ export const users = sqliteTable('users', {
   name: text('name').notNull(),
   passwordHash: text('password_hash').notNull(),
   createdAt: createdAt(),
-  /** Seconds since the epoch: session tokens issued before this (a password reset or change) are refused. */
+  /**
+   * Milliseconds since the epoch: session tokens issued before this (a password reset or change) are refused. Values
+   * below 1e11 were written in seconds by older builds and are read as seconds.
+   */
   sessionsValidFrom: integer('sessions_valid_from', { mode: 'number' }),
 })
 
@@ -92,18 +95,21 @@ export const mails = sqliteTable('mails', {
 
 /**
  * The live document's update log: every accepted Yjs update is appended here, synchronously, before it is relayed.
- * `seq` orders updates within a sheet.
+ * `seq` orders updates within a sheet: one more than the sheet's last row, or than its compacted state's `uptoSeq`
+ * when compaction left no rows (server/collab/store.ts assigns it in the insert itself, so two writers never share
+ * one). The table is keyed by (sheet, seq) and stored WITHOUT ROWID (migration 0005, written by hand: drizzle does not
+ * declare it): an append writes one B-tree page, not a rowid table, an index and the AUTOINCREMENT counter.
  */
 export const sheetUpdates = sqliteTable(
   'sheet_updates',
   {
-    seq: integer('seq').primaryKey({ autoIncrement: true }),
     sheetId: text('sheet_id').notNull().references(() => sheets.id, { onDelete: 'cascade' }),
+    seq: integer('seq').notNull(),
     update: blob('update', { mode: 'buffer' }).notNull(),
     userId: text('user_id'),
     createdAt: createdAt(),
   },
-  (t) => [index('sheet_updates_sheet_idx').on(t.sheetId, t.seq)],
+  (t) => [primaryKey({ columns: [t.sheetId, t.seq] })],
 )
 
 /** The compacted state of a sheet's document: covers every update with seq ≤ `uptoSeq`. */

@@ -143,9 +143,9 @@ export function datasetRoutes(deps: AppDeps): { sheetDatasets: Router; datasets:
     const cellId = String(req.params.cellId)
     const cells = file.cells as SheetCell[]
     if (!cells.some((c) => c.id === cellId)) throw notFound('No such cell in this sheet.')
-    const outcome = await sharedEvaluator().evaluate(JSON.stringify(file), deps.config.evaluate.budgetMs)
+    const outcome = await sharedEvaluator().evaluateText(JSON.stringify(file), deps.config.evaluate.budgetMs)
     if (!outcome.ok) throw new HttpError(422, `The sheet could not be evaluated on the server (${outcome.reason}); download the CSV from the sheet page instead.`)
-    const results = JSON.parse(Buffer.from(outcome.json).toString('utf8')) as EvaluationResult
+    const results = JSON.parse(outcome.text) as EvaluationResult
     const extra = typeof req.query.with === 'string' && req.query.with ? req.query.with.split(',').map((s) => s.trim()).filter(Boolean).slice(0, 20) : []
     let csv: string
     try {

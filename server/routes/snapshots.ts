@@ -135,9 +135,10 @@ export function snapshotRoutes(deps: AppDeps) {
     let bInfo: CompareReply['b']
     if (other === 'live') {
       const file = canonicalJson(liveSheetFile(db, req.sheet!))
-      const results = JSON.parse(await evaluateOnServer(evaluator(), file, deps.config.evaluate.budgetMs)) as EvaluationResult
+      const hash = sha256Hex(file)
+      const results = JSON.parse(await evaluateOnServer(evaluator(), file, deps.config.evaluate.budgetMs, hash)) as EvaluationResult
       b = { cells: (JSON.parse(file) as { cells: CompareSide['cells'] }).cells, results }
-      bInfo = { id: 'live', hash: sha256Hex(file), createdAt: null }
+      bInfo = { id: 'live', hash, createdAt: null }
     } else {
       const row = snapshotById(db, other)
       if (!row || !roleInLab(db, row.labId, req.user!.id)) throw notFound('No such snapshot to compare with, or you are not a member of its lab.')
@@ -229,7 +230,8 @@ export function snapshotRoutes(deps: AppDeps) {
     res.json(guestSnapshot(db, link, snap))
   })
   guest.get('/:token/cells/:cellId/csv', tokenLimit, (req, res) => {
-    const { snapshot: snap } = openGuestLink(db, String(req.params.token))
+    // a download from the page is not another view of it
+    const { snapshot: snap } = openGuestLink(db, String(req.params.token), { countView: false })
     sendCsv(res, snapshotCellCsv(snap, String(req.params.cellId), extraSeries(req.query)))
   })
 

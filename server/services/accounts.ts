@@ -103,7 +103,7 @@ export function updateName(deps: AppDeps, userId: string, name: string): UserRow
 /** Sets a new password and ends every session issued before now. */
 async function setPassword(deps: AppDeps, userId: string, password: string): Promise<void> {
   const passwordHash = await hashPassword(deps.config, password)
-  deps.db.update(users).set({ passwordHash, sessionsValidFrom: Math.floor(Date.now() / 1000) }).where(eq(users.id, userId)).run()
+  deps.db.update(users).set({ passwordHash, sessionsValidFrom: Date.now() }).where(eq(users.id, userId)).run()
   callHook(deps, 'sessionsEnded', userId)
 }
 

@@ -2,7 +2,7 @@
  * A sheet's stored document: a compacted state row plus the update rows after it. The collaboration server appends
  * and compacts; REST export and seeding read and write through here so both see the same document.
  */
-import { asc, and, eq, gt } from 'drizzle-orm'
+import { asc, and, eq, gt, sql } from 'drizzle-orm'
 import * as Y from 'yjs'
 import type { Db } from '../db/client'
 import { sheetStates, sheetUpdates } from '../db/schema'
@@ -18,16 +18,28 @@ export function seedDocument(db: Db, sheetId: string, file: SheetFile): void {
     .run()
 }
 
+function prepareReads(db: Db) {
+  return {
+    state: db.select().from(sheetStates).where(eq(sheetStates.sheetId, sql.placeholder('sheetId'))).prepare(),
+    updates: db
+      .select({ seq: sheetUpdates.seq, update: sheetUpdates.update })
+      .from(sheetUpdates)
+      .where(and(eq(sheetUpdates.sheetId, sql.placeholder('sheetId')), gt(sheetUpdates.seq, sql.placeholder('after'))))
+      .orderBy(asc(sheetUpdates.seq))
+      .prepare(),
+  }
+}
+
+/** The two reads of a stored document, prepared once per database handle (every open and every freeze runs them). */
+const reads = new WeakMap<Db, ReturnType<typeof prepareReads>>()
+
 /** The stored state and the update rows after it, oldest first. */
 export function storedUpdates(db: Db, sheetId: string): { state: Uint8Array | null; uptoSeq: number; updates: { seq: number; update: Uint8Array }[] } {
-  const row = db.select().from(sheetStates).where(eq(sheetStates.sheetId, sheetId)).get()
+  let q = reads.get(db)
+  if (!q) reads.set(db, (q = prepareReads(db)))
+  const row = q.state.get({ sheetId })
   const uptoSeq = row?.uptoSeq ?? 0
-  const updates = db
-    .select({ seq: sheetUpdates.seq, update: sheetUpdates.update })
-    .from(sheetUpdates)
-    .where(and(eq(sheetUpdates.sheetId, sheetId), gt(sheetUpdates.seq, uptoSeq)))
-    .orderBy(asc(sheetUpdates.seq))
-    .all()
+  const updates = q.updates.all({ sheetId, after: uptoSeq })
   return { state: row ? new Uint8Array(row.state) : null, uptoSeq, updates: updates.map((u) => ({ seq: u.seq, update: new Uint8Array(u.update) })) }
 }
 

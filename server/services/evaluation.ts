@@ -7,20 +7,29 @@
 import { Worker } from 'node:worker_threads'
 import type { SchemaIssue } from '../../shared/schema/sheet'
 
+/**
+ * How the result's JSON comes back: UTF-8 bytes handed over without a copy (POST /api/evaluate writes them to the
+ * socket as they are), or the string itself (a snapshot stores the text: structured cloning a string is a copy of
+ * its characters, cheaper than encoding in the worker and decoding again here).
+ */
+export type ResultForm = 'bytes' | 'text'
+
 export interface WorkerRequest {
   id: number
   text: string
+  as: ResultForm
 }
 
 export type WorkerReply =
   | { id: number; kind: 'ready' }
   /** The result object's JSON, UTF-8, exactly as the command-line evaluator prints it (without its newline). */
   | { id: number; kind: 'result'; bytes: Uint8Array }
+  /** The same JSON as a string, when the request asked for text. */
+  | { id: number; kind: 'text'; text: string }
   | { id: number; kind: 'invalid'; issues: SchemaIssue[] }
   | { id: number; kind: 'failed'; message: string }
 
-export type EvaluationOutcome =
-  | { ok: true; json: Uint8Array }
+export type EvaluationFailure =
   | { ok: false; reason: 'invalid'; issues: SchemaIssue[] }
   /** The whole sheet took longer than its budget. */
   | { ok: false; reason: 'timeout'; budgetMs: number }
@@ -29,6 +38,11 @@ export type EvaluationOutcome =
   /** Every worker is taken and the queue is full (or the wait was too long). */
   | { ok: false; reason: 'busy' }
   | { ok: false; reason: 'failed'; message: string }
+
+export type EvaluationOutcome = { ok: true; json: Uint8Array } | EvaluationFailure
+export type TextEvaluationOutcome = { ok: true; text: string } | EvaluationFailure
+/** What a job resolves with: the reply in the form it asked for. */
+type JobOutcome = { ok: true; json: Uint8Array } | { ok: true; text: string } | EvaluationFailure
 
 export interface EvaluatorOptions {
   /** Worker threads evaluating at once. */
@@ -48,9 +62,10 @@ const WORKER_ENTRY = new URL('./evaluation.worker.mjs', import.meta.url)
 interface Job {
   id: number
   text: string
+  as: ResultForm
   budgetMs: number
   queuedAt: number
-  resolve(outcome: EvaluationOutcome): void
+  resolve(outcome: JobOutcome): void
 }
 
 /** One worker thread and the job it is running. */
@@ -83,7 +98,7 @@ class Slot {
           this.finish(job, { ok: false, reason: 'timeout', budgetMs: job.budgetMs })
         }, job.budgetMs)
         this.budgetTimer.unref()
-        this.worker.postMessage({ id: job.id, text: job.text } satisfies WorkerRequest)
+        this.worker.postMessage({ id: job.id, text: job.text, as: job.as } satisfies WorkerRequest)
       },
       (err: Error) => this.finish(job, { ok: false, reason: 'failed', message: `the evaluation worker did not start: ${err.message}` }),
     )
@@ -115,6 +130,7 @@ class Slot {
         const job = this.job
         if (!job || reply.id !== job.id) return
         if (reply.kind === 'result') this.finish(job, { ok: true, json: reply.bytes })
+        else if (reply.kind === 'text') this.finish(job, { ok: true, text: reply.text })
         else if (reply.kind === 'invalid') this.finish(job, { ok: false, reason: 'invalid', issues: reply.issues })
         else this.finish(job, { ok: false, reason: 'failed', message: reply.message })
       })
@@ -132,14 +148,14 @@ class Slot {
   }
 
   /** The thread died on its own: forget it first (the next job starts a new one), then fail the job it had. */
-  private lost(worker: Worker, outcome: EvaluationOutcome): void {
+  private lost(worker: Worker, outcome: EvaluationFailure): void {
     if (this.worker !== worker) return
     this.worker = null
     this.ready = null
     if (this.job) this.finish(this.job, outcome)
   }
 
-  private finish(job: Job, outcome: EvaluationOutcome): void {
+  private finish(job: Job, outcome: JobOutcome): void {
     if (this.job !== job) return
     this.job = null
     if (this.budgetTimer) clearTimeout(this.budgetTimer)
@@ -155,7 +171,10 @@ class Slot {
 
 /** What freezing and comparing need of an evaluator. */
 export interface Evaluator {
+  /** The result as UTF-8 bytes (to send as they are). */
   evaluate(text: string, budgetMs: number): Promise<EvaluationOutcome>
+  /** The result as a string (to store or parse). */
+  evaluateText(text: string, budgetMs: number): Promise<TextEvaluationOutcome>
 }
 
 export class SheetEvaluator implements Evaluator {
@@ -170,11 +189,20 @@ export class SheetEvaluator implements Evaluator {
 
   /** Parses and evaluates a sheet file's text; never rejects. */
   evaluate(text: string, budgetMs: number): Promise<EvaluationOutcome> {
+    return this.enqueue(text, budgetMs, 'bytes') as Promise<EvaluationOutcome>
+  }
+
+  /** The same, with the result's JSON as a string. */
+  evaluateText(text: string, budgetMs: number): Promise<TextEvaluationOutcome> {
+    return this.enqueue(text, budgetMs, 'text') as Promise<TextEvaluationOutcome>
+  }
+
+  private enqueue(text: string, budgetMs: number, as: ResultForm): Promise<JobOutcome> {
     if (this.closed) return Promise.resolve({ ok: false, reason: 'busy' })
     const waiting = this.queue.length + this.slots.filter((s) => s.busy).length - this.slots.length
     if (waiting >= this.options.maxQueue) return Promise.resolve({ ok: false, reason: 'busy' })
     return new Promise((resolve) => {
-      this.queue.push({ id: this.nextId++, text, budgetMs, queuedAt: Date.now(), resolve })
+      this.queue.push({ id: this.nextId++, text, as, budgetMs, queuedAt: Date.now(), resolve })
       this.dispatch()
     })
   }

@@ -18,8 +18,13 @@ port.on('message', (request: WorkerRequest) => {
   try {
     const parsed = parseSheetFileText(request.text)
     if (parsed.ok) {
+      const json = JSON.stringify(evaluateSheet(parsed.value))
+      if (request.as === 'text') {
+        port.postMessage({ id: request.id, kind: 'text', text: json } satisfies WorkerReply)
+        return
+      }
       // encoded here and handed over without a copy, so the main thread does no work proportional to the result
-      const bytes = encoder.encode(JSON.stringify(evaluateSheet(parsed.value)))
+      const bytes = encoder.encode(json)
       port.postMessage({ id: request.id, kind: 'result', bytes } satisfies WorkerReply, [bytes.buffer])
       return
     }

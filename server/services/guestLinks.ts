@@ -59,8 +59,8 @@ export function revokeGuestLink(db: Db, row: GuestLinkRow): void {
   if (row.revokedAt === null) db.update(guestLinks).set({ revokedAt: Date.now() }).where(eq(guestLinks.id, row.id)).run()
 }
 
-/** The usable link for a token (404 unknown, 410 expired or revoked), its view counted. */
-export function openGuestLink(db: Db, token: string): { link: GuestLinkRow; snapshot: SnapshotRow } {
+/** The usable link for a token (404 unknown, 410 expired or revoked), its view counted unless `countView` is false (a download). */
+export function openGuestLink(db: Db, token: string, { countView = true }: { countView?: boolean } = {}): { link: GuestLinkRow; snapshot: SnapshotRow } {
   const link = db.select().from(guestLinks).where(eq(guestLinks.tokenHash, hashToken(token))).get()
   if (!link) throw notFound('This guest link does not exist. Check that it was copied whole.')
   const state = guestLinkState(link)
@@ -68,6 +68,7 @@ export function openGuestLink(db: Db, token: string): { link: GuestLinkRow; snap
   if (state === 'expired') throw gone(`This guest link expired on ${new Date(link.expiresAt).toUTCString()}. Ask the lab that shared it for a new one.`)
   const snapshot = snapshotById(db, link.snapshotId)
   if (!snapshot) throw gone('The snapshot this guest link showed no longer exists.')
+  if (!countView) return { link, snapshot }
   const now = Date.now()
   db.update(guestLinks).set({ viewCount: sql`${guestLinks.viewCount} + 1`, lastViewAt: now }).where(eq(guestLinks.id, link.id)).run()
   return { link: { ...link, viewCount: link.viewCount + 1, lastViewAt: now }, snapshot }

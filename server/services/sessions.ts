@@ -19,19 +19,25 @@ export interface SessionClaims {
   exp: number
   /** Issue time, seconds since the epoch (0 when the token has none). */
   iat: number
+  /**
+   * Issue time in milliseconds (the `ims` claim; from `iat` for tokens signed before it existed): a password change
+   * or reset ends the sessions issued before it to the millisecond, not to the second.
+   */
+  issuedAtMs: number
 }
 
 export type SessionFailure = 'missing' | 'expired' | 'invalid' | 'revoked' | 'unknown-user'
 
 export async function signSession(secret: Uint8Array, userId: string, ttlSeconds = SESSION_TTL_SECONDS) {
   const jti = randomUUID()
-  const exp = Math.floor(Date.now() / 1000) + ttlSeconds
-  const token = await new SignJWT({})
+  const now = Date.now()
+  const exp = Math.floor(now / 1000) + ttlSeconds
+  const token = await new SignJWT({ ims: now })
     .setProtectedHeader({ alg: 'HS256' })
     .setSubject(userId)
     .setJti(jti)
     .setIssuer(ISSUER)
-    .setIssuedAt()
+    .setIssuedAt(Math.floor(now / 1000))
     .setExpirationTime(exp)
     .sign(secret)
   return { token, jti, exp }
@@ -47,7 +53,9 @@ export async function verifySession(
     const { payload } = await jwtVerify(token, secret, { issuer: ISSUER, algorithms: ['HS256'] })
     if (typeof payload.sub !== 'string' || typeof payload.jti !== 'string' || typeof payload.exp !== 'number')
       return { ok: false, reason: 'invalid' }
-    return { ok: true, claims: { userId: payload.sub, jti: payload.jti, exp: payload.exp, iat: typeof payload.iat === 'number' ? payload.iat : 0 } }
+    const iat = typeof payload.iat === 'number' ? payload.iat : 0
+    const issuedAtMs = typeof payload.ims === 'number' && Number.isFinite(payload.ims) ? payload.ims : iat * 1000
+    return { ok: true, claims: { userId: payload.sub, jti: payload.jti, exp: payload.exp, iat, issuedAtMs } }
   } catch (err) {
     return { ok: false, reason: err instanceof joseErrors.JWTExpired ? 'expired' : 'invalid' }
   }
@@ -92,8 +100,12 @@ export async function userForToken(
   if (revoked) return { ok: false, reason: 'revoked' }
   const user = db.select().from(users).where(eq(users.id, claims.userId)).get()
   if (!user) return { ok: false, reason: 'unknown-user' }
-  // a password reset or change ends every session issued before it
-  if (user.sessionsValidFrom != null && claims.iat < user.sessionsValidFrom) return { ok: false, reason: 'revoked' }
+  // a password reset or change ends every session issued before it (to the millisecond; rows written by older builds
+  // hold seconds)
+  if (user.sessionsValidFrom != null) {
+    const validFromMs = user.sessionsValidFrom < 1e11 ? user.sessionsValidFrom * 1000 : user.sessionsValidFrom
+    if (claims.issuedAtMs < validFromMs) return { ok: false, reason: 'revoked' }
+  }
   return { ok: true, user: { id: user.id, email: user.email, name: user.name, jti: claims.jti, exp: claims.exp } }
 }
 

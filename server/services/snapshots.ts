@@ -4,7 +4,7 @@
  * restore them into a new sheet, and delete them (owners, when nothing uses them). Nothing here updates a snapshot.
  */
 import { createHash } from 'node:crypto'
-import { and, count, desc, eq, gt, isNull } from 'drizzle-orm'
+import { and, count, desc, eq, gt, isNull, sql } from 'drizzle-orm'
 import * as Y from 'yjs'
 import type { AppDeps } from '../deps'
 import type { AppConfig } from '../config'
@@ -39,10 +39,52 @@ export function liveSheetFile(db: Db, sheet: Pick<SheetRow, 'id' | 'labId' | 'ti
   return inlineDatasets(db, { ...docToSheetFile(doc), title: sheet.title }, sheet.labId)
 }
 
-/** Evaluates a sheet file's text with the server's engine (the evaluation worker): the result object's JSON text. */
-export async function evaluateOnServer(evaluator: Evaluator, text: string, budgetMs: number): Promise<string> {
-  const outcome = await evaluator.evaluate(text, budgetMs)
-  if (outcome.ok) return Buffer.from(outcome.json.buffer, outcome.json.byteOffset, outcome.json.byteLength).toString('utf8')
+/**
+ * Result texts this process computed lately, per evaluator, by the SHA-256 of the canonical sheet file they were
+ * computed from: the engine is deterministic, so the same file gives the same text, and freezing right after the
+ * live sheet was compared (or freezing twice without an edit) needs no second evaluation. Bounded by characters.
+ */
+const MEMO_MAX_CHARS = 8_000_000
+const MEMO_MAX_ENTRIES = 16
+const memos = new WeakMap<Evaluator, Map<string, string>>()
+
+function memoOf(evaluator: Evaluator): Map<string, string> {
+  let memo = memos.get(evaluator)
+  if (!memo) memos.set(evaluator, (memo = new Map()))
+  return memo
+}
+
+function remember(memo: Map<string, string>, hash: string, results: string): void {
+  // a cell stopped by its time budget might finish another time: such a result is not reused
+  if (results.length > MEMO_MAX_CHARS || results.includes('budget for one cell and was stopped')) return
+  memo.set(hash, results)
+  let chars = 0
+  for (const r of memo.values()) chars += r.length
+  for (const [key, r] of memo) {
+    if (chars <= MEMO_MAX_CHARS && memo.size <= MEMO_MAX_ENTRIES) break
+    memo.delete(key) // oldest first: a Map iterates in insertion order
+    chars -= r.length
+  }
+}
+
+/**
+ * Evaluates a canonical sheet file's text with the server's engine (the evaluation worker): the result object's
+ * JSON text. `hash` is the text's SHA-256 (the caller has it already); a result computed from the same text lately
+ * is reused.
+ */
+export async function evaluateOnServer(evaluator: Evaluator, text: string, budgetMs: number, hash: string = sha256Hex(text)): Promise<string> {
+  const memo = memoOf(evaluator)
+  const known = memo.get(hash)
+  if (known !== undefined) {
+    memo.delete(hash)
+    memo.set(hash, known) // most recently used last
+    return known
+  }
+  const outcome = await evaluator.evaluateText(text, budgetMs)
+  if (outcome.ok) {
+    remember(memo, hash, outcome.text)
+    return outcome.text
+  }
   switch (outcome.reason) {
     case 'invalid':
       throw new HttpError(422, `The sheet cannot be evaluated as it is: ${outcome.issues.map((i) => `${i.path || '(sheet)'} ${i.message}`).join('; ')}. Fix it and freeze again.`)
@@ -63,10 +105,14 @@ export async function evaluateOnServer(evaluator: Evaluator, text: string, budge
  * demo seed at start, where starting a worker thread costs more than the sheets it evaluates.
  */
 export const inProcessEvaluator: Evaluator = {
-  evaluate(text) {
+  async evaluate(text, budgetMs) {
+    const outcome = await this.evaluateText(text, budgetMs)
+    return outcome.ok ? { ok: true, json: new TextEncoder().encode(outcome.text) } : outcome
+  },
+  evaluateText(text) {
     const parsed = parseSheetFileText(text)
     if (!parsed.ok) return Promise.resolve({ ok: false, reason: 'invalid', issues: parsed.issues })
-    return Promise.resolve({ ok: true, json: new TextEncoder().encode(JSON.stringify(evaluateSheet(parsed.value))) })
+    return Promise.resolve({ ok: true, text: JSON.stringify(evaluateSheet(parsed.value)) })
   },
 }
 
@@ -78,12 +124,13 @@ export interface FreezeOptions {
 /** Freezes the sheet's live document as a new snapshot. */
 export async function freezeSnapshot(deps: { db: Db; config: Pick<AppConfig, 'evaluate'> }, sheet: SheetRow, userId: string, message: string, options: FreezeOptions = {}): Promise<SnapshotRow> {
   const doc = loadDocument(deps.db, sheet.id)
-  const docState = Buffer.from(Y.encodeStateAsUpdate(doc))
   const file = canonicalJson(liveSheetFile(deps.db, sheet, doc))
+  const hash = sha256Hex(file)
+  // the worker evaluates while this thread encodes the document's state
+  const evaluation = evaluateOnServer(options.evaluator ?? sharedEvaluator(), file, deps.config.evaluate.budgetMs, hash)
+  const docState = Buffer.from(Y.encodeStateAsUpdate(doc))
   doc.destroy()
-  const results = await evaluateOnServer(options.evaluator ?? sharedEvaluator(), file, deps.config.evaluate.budgetMs)
-  // the worker runs this build's engine; its version is the last member of the result object
-  const engineVersion = /"engine":"([^"]*)"\}$/.exec(results)?.[1] ?? ENGINE_VERSION
+  const results = await evaluation
   const row: SnapshotRow = {
     id: newId(),
     sheetId: sheet.id,
@@ -91,14 +138,43 @@ export async function freezeSnapshot(deps: { db: Db; config: Pick<AppConfig, 'ev
     docState,
     file,
     results,
-    engineVersion,
-    hash: sha256Hex(file),
+    engineVersion: engineVersionOf(results),
+    hash,
     message,
     createdBy: userId,
     createdAt: options.now ?? Date.now(),
   }
-  deps.db.insert(snapshots).values(row).run()
+  insertStatement(deps.db).run(row)
   return row
+}
+
+/** The engine version a result text names: its last member, `"engine":"…"}` (the worker runs this build's engine). */
+function engineVersionOf(results: string): string {
+  const at = results.lastIndexOf('"engine":"')
+  const end = results.length - 2
+  if (at < 0 || !results.endsWith('"}')) return ENGINE_VERSION
+  const version = results.slice(at + '"engine":"'.length, end)
+  return version.includes('"') ? ENGINE_VERSION : version
+}
+
+/** The snapshot insert, prepared once per database handle (a freeze builds no SQL). */
+const inserts = new WeakMap<Db, ReturnType<typeof prepareInsert>>()
+
+function prepareInsert(db: Db) {
+  const p = (name: keyof SnapshotRow) => sql.placeholder(name)
+  return db
+    .insert(snapshots)
+    .values({
+      id: p('id'), sheetId: p('sheetId'), labId: p('labId'), docState: p('docState'), file: p('file'), results: p('results'),
+      engineVersion: p('engineVersion'), hash: p('hash'), message: p('message'), createdBy: p('createdBy'), createdAt: p('createdAt'),
+    })
+    .prepare()
+}
+
+function insertStatement(db: Db): ReturnType<typeof prepareInsert> {
+  let statement = inserts.get(db)
+  if (!statement) inserts.set(db, (statement = prepareInsert(db)))
+  return statement
 }
 
 export function snapshotById(db: Db, id: string): SnapshotRow | undefined {

@@ -44,9 +44,16 @@ export function downloadSnapshotFile(snapshot: { id: string; hash: string; title
   return download(`/api/snapshots/${seg(snapshot.id)}/file`, `${safe(snapshot.title)}-${snapshot.hash.slice(0, 10)}.penumbra.json`)
 }
 
-/** Downloads one cell's series of a snapshot as CSV (an array, a spectrum's columns, a sweep's table, a fit's residuals). */
-export function downloadSeriesCsv(snapshot: { id: string; hash: string }, cell: { id: string; name?: string }): Promise<string> {
-  return download(`/api/snapshots/${seg(snapshot.id)}/cells/${seg(cell.id)}/csv`, `${safe(cell.name ?? 'series')}-${snapshot.hash.slice(0, 10)}.csv`)
+/** A snapshot as its reader reaches it: a member by its id, a guest by the guest link's token. */
+export type SnapshotSource = { id: string; hash: string } | { token: string; hash: string }
+
+/**
+ * Downloads one cell's series of a snapshot as CSV (an array, a spectrum's columns, a sweep's table, a figure's
+ * traces, a fit's residuals), written by the server from the stored results.
+ */
+export function downloadSeriesCsv(source: SnapshotSource, cell: { id: string; name?: string }): Promise<string> {
+  const base = 'token' in source ? `/api/guest/${seg(source.token)}` : `/api/snapshots/${seg(source.id)}`
+  return download(`${base}/cells/${seg(cell.id)}/csv`, `${safe(cell.name ?? 'series')}-${source.hash.slice(0, 10)}.csv`)
 }
 
 /** Makes a new sheet in the same lab from the snapshot's file. */

@@ -12,6 +12,7 @@
  */
 import { onScopeDispose, ref, shallowRef, watch, type Ref } from 'vue'
 import type { Config, Data, Layout } from 'plotly.js-dist-min'
+import { mark } from '@/lib/marks'
 
 type PlotlyModule = typeof import('plotly.js-dist-min').default
 
@@ -103,7 +104,11 @@ function message(err: unknown): string {
   return text.replace(/[.\s]+$/, '')
 }
 
-export function usePlot(target: Ref<HTMLElement | null | undefined>, spec: Ref<PlotSpec | null>) {
+/**
+ * `eager`: draw as soon as the page has painted, wherever the figure is (a page made to be printed, whose figures
+ * must all be drawn before the print dialog takes its picture).
+ */
+export function usePlot(target: Ref<HTMLElement | null | undefined>, spec: Ref<PlotSpec | null>, options: { eager?: boolean } = {}) {
   const state = ref<PlotState>('loading')
   const error = ref<string | null>(null)
   const plotly = shallowRef<PlotlyModule | null>(null)
@@ -129,7 +134,8 @@ export function usePlot(target: Ref<HTMLElement | null | undefined>, spec: Ref<P
       stopWatching?.()
       stopWatching = null
       if (!el) return
-      void whenNear(el, (stop) => (stopWatching = stop)).then(() => {
+      const near = options.eager ? Promise.resolve() : whenNear(el, (stop) => (stopWatching = stop))
+      void near.then(() => {
         if (asked || disposed) return
         asked = true
         afterFirstPaint()
@@ -137,6 +143,7 @@ export function usePlot(target: Ref<HTMLElement | null | undefined>, spec: Ref<P
           .then(
             (m) => {
               if (disposed || !m) return
+              mark('pn:plotly-ready')
               plotly.value = m
             },
             (err) => {
@@ -184,6 +191,7 @@ export function usePlot(target: Ref<HTMLElement | null | undefined>, spec: Ref<P
       await P.react(el, s.data, w ? { ...layout, width: w } : layout, { ...BASE_CONFIG, ...s.config })
       if (drawn !== el) observe(el)
       drawn = el
+      mark('pn:first-figure')
       state.value = 'ready'
       error.value = null
     } catch (err) {

@@ -4,6 +4,7 @@
  * No websocket, no worker: the results are the ones the server stored when the snapshot was frozen.
  */
 import { onScopeDispose, ref, shallowRef, type Component } from 'vue'
+import { ElMessage } from 'element-plus'
 import * as Y from 'yjs'
 import { Awareness } from 'y-protocols/awareness'
 import type { WebsocketProvider } from 'y-websocket'
@@ -17,6 +18,7 @@ import { buildVocabulary } from '@/components/cells/formulaLanguage'
 import type { SheetContext } from '@/components/sheet/sheetContext'
 import { createCardEditors } from '@/components/sheet/cardEditors'
 import { NO_PENDING_EDITS } from '@/lib/localCopyPending'
+import { messageOf } from '@/api/client'
 
 /** Matches stored results to cells: by id where the result carries one, otherwise by position. */
 export function resultsById(cells: readonly SheetCell[], results: readonly { index: number; id?: string }[]): Record<string, CellResult> {
@@ -71,12 +73,21 @@ function staticDoc(file: SheetFile): SheetDoc {
   }
 }
 
-/**
- * Fills the sheet store with a snapshot's cells and stored results and returns the context the cards need.
- * `cellAddon` is drawn in every card's header (the comment badge).
- */
-export function useStaticSheet(file: SheetFile, results: readonly { index: number; id?: string }[], options: { cellAddon?: Component } = {}) {
+/** What the snapshot's page adds to its read-only cards. */
+export interface StaticSheetOptions {
+  /** Drawn in every card's header (the comment badge). */
+  cellAddon?: Component
+  /**
+   * Downloads a cell's series as CSV from the stored results (the snapshot's or the guest link's route). Without it
+   * the cards offer no CSV button.
+   */
+  downloadCsv?: (cell: SheetCell) => Promise<unknown>
+}
+
+/** Fills the sheet store with a snapshot's cells and stored results and returns the context the cards need. */
+export function useStaticSheet(file: SheetFile, results: readonly { index: number; id?: string }[], options: StaticSheetOptions = {}) {
   const store = useSheetStore()
+  const { downloadCsv } = options
   const sheet = staticDoc(file)
   const cells = sheet.cells.toArray().map(mapToCell)
   store.setCells(cells)
@@ -98,7 +109,10 @@ export function useStaticSheet(file: SheetFile, results: readonly { index: numbe
       addAfter: () => undefined,
       edit: () => undefined,
       replaceData: () => undefined,
-      downloadCsv: () => undefined,
+      downloadCsv: downloadCsv && ((cellId: string) => {
+        const cell = cells.find((c) => c.id === cellId)
+        if (cell) downloadCsv(cell).catch((err: unknown) => ElMessage.error(messageOf(err)))
+      }),
     },
     editors: createCardEditors(),
     cellAddon: options.cellAddon,

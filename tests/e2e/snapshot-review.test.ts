@@ -4,10 +4,11 @@
  * and asks for changes; the editor answers, edits, freezes again and the reviewer approves; the owner makes a guest
  * link, a signed-out browser opens it and sees the figure, then sees that it was revoked once the owner revokes it.
  */
+import { readFileSync } from 'node:fs'
 import { describe, expect, it } from 'vitest'
 import type { Page } from 'playwright-core'
 import { DEMO, signIn, useBrowserSuite } from '../utils/browser'
-import { card, sheetPage } from '../utils/sheetPage'
+import { card, demoLabId, sheetPage } from '../utils/sheetPage'
 
 const e2e = useBrowserSuite()
 const { createSheet, openLive } = sheetPage(() => e2e.server)
@@ -37,6 +38,13 @@ async function freeze(page: Page, message: string): Promise<string> {
   await page.waitForURL(/\/snapshots\/[^/]+$/, { timeout: 20_000 })
   await expect.poll(() => page.getByTestId('snapshot-message').textContent()).toContain(message)
   return new URL(page.url()).pathname
+}
+
+/** Clicks a card's CSV button; resolves with the downloaded file's name and its lines. */
+async function cardCsv(page: Page, name: string): Promise<{ file: string; lines: string[] }> {
+  const [download] = await Promise.all([page.waitForEvent('download', { timeout: 30_000 }), card(page, name).getByTestId('download-csv').click()])
+  const path = await download.path()
+  return { file: download.suggestedFilename(), lines: readFileSync(path, 'utf8').trim().split(/\r?\n/) }
 }
 
 async function askForReview(page: Page, reviewer: string, note: string): Promise<void> {
@@ -103,6 +111,11 @@ describe('snapshots, review and guest links in the browser', () => {
     const second = await freeze(editor.page, 'corrected window')
     // a decision binds to its snapshot: the new one starts unreviewed
     expect(await editor.page.getByTestId('snapshot-state').textContent()).toBe('not reviewed')
+    // a card's CSV on the snapshot page is that cell's series from the stored results (121 grid points and a header)
+    const grid = await cardCsv(editor.page, 'E')
+    expect(grid.file).toBe('Film K-2 edge - E.csv')
+    expect(grid.lines[0]).toBe('E (eV)')
+    expect(grid.lines).toHaveLength(122)
     await askForReview(editor.page, DEMO.reviewer.name, 'Corrected as asked.')
     await decide(reviewer.page, second, 'Approve', 'Looks right now.')
 
@@ -121,11 +134,44 @@ describe('snapshots, review and guest links in the browser', () => {
     await expect.poll(() => guest.page.getByTestId('snapshot-message').textContent(), { timeout: 20_000 }).toContain('corrected window')
     await expect.poll(() => card(guest.page, 'fig_alpha').locator('.js-plotly-plot').count(), { timeout: 30_000 }).toBe(1)
     expect(await guest.page.getByText('Film K-2 edge').count()).toBeGreaterThan(0)
+    // the guest downloads a card's series through the link: alpha on the grid its figure draws it against
+    const alpha = await cardCsv(guest.page, 'alpha')
+    expect(alpha.file).toBe('Film K-2 edge - alpha.csv')
+    expect(alpha.lines[0]).toBe('E (eV),alpha (1/cm)')
+    expect(alpha.lines).toHaveLength(122)
 
     await owner.page.getByRole('button', { name: 'Revoke' }).click()
     await owner.page.getByRole('dialog', { name: 'Revoke guest link' }).getByRole('button', { name: 'Revoke' }).click()
     await expect.poll(() => owner.page.getByTestId('guest-link-state').first().textContent(), { timeout: 15_000 }).toBe('revoked')
     await guest.page.reload()
     await expect.poll(() => guest.page.getByTestId('guest-gone').textContent(), { timeout: 15_000 }).toContain('revoked')
+  })
+
+  it('prints the review report of a demo snapshot with every figure drawn, without scrolling to them first', async () => {
+    const base = e2e.server.url
+    const owner = await e2e.newBrowser({ label: 'owner' })
+    await signIn(owner.page, base, DEMO.owner)
+    const labId = await demoLabId(owner.page, base)
+    const sheets = (await (await owner.page.request.get(`${base}/api/labs/${labId}/sheets`)).json()) as { sheets: { id: string; title: string }[] }
+    const sheet = sheets.sheets.find((x) => x.title.startsWith('Film H-17'))!
+    const snaps = (await (await owner.page.request.get(`${base}/api/sheets/${sheet.id}/snapshots`)).json()) as { snapshots: { id: string; hash: string }[] }
+    expect(snaps.snapshots.length).toBeGreaterThan(0)
+    const snap = snaps.snapshots[0]
+    await owner.page.goto(`${base}/sheets/${sheet.id}/snapshots/${snap.id}/report`)
+    const report = owner.page.locator('.report')
+    await expect.poll(() => report.locator('h1').count(), { timeout: 20_000 }).toBe(1)
+    expect(await report.innerText()).toContain(snap.hash)
+    // every figure of the report draws at once, however far down the page it sits
+    const figures = report.locator('figure.figure')
+    const n = await figures.count()
+    expect(n).toBeGreaterThan(0)
+    await expect.poll(() => report.locator('figure.figure .main-svg').count(), { timeout: 60_000 }).toBeGreaterThanOrEqual(n)
+    expect(await report.getByText('Loading the charting library').count()).toBe(0)
+    // printed: the page's own toolbar is left out, and the PDF holds pages
+    await owner.page.emulateMedia({ media: 'print' })
+    expect(await report.locator('.no-print').first().isVisible()).toBe(false)
+    const pdf = await owner.page.pdf({ format: 'A4' })
+    expect(pdf.subarray(0, 5).toString('latin1')).toBe('%PDF-')
+    expect(pdf.length).toBeGreaterThan(20_000)
   })
 })

@@ -65,7 +65,8 @@ async function visit(page: Page, url: string, scroll: boolean): Promise<void> {
   // the app has rendered something of its own
   await expect.poll(() => page.locator('body *').count(), { timeout: 15_000 }).toBeGreaterThan(0)
   if (scroll) {
-    await expect.poll(() => page.locator('.pn-cell').count(), { timeout: 30_000 }).toBeGreaterThan(0)
+    // a sheet's or snapshot's cards, a comparison's figures, a report
+    await expect.poll(() => page.locator('.pn-cell, .pn-plot, .report h1').count(), { timeout: 30_000 }).toBeGreaterThan(0)
     // every card built, then every figure brought near the viewport so it draws
     for (let i = 0; i < 12; i++) {
       await page.mouse.wheel(0, 2500)
@@ -117,6 +118,28 @@ describe('no page leads outside the app', () => {
     const reset = await pathOf(DEMO.viewer.email, /./, /^\/reset\//)
     expect((await readMailbox(base)).length).toBeGreaterThan(0)
 
+    // the review side: a seeded snapshot of a demo sheet (its timeline, page, comparison with the live sheet and with
+    // an earlier snapshot, printable report) and a guest link made to it now
+    let snapshotPages: { path: string; scroll?: boolean }[] = []
+    let guestLink = ''
+    for (const s of sheets) {
+      const snaps = ((await (await setup.page.request.get(`${base}/api/sheets/${s.id}/snapshots`)).json()) as { snapshots: { id: string }[] }).snapshots
+      if (snaps.length === 0) continue
+      const [newest, older] = snaps
+      snapshotPages = [
+        { path: `/sheets/${s.id}/snapshots` },
+        { path: `/sheets/${s.id}/snapshots/${newest.id}`, scroll: true },
+        { path: `/sheets/${s.id}/snapshots/${newest.id}/compare/live`, scroll: true },
+        ...(older ? [{ path: `/sheets/${s.id}/snapshots/${newest.id}/compare/${older.id}`, scroll: true }] : []),
+        { path: `/sheets/${s.id}/snapshots/${newest.id}/report`, scroll: true },
+      ]
+      const res = await setup.page.request.post(`${base}/api/snapshots/${newest.id}/guest-links`, { data: { expiresInDays: 7, note: 'outside check' }, headers: { [CSRF_HEADER]: '1' } })
+      expect(res.status(), await res.text()).toBe(201)
+      guestLink = new URL(((await res.json()) as { url: string }).url, base).pathname
+      break
+    }
+    expect(snapshotPages.length, 'a demo sheet with a snapshot').toBeGreaterThan(0)
+
     const open = [
       { path: '/sign-in' },
       { path: '/sign-up' },
@@ -124,6 +147,7 @@ describe('no page leads outside the app', () => {
       { path: reset },
       { path: confirm },
       { path: invitation },
+      { path: guestLink, scroll: true },
       { path: '/help' },
       { path: '/dev/mail' },
       { path: '/no-such-page' },
@@ -139,6 +163,8 @@ describe('no page leads outside the app', () => {
         { path: '/labs' },
         { path: `/labs/${labId}` },
         ...sheets.map((s) => ({ path: `/sheets/${s.id}`, scroll: true })),
+        { path: `/labs/${labId}/reviews` },
+        ...snapshotPages,
         { path: '/profile' },
         { path: '/help' },
         { path: invitation },

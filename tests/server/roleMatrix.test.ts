@@ -239,6 +239,8 @@ const SNAPSHOT_ROUTES: { route: string; send: SnapSend; expect: Expect7 }[] = [
   { route: 'GET /api/guest/:token/cells/:cellId/csv', send: (c) => as(c).get(`/api/guest/${encodeURIComponent(c.token)}/cells/grid-E/csv`), expect: [200, 200, 200, 200, 200, 200, 200] },
   { route: 'GET /api/guest/:revokedToken', send: (c) => as(c).get(`/api/guest/${encodeURIComponent(c.revokedToken)}`), expect: [410, 410, 410, 410, 410, 410, 410] },
   { route: 'GET /api/guest/:unknownToken', send: (c) => as(c).get('/api/guest/not-a-real-token-0123456789'), expect: [404, 404, 404, 404, 404, 404, 404] },
+  { route: 'GET /api/guest/:revokedToken/cells/:cellId/csv', send: (c) => as(c).get(`/api/guest/${encodeURIComponent(c.revokedToken)}/cells/grid-E/csv`), expect: [410, 410, 410, 410, 410, 410, 410] },
+  { route: 'GET /api/guest/:unknownToken/cells/:cellId/csv', send: (c) => as(c).get('/api/guest/not-a-real-token-0123456789/cells/grid-E/csv'), expect: [404, 404, 404, 404, 404, 404, 404] },
 ]
 
 describe('role matrix: snapshots, reviews, comments, guest links', () => {

@@ -283,7 +283,7 @@ describe('GET /api/labs/:labId/sheets', () => {
     const t = makeTestApp()
     const lab = await seedLab(t)
     const later = Date.now() + 60_000
-    t.handle.sqlite.prepare('insert into sheet_updates (sheet_id, "update", user_id, created_at) values (?, ?, ?, ?)').run(lab.editorSheetId, Buffer.from([0, 0]), lab.users.editor.id, later)
+    t.handle.sqlite.prepare('insert into sheet_updates (sheet_id, seq, "update", user_id, created_at) values (@s, coalesce((select max(seq) from sheet_updates where sheet_id = @s), (select upto_seq from sheet_states where sheet_id = @s), 0) + 1, @u, @by, @at)').run({ s: lab.editorSheetId, u: Buffer.from([0, 0]), by: lab.users.editor.id, at: later })
     const list = (await call(t, lab.users.viewer.cookie).get(`/api/labs/${lab.labId}/sheets`)).body.sheets
     expect(list.map((s: { id: string }) => s.id)).toEqual([lab.editorSheetId, lab.ownerSheetId])
     expect(list[0].updatedAt).toBe(later)

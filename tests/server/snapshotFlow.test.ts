@@ -241,6 +241,38 @@ describe('GET /api/guest/:token', () => {
     t.close()
   })
 
+  it('GET /api/guest/:token/cells/:cellId/csv writes a cell of that snapshot only, counts no view, and answers 410 once the link is expired or revoked', async () => {
+    const { t, lab, freeze, edit } = await setup()
+    const a = await freeze('editor', 'shared')
+    edit((cells) => {
+      cells.push({ id: 'f-later', kind: 'formula', name: 'later', source: 'grid(1*eV, 2*eV, 5)', unit: 'eV' })
+    })
+    const b = await freeze('editor', 'not shared')
+    const made = await call(t, lab.users.owner.cookie).post(`/api/snapshots/${a}/guest-links`, { expiresInDays: 7 })
+    const token = made.body.url.split('/').pop()
+    const res = await call(t).get(`/api/guest/${token}/cells/f-E/csv`)
+    expect(res.status).toBe(200)
+    expect(res.headers['content-type']).toMatch(/^text\/csv/)
+    expect(res.headers['x-robots-tag']).toContain('noindex')
+    expect(res.headers['referrer-policy']).toBe('no-referrer')
+    // the same file as the members' download of that snapshot's cell
+    expect(res.text).toBe((await call(t, lab.users.viewer.cookie).get(`/api/snapshots/${a}/cells/f-E/csv`)).text)
+    // a cell that exists only in snapshot B (and the live sheet) is not in what the link shows
+    expect((await call(t, lab.users.viewer.cookie).get(`/api/snapshots/${b}/cells/f-later/csv`)).status).toBe(200)
+    expect((await call(t).get(`/api/guest/${token}/cells/f-later/csv`)).status).toBe(404)
+    // downloads are not page views
+    expect((await call(t, lab.users.viewer.cookie).get(`/api/snapshots/${a}/guest-links`)).body.links[0].viewCount).toBe(0)
+    const expired = createGuestLink(t.deps, snapshotById(t.db, a)!, lab.users.owner.id, { expiresInDays: 1, note: '', now: Date.now() - 2 * 86_400_000 })
+    const old = await call(t).get(`/api/guest/${expired.url.split('/').pop()}/cells/f-E/csv`)
+    expect(old.status).toBe(410)
+    expect(old.body.error).toMatch(/^This guest link expired on /)
+    expect((await call(t, lab.users.owner.cookie).del(`/api/guest-links/${made.body.id}`)).status).toBe(204)
+    const revoked = await call(t).get(`/api/guest/${token}/cells/f-E/csv`)
+    expect(revoked.status).toBe(410)
+    expect(revoked.body.error).toBe('This guest link was revoked by the lab that shared it. Ask them for a new one.')
+    t.close()
+  })
+
   it('refuses an expiry outside 1 to 90 days with 400 naming the field', async () => {
     const { t, lab, freeze } = await setup()
     const id = await freeze('editor', 'shared')

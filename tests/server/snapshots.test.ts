@@ -8,15 +8,19 @@ import { createSheet } from '../../server/services/sheets'
 import { parseSheetFileText } from '../../shared/schema/sheet'
 import { snapshotReply, snapshotSummarySchema, snapshotsReply } from '../../shared/schema/api'
 import { canonicalJson } from '../../shared/snapshot/canonical'
+import { freezeSnapshot, inProcessEvaluator } from '../../server/services/snapshots'
+import type { Evaluator } from '../../server/services/evaluation'
+import type { SheetRow } from '../../server/types'
+import { ENGINE_VERSION } from '../../shared/engine/index'
 
 const EXAMPLE = path.resolve(__dirname, '../../examples/edge-model.penumbra.json')
 
-export async function labWithEdgeSheet(t: TestApp): Promise<{ lab: SeededLab; sheetId: string }> {
+export async function labWithEdgeSheet(t: TestApp): Promise<{ lab: SeededLab; sheetId: string; sheet: SheetRow }> {
   const lab = await seedLab(t)
   const parsed = parseSheetFileText(readFileSync(EXAMPLE, 'utf8'))
   if (!parsed.ok) throw new Error('the example does not parse')
   const sheet = createSheet(t.deps, lab.labId, lab.users.editor.id, parsed.value)
-  return { lab, sheetId: sheet.id }
+  return { lab, sheetId: sheet.id, sheet }
 }
 
 describe('POST /api/sheets/:sheetId/snapshots', () => {
@@ -44,6 +48,65 @@ describe('POST /api/sheets/:sheetId/snapshots', () => {
     const res = await call(t, lab.users.editor.cookie).post(`/api/sheets/${sheetId}/snapshots`, { message: ' ' })
     expect(res.status).toBe(400)
     expect(res.body.issues[0]).toMatchObject({ path: 'message' })
+    t.close()
+  })
+})
+
+describe('freezeSnapshot(deps, sheet, userId, message, { evaluator })', () => {
+  /** The in-process evaluator, counting the texts it is asked to evaluate. */
+  function countingEvaluator(): Evaluator & { asked: string[] } {
+    const asked: string[] = []
+    return {
+      asked,
+      evaluate: (text, budgetMs) => inProcessEvaluator.evaluate(text, budgetMs),
+      evaluateText: (text, budgetMs) => {
+        asked.push(text)
+        return inProcessEvaluator.evaluateText(text, budgetMs)
+      },
+    }
+  }
+
+  it('reuses the result computed for the same document state, and evaluates again after an edit, storing the same text either way', async () => {
+    const t = makeTestApp()
+    const { lab, sheet } = await labWithEdgeSheet(t)
+    const evaluator = countingEvaluator()
+    const first = await freezeSnapshot(t.deps, sheet, lab.users.editor.id, 'first', { evaluator })
+    const again = await freezeSnapshot(t.deps, sheet, lab.users.editor.id, 'again, unchanged', { evaluator })
+    expect(evaluator.asked).toHaveLength(1)
+    expect(again.hash).toBe(first.hash)
+    expect(again.results).toBe(first.results)
+    // the stored text is what a fresh evaluation of that file gives, bit for bit
+    const fresh = await inProcessEvaluator.evaluateText(first.file, 10_000)
+    expect(fresh.ok && fresh.text).toBe(first.results)
+    expect(first.engineVersion).toBe(ENGINE_VERSION)
+    const renamed = await freezeSnapshot(t.deps, { ...sheet, title: 'Film H-17, renamed' }, lab.users.editor.id, 'renamed', { evaluator })
+    expect(evaluator.asked).toHaveLength(2)
+    expect(renamed.hash).not.toBe(first.hash)
+    // another evaluator keeps its own results
+    const other = countingEvaluator()
+    await freezeSnapshot(t.deps, sheet, lab.users.editor.id, 'other evaluator', { evaluator: other })
+    expect(other.asked).toHaveLength(1)
+    t.close()
+  })
+
+  it('does not reuse a result in which a cell ran out of its time budget', async () => {
+    const t = makeTestApp()
+    const { lab, sheet } = await labWithEdgeSheet(t)
+    let calls = 0
+    const slow: Evaluator = {
+      evaluate: () => Promise.reject(new Error('not used')),
+      evaluateText: async (text, budgetMs) => {
+        calls++
+        const outcome = await inProcessEvaluator.evaluateText(text, budgetMs)
+        if (!outcome.ok) return outcome
+        const results = JSON.parse(outcome.text) as { cells: { status: string; error?: string }[] }
+        results.cells[0] = { ...results.cells[0], status: 'error', error: 'evaluation took longer than the 3 s budget for one cell and was stopped; use shorter grids' }
+        return { ok: true, text: JSON.stringify(results) }
+      },
+    }
+    await freezeSnapshot(t.deps, sheet, lab.users.editor.id, 'slow', { evaluator: slow })
+    await freezeSnapshot(t.deps, sheet, lab.users.editor.id, 'slow again', { evaluator: slow })
+    expect(calls).toBe(2)
     t.close()
   })
 })
