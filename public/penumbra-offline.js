@@ -6,7 +6,8 @@
  * - /assets/… (hashed, never change): kept the first time they are fetched, then served from here;
  * - GET /api/auth/me and GET /api/sheets/<id>: the server's answer, else the last successful answer kept, so a sheet
  *   page reloaded while the server is away knows who is signed in and which sheet it is, and opens the sheet from the
- *   copy kept in the browser. A 401, 403 or 404 from the server drops the kept answer.
+ *   copy kept in the browser. A 401, 403 or 404 from the server drops the kept answer, and so does "nobody is signed
+ *   in" (GET /api/auth/me → 200 { user: null }): only a signed-in answer is kept.
  * Nothing else is touched: edits travel over the websocket, other API calls fail as usual when the server is away.
  * Signing out deletes the kept answers (cache `penumbra:answers`); the page cache holds no personal data.
  */
@@ -51,7 +52,7 @@ self.addEventListener('message', (event) => {
         if (typeof path !== 'string' || !REMEMBERED.test(path)) continue
         try {
           const res = await fetch(path, { credentials: 'same-origin', headers: { Accept: 'application/json' } })
-          if (res.ok) await answers.put(path, res)
+          await remember(answers, path, res)
         } catch {
           // kept the next time the page asks
         }
@@ -59,6 +60,24 @@ self.addEventListener('message', (event) => {
     })(),
   )
 })
+
+/**
+ * Keeps a successful answer (a copy: `res` stays readable), except "nobody is signed in", which drops the kept one as
+ * a 401, 403 or 404 does; any other failure leaves the kept answer alone.
+ */
+async function remember(cache, path, res) {
+  let keep = res.ok
+  if (keep && path === '/api/auth/me') {
+    try {
+      const body = await res.clone().json()
+      keep = !!(body && body.user)
+    } catch {
+      keep = false
+    }
+  }
+  if (keep) await cache.put(path, res.clone())
+  else if (res.ok || res.status === 401 || res.status === 403 || res.status === 404) await cache.delete(path)
+}
 
 async function page(request) {
   const cache = await caches.open(PAGE_CACHE)
@@ -86,8 +105,7 @@ async function answer(request, path) {
   const cache = await caches.open(ANSWERS_CACHE)
   try {
     const res = await fetch(request)
-    if (res.ok) await cache.put(path, res.clone())
-    else if (res.status === 401 || res.status === 403 || res.status === 404) await cache.delete(path)
+    await remember(cache, path, res)
     return res
   } catch (err) {
     const kept = await cache.match(path)

@@ -56,9 +56,20 @@ export function authRoutes(deps: AppDeps): Router {
     res.status(204).end()
   })
 
-  r.get('/me', requireUser, (req, res) => {
-    res.json({ user: publicUser(req.user!) })
-  })
+  // Who is signed in. Nobody (no session cookie sent) is an answer, not an error: 200 { user: null }, so a signed-out
+  // visitor's page logs no failed request. A cookie whose session ended (expired, revoked, forged, account deleted)
+  // is still a 401 with the reason, as on every route that needs a session.
+  r.get(
+    '/me',
+    (req, res, next) => {
+      if (!req.user && !req.sessionFailure) res.json({ user: null })
+      else next()
+    },
+    requireUser,
+    (req, res) => {
+      res.json({ user: publicUser(req.user!) })
+    },
+  )
 
   r.patch('/me', requireUser, (req, res) => {
     const { name } = parse(updateMeBody, req.body)

@@ -9,6 +9,9 @@
  *  - figure: the first trace's x, then every trace's y of that length;
  *  - sweep: the parameter, then each output (scalar outputs; array outputs are one column per step);
  *  - parameter or a scalar formula: one row.
+ *
+ * The writing itself (csvField, csvRows, toCsv, csvHeader: RFC 4180 quoting, numbers at full precision, CRLF line
+ * ends) is the one CSV writer of Penumbra: the figure toolbar's CSV (shared/plot/figureCsv.ts) uses it too.
  */
 import type { CellResult, EvaluationResult, SweepValue } from '../schema/result'
 import type { SheetCell } from '../schema/sheet'
@@ -25,33 +28,42 @@ export class CsvError extends Error {
   }
 }
 
-/** `alpha (1/cm)`; a cell without a unit is its bare name. */
-function header(name: string, unit: string | undefined): string {
+/** `alpha (1/cm)`: a column's name with its unit in brackets; without a unit, the bare name. */
+export function csvHeader(name: string, unit: string | undefined): string {
   return unit ? `${name} (${unit})` : name
 }
 
-function quote(text: string): string {
-  return /[",\n\r]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text
+/**
+ * One CSV field. A number at full precision (its shortest round-trip form, so reading it back gives the same double);
+ * a missing or non-finite number (NaN, ±∞: a point that cannot be drawn) an empty field; text quoted (RFC 4180) when
+ * it holds a comma, a double quote or a line break.
+ *
+ *   csvField(0.1 + 0.2)  // '0.30000000000000004'
+ *   csvField('a, b')     // '"a, b"'
+ */
+export function csvField(value: string | number | null | undefined): string {
+  if (typeof value === 'string') return /[",\n\r]/.test(value) ? `"${value.replace(/"/g, '""')}"` : value
+  return typeof value === 'number' && Number.isFinite(value) ? String(value) : ''
 }
 
-/** Numbers at full precision (shortest round-trip form); empty entries stay empty. */
+/** Rows as CSV text: comma-separated fields, CRLF line ends, and a CRLF after the last row. */
+export function csvRows(rows: readonly (readonly (string | number | null | undefined)[])[]): string {
+  return rows.map((row) => row.map(csvField).join(',')).join('\r\n') + '\r\n'
+}
+
+/** Columns side by side under their headers; a shorter column ends in empty fields. */
 export function toCsv(columns: readonly CsvColumn[]): string {
-  const rows = Math.max(0, ...columns.map((c) => c.values.length))
-  const lines = [columns.map((c) => quote(c.header)).join(',')]
-  for (let r = 0; r < rows; r++) {
-    lines.push(columns.map((c) => {
-      const v = c.values[r]
-      return typeof v === 'number' && Number.isFinite(v) ? String(v) : ''
-    }).join(','))
-  }
-  return `${lines.join('\r\n')}\r\n`
+  const length = Math.max(0, ...columns.map((c) => c.values.length))
+  const rows: (string | number | null | undefined)[][] = [columns.map((c) => c.header)]
+  for (let r = 0; r < length; r++) rows.push(columns.map((c) => c.values[r]))
+  return csvRows(rows)
 }
 
 function recordColumns(r: CellResult): CsvColumn[] | null {
   const v = r.value as { columns?: Record<string, unknown>; units?: Record<string, string> } | null | undefined
   if (!v || typeof v !== 'object' || !v.columns || typeof v.columns !== 'object') return null
   return Object.entries(v.columns).flatMap(([name, values]) =>
-    Array.isArray(values) ? [{ header: header(`${r.name}.${name}`, v.units?.[name]), values: values as (number | null)[] }] : [])
+    Array.isArray(values) ? [{ header: csvHeader(`${r.name}.${name}`, v.units?.[name]), values: values as (number | null)[] }] : [])
 }
 
 /** The values and unit a reference names: a cell (`alpha`) or a column of a spectrum or record (`filmB.T`). */
@@ -60,8 +72,8 @@ function resolve(results: EvaluationResult, ref: string): CsvColumn | null {
   const r = results.cells.find((c) => c.name === cellName)
   if (!r || r.status !== 'ok') return null
   if (member) return recordColumns(r)?.find((c) => c.header === ref || c.header.startsWith(`${ref} (`)) ?? null
-  if (Array.isArray(r.value)) return { header: header(ref, r.unit), values: r.value as number[] }
-  if (typeof r.value === 'number') return { header: header(ref, r.unit), values: [r.value] }
+  if (Array.isArray(r.value)) return { header: csvHeader(ref, r.unit), values: r.value as number[] }
+  if (typeof r.value === 'number') return { header: csvHeader(ref, r.unit), values: [r.value] }
   return null
 }
 
@@ -85,10 +97,10 @@ export function cellCsvColumns(results: EvaluationResult, cells: readonly SheetC
   if (cell.kind === 'sweep') {
     const table = r.value as SweepValue | null
     if (!table || !Array.isArray(table.parameter)) throw new CsvError(`${label} has no table yet.`)
-    const cols: CsvColumn[] = [{ header: header(cell.parameter, r.unit), values: table.parameter }]
+    const cols: CsvColumn[] = [{ header: csvHeader(cell.parameter, r.unit), values: table.parameter }]
     for (const [name, rows] of Object.entries(table.outputs)) {
       const unit = results.cells.find((c) => c.name === name)?.unit
-      if (rows.every((x) => typeof x === 'number')) cols.push({ header: header(name, unit), values: rows as number[] })
+      if (rows.every((x) => typeof x === 'number')) cols.push({ header: csvHeader(name, unit), values: rows as number[] })
       else throw new CsvError(`the output ${name} of ${label} is an array at every step; export it from a figure of the sweep, or sweep a single number`)
     }
     return cols
@@ -107,9 +119,9 @@ export function cellCsvColumns(results: EvaluationResult, cells: readonly SheetC
   }
   const record = recordColumns(r)
   if (record) return withExtra(record)
-  if (typeof r.value === 'number') return withExtra([{ header: header(label, r.unit), values: [r.value] }])
+  if (typeof r.value === 'number') return withExtra([{ header: csvHeader(label, r.unit), values: [r.value] }])
   if (Array.isArray(r.value) && r.value.every((v) => typeof v === 'number' || v === null)) {
-    const own = { header: header(label, r.unit), values: r.value as (number | null)[] }
+    const own = { header: csvHeader(label, r.unit), values: r.value as (number | null)[] }
     // the grid it is drawn against in a figure comes first
     for (const f of cells) {
       if (f.kind !== 'figure') continue

@@ -155,14 +155,18 @@ function describeUnit(unit: string | undefined): string {
 
 /**
  * A converter from one display unit to another: identity for the same unit, a scale factor within one dimension,
- * and E ↔ λ ↔ ν̃ ↔ ν through hc for spectral units (so an eV series can be drawn on a nm axis).
+ * and E ↔ λ ↔ ν̃ ↔ ν through hc for spectral units (so an eV series can be drawn on a nm axis). No unit is a plain
+ * number, a fraction of one: converter('', '%') multiplies by 100.
  * Non-positive values have no image across spectral quantities and become NaN (a gap in the curve).
  */
 export function converter(from: string | undefined, to: string | undefined): Converted<(x: number) => number> {
   const same = (from ?? '') === (to ?? '') || (from !== undefined && to !== undefined && normalizeUnit(from) === normalizeUnit(to))
   if (same) return { ok: true, value: (x) => x }
-  const a = unitInfo(from)
-  const b = unitInfo(to)
+  // a plain number (no unit: the engine's dimensionless results, a stack's R, T and A) is a fraction of one, so it
+  // draws on a % axis (0.25 → 25 %) and a % series on a plain axis
+  const plain = (u: string | undefined) => (u === undefined || u.trim() === '' ? '1' : u)
+  const a = unitInfo(plain(from))
+  const b = unitInfo(plain(to))
   if (!a || !b) {
     const unknown = !a ? from : to
     return { ok: false, message: `cannot convert ${describeUnit(from)} to ${describeUnit(to)}: ${describeUnit(unknown)} is not a unit figures know how to convert` }

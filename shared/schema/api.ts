@@ -122,9 +122,13 @@ export const signInBody = z.object({
 })
 export type SignInBody = z.infer<typeof signInBody>
 
-/** GET /api/auth/me → 200; also the reply of sign-in, confirm and PATCH /api/auth/me. POST /api/auth/sign-out → 204. */
+/** The reply of sign-in, confirm and PATCH /api/auth/me (GET /api/auth/me: meReply below). POST /api/auth/sign-out → 204. */
 export const userReply = z.object({ user: userSchema })
 export type UserReply = z.infer<typeof userReply>
+
+/** GET /api/auth/me → 200 { user } when signed in, 200 { user: null } when no session cookie was sent (401 for an ended session). */
+export const meReply = z.object({ user: userSchema.nullable() })
+export type MeReply = z.infer<typeof meReply>
 
 /** PATCH /api/auth/me → 200 UserReply */
 export const updateMeBody = z.object({ name: personNameSchema })

@@ -1,5 +1,6 @@
 /** Accounts: sign-up and its mailed confirmation, sign-in and out, who am I, profile, password reset. */
 import {
+  meReply,
   messageReply,
   userReply,
   type ChangePasswordBody,
@@ -12,10 +13,10 @@ import { api, ApiError, seg } from './client'
 
 export type { User }
 
-/** The signed-in user, or null when nobody is signed in. */
+/** The signed-in user, or null when nobody is signed in (no session: 200 { user: null }; an ended one: 401). */
 export async function me(): Promise<User | null> {
   try {
-    return (await api.get('/api/auth/me', userReply, { quiet401: true })).user
+    return (await api.get('/api/auth/me', meReply, { quiet401: true })).user
   } catch (err) {
     if (err instanceof ApiError && err.status === 401) return null
     throw err

@@ -16,6 +16,7 @@ import { usePresence } from './usePresence'
 import { useSheetStore } from '@/stores/sheet'
 import { buildVocabulary } from '@/components/cells/formulaLanguage'
 import type { SheetContext } from '@/components/sheet/sheetContext'
+import { createCardEditors } from '@/components/sheet/cardEditors'
 import { NO_PENDING_EDITS } from '@/lib/localCopyPending'
 import { messageOf } from '@/api/client'
 
@@ -113,6 +114,7 @@ export function useStaticSheet(file: SheetFile, results: readonly { index: numbe
         if (cell) downloadCsv(cell).catch((err: unknown) => ElMessage.error(messageOf(err)))
       }),
     },
+    editors: createCardEditors(),
     cellAddon: options.cellAddon,
   }
   onScopeDispose(() => {

@@ -150,6 +150,43 @@ describe('cards', () => {
     expect(mentions).toBe(1)
   })
 
+  it('opens a new figure with its editor open and the caret in its title, from Add cell and from the command palette', async () => {
+    const editor = await e2e.newBrowser({ label: 'editor' })
+    await signIn(editor.page, e2e.server.url, DEMO.editor)
+    const sheetId = await createSheet(editor.page, 'New figures', EDGE_SHEET.slice(0, 3))
+    await openLive(editor.page, sheetId)
+    const page = editor.page
+    const figures = page.locator('.pn-cell[data-kind="figure"]')
+    const focusedLabel = () => page.evaluate(() => document.activeElement?.getAttribute('aria-label'))
+
+    await page.getByRole('button', { name: 'Add cell' }).first().click()
+    await page.locator('.kind[data-kind="figure"]').click()
+    await expect.poll(() => figures.count(), { timeout: 15_000 }).toBe(1)
+    const first = figures.first()
+    await expect.poll(() => first.locator('.pn-figure-editor').count()).toBe(1)
+    expect(await first.getByRole('button', { name: 'Close editor' }).getAttribute('aria-expanded')).toBe('true')
+    await expect.poll(focusedLabel).toBe('Figure title')
+    await page.keyboard.type('Edge of the invented film')
+    await page.keyboard.press('Enter')
+    await expect.poll(() => first.getByLabel('Figure title').inputValue()).toBe('Edge of the invented film')
+    // the title is in the shared document, not only in the field
+    const titles = async () => {
+      const file = (await (await page.request.get(`${e2e.server.url}/api/sheets/${sheetId}/file`)).json()) as { cells: { kind: string; title?: string }[] }
+      return file.cells.filter((c) => c.kind === 'figure').map((c) => c.title ?? '')
+    }
+    await expect.poll(titles, { timeout: 15_000 }).toEqual(['Edge of the invented film'])
+
+    await first.focus()
+    await page.keyboard.press('Control+KeyK')
+    await page.getByLabel('Command', { exact: true }).fill('figure')
+    await page.keyboard.press('Enter')
+    await expect.poll(() => figures.count(), { timeout: 15_000 }).toBe(2)
+    await expect.poll(() => page.locator('.pn-figure-editor').count()).toBe(2)
+    await expect.poll(focusedLabel).toBe('Figure title')
+    await page.keyboard.type('Second look')
+    expect(await page.evaluate(() => (document.activeElement as HTMLInputElement).value)).toBe('Second look')
+  })
+
   it('labels a note’s preview while it is edited, hints at Markdown for an empty one, and a missing sheet leads back to the labs', async () => {
     const editor = await e2e.newBrowser({ label: 'editor' })
     await signIn(editor.page, e2e.server.url, DEMO.editor)

@@ -118,7 +118,8 @@ describe('rough edges of the sheet page', () => {
     await page.keyboard.press('Enter')
     const fig = card(page, 'fig1')
     await expect.poll(() => fig.count()).toBe(1)
-    await fig.getByRole('button', { name: 'Edit figure' }).click()
+    // a new figure opens with its editor open
+    await expect.poll(() => fig.getByRole('button', { name: 'Close editor' }).count()).toBe(1)
     // an array against the grid it is computed on, not the last two cells (a single number against an array)
     await expect.poll(() => fig.getByLabel('Trace 1: y').locator('xpath=ancestor::div[contains(@class,"el-select__wrapper")]').innerText()).toContain('alpha')
     expect(await fig.getByLabel('Trace 1: y').locator('xpath=ancestor::div[contains(@class,"el-select__wrapper")]').innerText()).not.toContain('alpha_max')
@@ -225,6 +226,72 @@ describe('rough edges of the sheet page', () => {
     await expect.poll(() => card(wide, 'filmC').locator('.el-table').count()).toBe(1)
     expect(await card(wide, 'filmC').getByTestId('scroll-cue').isVisible()).toBe(false)
   })
+
+  it('keeps the sheet toolbar on one line with four people present at 1280 px, lists the others in each browser, and overlaps nothing at 900 px', async () => {
+    const roles = ['owner', 'editor', 'reviewer', 'viewer'] as const
+    const people = await Promise.all(roles.map((role) => e2e.newBrowser({ label: role, viewport: { width: 1280, height: 800 } })))
+    for (const [i, role] of roles.entries()) await signIn(people[i].page, e2e.server.url, DEMO[role])
+    // the demo thickness study: the longest title, and a snapshot count on its Snapshots button
+    const labId = await demoLabId(people[0].page, e2e.server.url)
+    const sheets = (await (await people[0].page.request.get(`${e2e.server.url}/api/labs/${labId}/sheets`)).json()) as { sheets: { id: string; title: string }[] }
+    const sheetId = sheets.sheets.find((s) => s.title.startsWith('Absorber thickness study'))!.id
+    for (const b of people) await openLive(b.page, sheetId)
+
+    /** Every visible control of the toolbar (connection badge, avatars, buttons): its box, and the toolbar's box. */
+    const toolbar = (page: Page) =>
+      page.locator('.sheet-head .tools').evaluate((tools) => {
+        const box = (el: Element) => {
+          const r = el.getBoundingClientRect()
+          return { top: r.top, bottom: r.bottom, left: r.left, right: r.right, height: r.height }
+        }
+        const items = [...tools.querySelectorAll('[data-testid="connection"], .avatar, button:not(.avatar)')]
+          .filter((el) => el.getBoundingClientRect().width > 0)
+          .map((el) => ({ label: (el.getAttribute('aria-label') ?? el.textContent ?? '').trim(), ...box(el) }))
+        return { tools: box(tools), items }
+      })
+
+    for (const [i, role] of roles.entries()) {
+      const page = people[i].page
+      const others = roles.filter((r) => r !== role).map((r) => DEMO[r].name)
+      await expect
+        .poll(async () => {
+          const label = (await page.getByTestId('people').getAttribute('aria-label')) ?? ''
+          return others.filter((name) => !label.includes(name))
+        }, { timeout: 20_000 })
+        .toEqual([])
+      const { tools, items } = await toolbar(page)
+      const button = items.find((it) => it.label === 'Export')!
+      expect(button, `${role}: the Export button`).toBeTruthy()
+      // one line: every control's middle lies within the Export button's height, and the bar is no taller than it
+      for (const it of items) {
+        const middle = (it.top + it.bottom) / 2
+        expect(middle > button.top && middle < button.bottom, `${role}: "${it.label}" sits on another line`).toBe(true)
+      }
+      expect(items.filter((it) => /: on the sheet|: in /.test(it.label))).toHaveLength(4)
+      expect(tools.height, `${role}: toolbar height`).toBeLessThan(button.height * 1.5)
+      expect(tools.right, `${role}: toolbar inside the window`).toBeLessThanOrEqual(1280)
+    }
+
+    // at 900 px the toolbar may take two lines, but no two controls overlap and none leaves the window
+    for (const [i, role] of roles.entries()) {
+      const page = people[i].page
+      await page.setViewportSize({ width: 900, height: 800 })
+      await expect.poll(async () => (await toolbar(page)).tools.right).toBeLessThanOrEqual(900)
+      const { items } = await toolbar(page)
+      const head = await page.locator('.sheet-head .titles').evaluate((el) => el.getBoundingClientRect().toJSON() as { bottom: number; right: number; left: number; top: number })
+      for (const [a, x] of items.entries()) {
+        expect(x.right, `${role}: "${x.label}" inside the window`).toBeLessThanOrEqual(900)
+        const apart = (y: { top: number; bottom: number; left: number; right: number }) =>
+          y.right <= x.left + 1 || x.right <= y.left + 1 || y.bottom <= x.top + 1 || x.bottom <= y.top + 1
+        expect(apart(head), `${role}: "${x.label}" over the title`).toBe(true)
+        for (const y of items.slice(a + 1)) {
+          // avatars overlap each other on purpose (a stack of faces); nothing else does
+          if (x.label.includes(': ') && y.label.includes(': ')) continue
+          expect(apart(y), `${role}: "${x.label}" over "${y.label}"`).toBe(true)
+        }
+      }
+    }
+  }, 180_000)
 
   it('drops to no role when the person is removed from the lab while on a sheet: one clear sentence, no Editor, Add cell or Import', async () => {
     const page = await editorPage('removed')

@@ -174,4 +174,29 @@ describe('no page leads outside the app', () => {
       await b.close()
     }
   }, 900_000)
+
+  it('asks who is signed in without a failed request, so a signed-out visitor’s pages log no console error', async () => {
+    const base = e2e.server.url
+    const visitor = await e2e.newBrowser({ label: 'signed-out' })
+    const answers: string[] = []
+    visitor.page.on('response', (res) => {
+      if (new URL(res.url()).pathname === '/api/auth/me') answers.push(String(res.status()))
+    })
+    for (const path of ['/', '/sign-in', '/sign-up', '/reset', '/help', '/labs', '/no-such-page']) await visit(visitor.page, `${base}${path}`, false)
+    // the app asked (otherwise this test would prove nothing) and was told "nobody", not refused
+    expect(answers.length).toBeGreaterThan(0)
+    expect(new Set(answers)).toEqual(new Set(['200']))
+    await expect.poll(() => visitor.page.getByRole('button', { name: 'Sign in' }).count()).toBeGreaterThan(0)
+    expect(visitor.problems).toEqual([])
+
+    // signed in, then out again: the pages after it log nothing either
+    await signIn(visitor.page, base, DEMO.viewer)
+    await visit(visitor.page, `${base}/labs`, false)
+    expect((await visitor.page.request.post(`${base}/api/auth/sign-out`, { data: {}, headers: { [CSRF_HEADER]: '1' } })).status()).toBe(204)
+    const before = answers.length
+    await visit(visitor.page, `${base}/labs`, false)
+    await expect.poll(() => new URL(visitor.page.url()).pathname).toBe('/sign-in')
+    expect(answers.slice(before)).toContain('200')
+    expect(visitor.problems).toEqual([])
+  })
 })

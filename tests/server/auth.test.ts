@@ -139,6 +139,15 @@ describe('POST /api/auth/sign-in', () => {
 })
 
 describe('session tokens on GET /api/auth/me', () => {
+  it('answers 200 { user: null } to a visitor without a session cookie, and 401 on routes that need a session', async () => {
+    const t = makeTestApp()
+    const res = await call(t).get('/api/auth/me')
+    expect(res.status).toBe(200)
+    expect(res.body).toEqual({ user: null })
+    expect((await call(t).patch('/api/auth/me', { name: 'Nobody' })).status).toBe(401)
+    expect((await call(t).get('/api/labs')).body).toEqual({ error: 'Sign in first.' })
+  })
+
   it('answers 401 for an expired token', async () => {
     const t = makeTestApp()
     const u = await createTestUser(t)

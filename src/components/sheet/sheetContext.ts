@@ -6,6 +6,7 @@ import { inject, type Component, type InjectionKey, type Ref } from 'vue'
 import type { SheetDoc } from '@/composables/useSheetDoc'
 import type { Presence } from '@/composables/usePresence'
 import type { FormulaVocabulary } from '@/components/cells/formulaLanguage'
+import type { CardEditors } from './cardEditors'
 
 export interface SheetContext {
   doc: SheetDoc
@@ -18,6 +19,8 @@ export interface SheetContext {
   focusCard: (cellId: string) => void
   /** List operations with their focus handling (buttons and keyboard share them). */
   ops: CellOps
+  /** How each card with an editor panel (note, figure) opens it, by cell id (see cardEditors.ts). */
+  editors: CardEditors
   /** Drawn in every card's header with the cell's id (the comment badge of the review feature). */
   cellAddon?: Component
 }

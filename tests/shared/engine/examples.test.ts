@@ -61,4 +61,20 @@ describe('example sheets', () => {
     expect(res.cells[8].value).toBeNull()
     for (const c of res.cells) expect(typeof c.id).toBe('string')
   })
+
+  it('the thickness study’s film on glass swings with interference fringes near the edge where the flat-film estimate is smooth, and conserves energy', () => {
+    const res = evaluateExample('thickness-study.penumbra.json')
+    const lam = pick(res, 'lam').value as number[]
+    const { R, T, A_absorber: film, A_glass: glass } = pick(res, 'on_glass').value as Record<string, number[]>
+    const flat = pick(res, 'A_flat').value as number[]
+    // turning points between 550 and 800 nm, where α·d is of order 1 (the film lets light through to its back face)
+    const turns = (a: number[]) => a.filter((_, i) => i > 0 && i < a.length - 1 && lam[i] >= 550 && lam[i] <= 800 && (a[i] - a[i - 1]) * (a[i + 1] - a[i]) < 0).length
+    expect(turns(film)).toBeGreaterThanOrEqual(4)
+    expect(turns(flat)).toBe(0)
+    // R + T + ΣA = 1 at every wavelength (energy conservation, common practice for a lossless ambient)
+    for (let i = 0; i < lam.length; i++) expect(Math.abs(R[i] + T[i] + film[i] + glass[i] - 1)).toBeLessThan(1e-9)
+    // well above the gap nothing reaches the slide; well below it the film absorbs almost nothing
+    expect(glass.every((g) => g < 1e-9)).toBe(true)
+    expect(film[lam.length - 1]).toBeLessThan(1e-3)
+  })
 })

@@ -90,6 +90,14 @@ describe('convertValues', () => {
     const c = convertValues([45], '%', '1')
     expect(c.ok && c.value[0]).toBeCloseTo(0.45, 14)
   })
+  it('convertValues reads no unit as a plain fraction: a stack’s absorptance 0.25 draws as 25 % and back, never as a length', () => {
+    // 1 % = 0.01 by definition (SI Brochure, 9th ed., §5.4.7)
+    expect(convertValues([0.25, 1], '', '%')).toEqual({ ok: true, value: [25, 100] })
+    expect(convertValues([45], '%', undefined)).toEqual({ ok: true, value: [0.45] })
+    const r = convertValues([1], '', 'nm')
+    expect(r.ok).toBe(false)
+    if (!r.ok) expect(r.message).toBe('cannot convert no unit (fraction) to "nm" (length)')
+  })
   it('convertValues([1], "um", "cm^-1") gives exactly 10000', () => {
     const r = convertValues([1], 'um', 'cm^-1')
     expect(r.ok && r.value[0]).toBe(10000)
