@@ -3,6 +3,7 @@
  * the sheet and its mapping confirmed, "Extract α" on the spectrum's card, a Tauc window dragged across the fit's plot, and the gap
  * with its standard error and the window sensitivity read off the fit card; then the gap taken over as a parameter.
  */
+import { readFileSync } from 'node:fs'
 import { describe, expect, it } from 'vitest'
 import type { Page } from 'playwright-core'
 import { DEMO, RESULTS_DIR, signIn, useBrowserSuite } from '../utils/browser'
@@ -106,5 +107,17 @@ describe('from a spectrum to a band gap', () => {
     // the gap becomes a parameter cell in one step
     await fit.getByRole('button', { name: 'Use as parameter' }).click()
     await expect.poll(() => card(page, 'Eg_gap_filmB').count()).toBe(1)
+
+    // the α series goes out as CSV from its card, on the photon-energy grid its figure draws it against: a header with
+    // units, one row per measured wavelength
+    const [download] = await Promise.all([page.waitForEvent('download', { timeout: 30_000 }), card(page, 'alpha_filmB').getByTestId('download-csv').click()])
+    expect(download.suggestedFilename()).toMatch(/alpha_filmB\.csv$/)
+    const lines = readFileSync(await download.path(), 'utf8').trim().split(/\r?\n/)
+    expect(lines[0]).toBe('E_filmB (eV),alpha_filmB (1/cm)')
+    expect(lines).toHaveLength(302)
+    const [x, alpha] = lines[301].split(',').map(Number)
+    // 1000 nm is hc/λ = 1.23984198433 eV (hc/e = 1239.84198433 nm·eV from the exact 2019 SI values of h, c and e)
+    expect(x).toBeCloseTo(1.23984198433, 9)
+    expect(Number.isFinite(alpha)).toBe(true)
   }, 240_000)
 })
