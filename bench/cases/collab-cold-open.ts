@@ -203,7 +203,7 @@ export default async function collabColdOpen(): Promise<ColdOpenReport> {
     addSheet('compacted-0')
     handle.sqlite.prepare('UPDATE sheet_states SET state = ? WHERE sheet_id = ?').run(Buffer.from(seedState), 'compacted-0')
     const registry = new DocumentRegistry({ store: createSqliteStore(handle.db), bus: createLocalBus(), instanceId: 'bench', compactEvery: 500, idleCompactMs: 1e9, evictAfterMs: 1e9 })
-    const entry = registry.open('compacted-0')
+    const entry = await registry.open('compacted-0')
     const cadence = lcg(7)
     let nextFlush = 1
     updates.forEach((u, i) => {

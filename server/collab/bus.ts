@@ -2,7 +2,7 @@
  * The fan-out seam between app instances (DESIGN §10). Every update a registry accepts is published here after it is
  * stored, and every control event (membership change, deleted sheet) too; a registry applies what other instances
  * publish to its own copy of the document and its own connections. One process uses `createLocalBus()` (publishes
- * to nobody); several processes would use a Redis-streams bus with this same interface.
+ * to nobody); several processes use the Redis-streams bus (redisBus.ts) with this same interface.
  */
 
 export type BusEvent =
@@ -18,6 +18,17 @@ export interface CollabBus {
   publish(instanceId: string, event: BusEvent): void
   /** Receives other instances' events; returns the unsubscribe function. */
   subscribe(instanceId: string, listener: (event: BusEvent) => void): () => void
+  /**
+   * The registry is about to load a sheet: deliver its events from now on. When this returns a Promise, the load
+   * waits for it, so every event published after the database is read arrives (older ones are skipped by seq).
+   */
+  watch?(sheetId: string): void | Promise<void>
+  /** The sheet left memory: its events are no longer needed here. */
+  unwatch?(sheetId: string): void
+  /** Publications and reads that failed so far (a bus that can fail: the network). */
+  failures?(): number
+  /** Stops reading and closes connections. */
+  close?(): Promise<void>
 }
 
 /** A single instance: nobody else to tell. */

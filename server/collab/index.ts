@@ -21,7 +21,7 @@ import { createLocalBus, type CollabBus } from './bus'
 import { CLOSE, CollabConnection, DEFAULT_RATE_LIMIT, emptyConnectionCounters, type ConnectionCounters, type RateLimit } from './connection'
 import { rejectUpgrade } from './http'
 import { DocumentRegistry, type RegistryCounters } from './registry'
-import { createSqliteStore, type CollabStore } from './store'
+import { createSqliteStore, isPromise, type CollabStore } from './store'
 
 export { CLOSE } from './connection'
 export type { RateLimit } from './connection'
@@ -79,7 +79,7 @@ export interface Collab {
    * Changes a sheet's live document from the server (import into an existing sheet, restore): stored before it
    * returns and relayed to everyone connected, like an editor's change.
    */
-  changeDocument(sheetId: string, mutate: (doc: Y.Doc) => void, userId?: string | null): void
+  changeDocument(sheetId: string, mutate: (doc: Y.Doc) => void, userId?: string | null): Promise<void>
   /** Closes every connection (1001), stores and compacts every open document. Leaves the database open. */
   close(): Promise<void>
   stats(): CollabStats
@@ -197,11 +197,13 @@ export function createCollab(options: CollabOptions): Collab {
     let entry
     try {
       // Loaded before the websocket exists, so the first sync step 1 is answered from the stored document.
-      entry = registry.open(admission.sheetId)
+      const opened = registry.open(admission.sheetId)
+      entry = isPromise(opened) ? await opened : opened
     } catch (err) {
       log(`could not load sheet ${admission.sheetId}: ${(err as Error).message}`)
       return refuse(500, 'could not load this sheet')
     }
+    if (socket.destroyed) return
     wss.handleUpgrade(req, socket, head, (ws) => {
       socket.off('error', onSocketError)
       const current = registry.get(admission.sheetId)
@@ -235,8 +237,8 @@ export function createCollab(options: CollabOptions): Collab {
       bus.publish(instanceId, { type: 'sheet-deleted', sheetId })
     },
 
-    changeDocument(sheetId, mutate, userId = null) {
-      registry.change(sheetId, mutate, userId)
+    async changeDocument(sheetId, mutate, userId = null) {
+      await registry.change(sheetId, mutate, userId)
     },
 
     async close() {
@@ -247,7 +249,7 @@ export function createCollab(options: CollabOptions): Collab {
       registry.flush()
       const open = [...connections]
       for (const conn of open) conn.close(CLOSE.goingAway, 'the server is shutting down')
-      registry.close()
+      await registry.close()
       wss.close()
       await Promise.race([Promise.all(open.map((c) => c.whenClosed)), new Promise((resolve) => setTimeout(resolve, 1000).unref())])
       for (const conn of open) conn.terminate()

@@ -9,13 +9,18 @@
  * flushed on the next turn of the event loop (`setImmediate`). A crash before the commit loses only changes nobody
  * else has seen; their authors still hold them and resend them on reconnect.
  *
+ * A store may answer with a Promise (a network database). The guarantees stay: while a commit is in flight, later
+ * flushes, compactions and catch-ups wait their turn (one piece of store work at a time, in order), and its frames are
+ * sent only once it has succeeded; a sheet still loading holds the bus events that arrive for it until its document is
+ * in memory. A store that answers at once runs exactly today's synchronous path, with no await per update.
+ *
  * The registry knows nothing of websockets or roles: the transport (connection.ts) decides what a peer may do and
  * calls in. Other app instances reach it only through the bus (bus.ts, DESIGN §10).
  */
 import * as Y from 'yjs'
 import * as awarenessProtocol from 'y-protocols/awareness'
 import type { CollabBus, BusEvent } from './bus'
-import type { CollabStore, PendingRow } from './store'
+import { isPromise, type CollabStore, type CompactOutcome, type LoadedDocument, type MaybePromise, type PendingRow } from './store'
 import { encodeAwarenessEntries, encodeAwarenessMessage, encodeSyncStep1, encodeSyncStep2, encodeUpdateMessage, type AwarenessEntry } from './protocol'
 
 /** What the registry needs from a connection. */
@@ -43,6 +48,12 @@ export interface RegistryOptions {
   idleCompactMs: number
   /** Drop a document from memory after this long without peers. */
   evictAfterMs: number
+  /**
+   * How long a hole in the seqs heard from other instances may stay open before the document is caught up from the
+   * database (default 2 s): rows of two instances may be published out of seq order, but one whose publication was
+   * lost never arrives.
+   */
+  gapMs?: number
   /** Control events from other instances (membership, deleted sheets) for the transport. */
   onControl?: (event: Extract<BusEvent, { type: 'membership' | 'sheet-deleted' | 'sessions' }>) => void
   log?: (message: string) => void
@@ -62,7 +73,20 @@ export interface DocEntry {
   /** Set when a store failed: the in-memory document is ahead of the database and must not be used again. */
   broken: boolean
   compactAfter: number
+  /** A catch-up from the database is due when this timer fires (a seq heard from another instance left a hole). */
+  gapTimer: NodeJS.Timeout | null
+  /** An eviction is waiting for store work to finish. */
+  unloading: boolean
+  /** A compaction of an asynchronous store is waiting or in flight. */
+  compacting: boolean
 }
+
+/** A sheet whose document is being loaded: the bus events heard for it meanwhile, applied once it is in memory. */
+interface Loading {
+  promise: Promise<DocEntry>
+  events: SheetEvent[]
+}
+type SheetEvent = Extract<BusEvent, { type: 'update' | 'awareness' }>
 
 interface QueuedRow {
   entry: DocEntry
@@ -81,6 +105,8 @@ export interface RegistryCounters {
   storeFailures: number
   busFailures: number
   flushes: number
+  /** Documents brought up to date from the database after a seq heard from another instance left a hole. */
+  catchUps: number
 }
 
 export class DocumentRegistry {
@@ -88,6 +114,12 @@ export class DocumentRegistry {
   private rows: QueuedRow[] = []
   private sends: QueuedSend[] = []
   private flushScheduled: NodeJS.Immediate | null = null
+  private readonly loading = new Map<string, Loading>()
+  /** The store work in flight (a commit, a compaction or a catch-up of an asynchronous store), or null. */
+  private busy: Promise<void> | null = null
+  /** Work that waits for the store work in flight, run in order once it settles. */
+  private waiting: (() => void)[] = []
+  private flushWaiting = false
   private readonly unsubscribe: () => void
   private closed = false
   readonly counters: RegistryCounters = {
@@ -100,17 +132,58 @@ export class DocumentRegistry {
     storeFailures: 0,
     busFailures: 0,
     flushes: 0,
+    catchUps: 0,
   }
 
   constructor(private readonly options: RegistryOptions) {
     this.unsubscribe = options.bus.subscribe(options.instanceId, (event) => this.onBusEvent(event))
   }
 
-  /** The loaded entry for a sheet, loading it (state + remaining rows, synchronously) when it is not in memory. */
-  open(sheetId: string): DocEntry {
+  /**
+   * The loaded entry for a sheet, loading it (state + remaining rows) when it is not in memory: at once from a
+   * synchronous store, else a Promise shared by everyone opening the sheet meanwhile. The bus starts watching the
+   * sheet before the load, so no event published after the database was read is missed (and older ones are skipped
+   * by seq).
+   */
+  open(sheetId: string): MaybePromise<DocEntry> {
     const existing = this.entries.get(sheetId)
     if (existing) return existing
-    const loaded = this.options.store.loadDocument(sheetId)
+    const pending = this.loading.get(sheetId)
+    if (pending) return pending.promise
+    const watched = this.options.bus.watch?.(sheetId)
+    if (watched === undefined || !isPromise(watched)) {
+      const loaded = this.options.store.loadDocument(sheetId)
+      if (!isPromise(loaded)) return this.install(sheetId, loaded)
+      return this.track(sheetId, loaded)
+    }
+    return this.track(
+      sheetId,
+      watched.then(() => this.options.store.loadDocument(sheetId)),
+    )
+  }
+
+  /** Holds the bus events of a sheet while its document loads; on failure the sheet is not watched any more. */
+  private track(sheetId: string, load: Promise<LoadedDocument>): Promise<DocEntry> {
+    const pending: Loading = { promise: null as unknown as Promise<DocEntry>, events: [] }
+    pending.promise = load.then(
+      (loaded) => {
+        this.loading.delete(sheetId)
+        if (this.closed) throw new Error('the collaboration server is shutting down')
+        const entry = this.install(sheetId, loaded)
+        for (const event of pending.events) this.onSheetEvent(entry, event)
+        return entry
+      },
+      (err: unknown) => {
+        this.loading.delete(sheetId)
+        if (!this.entries.has(sheetId)) this.options.bus.unwatch?.(sheetId)
+        throw err
+      },
+    )
+    this.loading.set(sheetId, pending)
+    return pending.promise
+  }
+
+  private install(sheetId: string, loaded: LoadedDocument): DocEntry {
     const doc = loaded.doc
     const awareness = new awarenessProtocol.Awareness(doc)
     awareness.setLocalState(null)
@@ -125,6 +198,9 @@ export class DocumentRegistry {
       emptySince: Date.now(),
       broken: false,
       compactAfter: 0,
+      gapTimer: null,
+      unloading: false,
+      compacting: false,
     }
     doc.on('update', (update: Uint8Array, origin: unknown) => this.onDocUpdate(entry, update, origin))
     awareness.on('update', (changes: { added: number[]; updated: number[]; removed: number[] }, origin: unknown) =>
@@ -230,13 +306,30 @@ export class DocumentRegistry {
     this.scheduleFlush()
   }
 
-  /** A change made by the server (REST import, restore): applied, stored and relayed like a writer's, synchronously. */
-  change(sheetId: string, mutate: (doc: Y.Doc) => void, userId: string | null): void {
-    const entry = this.open(sheetId)
+  /**
+   * A change made by the server (REST import, restore): applied, stored and relayed like a writer's — synchronously
+   * over a synchronous store, else the Promise settles once it is stored.
+   */
+  change(sheetId: string, mutate: (doc: Y.Doc) => void, userId: string | null): MaybePromise<void> {
+    const opened = this.open(sheetId)
+    if (isPromise(opened)) return opened.then((entry) => this.changeIn(entry, mutate, userId))
+    return this.changeIn(opened, mutate, userId)
+  }
+
+  private changeIn(entry: DocEntry, mutate: (doc: Y.Doc) => void, userId: string | null): MaybePromise<void> {
     const origin: ServerOrigin = { kind: 'server', userId }
     entry.doc.transact(() => mutate(entry.doc), origin)
     this.flush()
-    if (entry.broken) throw new Error('the change could not be saved')
+    const check = () => {
+      if (entry.broken) throw new Error('the change could not be saved')
+    }
+    if (this.busy) return this.settled().then(check)
+    check()
+  }
+
+  /** Settles once no store work is in flight or waiting (asynchronous stores; at once otherwise). */
+  async settled(): Promise<void> {
+    while (this.busy) await this.busy
   }
 
   /** Forgets a sheet at once (deleted): queued rows and frames for it are dropped, its peers closed. */
@@ -255,12 +348,32 @@ export class DocumentRegistry {
       clearImmediate(this.flushScheduled)
       this.flushScheduled = null
     }
+    if (this.busy) {
+      // An asynchronous commit is in flight: these rows and frames follow it, in order, as one more group.
+      if (!this.flushWaiting) {
+        this.flushWaiting = true
+        this.waiting.push(() => {
+          this.flushWaiting = false
+          this.flush()
+        })
+      }
+      return
+    }
     const rows = this.rows
     const sends = this.sends
     this.rows = []
     this.sends = []
     if (rows.length > 0 || sends.length > 0) this.counters.flushes++
     const stored = this.commit(rows)
+    if (isPromise(stored)) {
+      this.hold(stored.then((entries) => this.delivered(entries, sends)))
+      return
+    }
+    this.delivered(stored, sends)
+  }
+
+  /** After a commit: sends the frames queued with it, then compacts what has grown. */
+  private delivered(stored: Set<DocEntry>, sends: QueuedSend[]): void {
     for (const send of sends) {
       const { entry, frame, peer } = send
       if (entry.broken) continue
@@ -281,23 +394,83 @@ export class DocumentRegistry {
       if (entry.seqs.length >= this.options.compactEvery && !stored.has(entry)) this.compact(entry)
   }
 
-  /** Writes the document's state and deletes the rows it covers (one transaction). */
-  compact(entry: DocEntry): boolean {
-    if (entry.broken || entry.seqs.length === 0 || Date.now() < entry.compactAfter) return false
+  /**
+   * Writes the document's state and deletes the rows it covers (one transaction). With an asynchronous store it never
+   * overlaps a commit: it waits for the one in flight, and later commits wait for it. The answer is whether it
+   * compacted (false while it is still running: the Promise, when one is returned, settles with the outcome).
+   */
+  compact(entry: DocEntry): boolean | Promise<boolean> {
+    if (entry.broken || entry.compacting || entry.seqs.length === 0 || Date.now() < entry.compactAfter) return false
+    if (this.busy) return this.compactLater(entry)
     if (this.rows.some((r) => r.entry === entry)) {
       this.flush()
+      if (this.busy) return this.compactLater(entry)
       if (entry.broken || entry.seqs.length === 0) return false
     }
+    if (this.entries.get(entry.sheetId) !== entry) return false
     const state = Y.encodeStateAsUpdate(entry.doc)
+    const covered = entry.seqs.slice()
     let outcome
     try {
-      outcome = this.options.store.compact(entry.sheetId, state, entry.uptoSeq, entry.seqs)
+      outcome = this.options.store.compact(entry.sheetId, state, entry.uptoSeq, covered)
     } catch (err) {
-      this.options.log?.(`compaction of sheet ${entry.sheetId} failed: ${(err as Error).message}`)
-      entry.compactAfter = Date.now() + this.options.idleCompactMs
-      this.counters.compactionsSkipped++
-      return false
+      return this.compactFailed(entry, err)
     }
+    if (isPromise(outcome)) {
+      entry.compacting = true
+      const done = outcome.then(
+        (o) => this.compacted(entry, o),
+        (err: unknown) => this.compactFailed(entry, err),
+      )
+      this.hold(done)
+      return done.finally(() => (entry.compacting = false))
+    }
+    return this.compacted(entry, outcome)
+  }
+
+  private compactLater(entry: DocEntry): Promise<boolean> {
+    entry.compacting = true
+    return this.after(() => {
+      entry.compacting = false
+      return this.compact(entry)
+    })
+  }
+
+  /** Runs `work` once the store work in flight has settled; settles with its answer. */
+  private after<T>(work: () => T | Promise<T>): Promise<T> {
+    return new Promise<T>((resolve, reject) => {
+      this.waiting.push(() => {
+        try {
+          const out = work()
+          if (isPromise(out)) out.then(resolve, reject)
+          else resolve(out)
+        } catch (err) {
+          reject(err as Error)
+        }
+      })
+    })
+  }
+
+  /** Marks asynchronous store work in flight; when it settles, the work waiting behind it runs in order. */
+  private hold(work: Promise<unknown>): void {
+    const run = work.then(
+      () => {},
+      (err: unknown) => this.options.log?.(`store work failed: ${(err as Error).message}`),
+    )
+    this.busy = run.then(() => {
+      this.busy = null
+      while (!this.busy && this.waiting.length > 0) this.waiting.shift()!()
+    })
+  }
+
+  private compactFailed(entry: DocEntry, err: unknown): false {
+    this.options.log?.(`compaction of sheet ${entry.sheetId} failed: ${(err as Error).message}`)
+    entry.compactAfter = Date.now() + this.options.idleCompactMs
+    this.counters.compactionsSkipped++
+    return false
+  }
+
+  private compacted(entry: DocEntry, outcome: CompactOutcome): boolean {
     if (outcome.ok) {
       entry.uptoSeq = outcome.uptoSeq
       entry.seqs = entry.seqs.filter((s) => s > outcome.uptoSeq)
@@ -310,6 +483,7 @@ export class DocumentRegistry {
       entry.uptoSeq = outcome.uptoSeq
       entry.seqs = entry.seqs.filter((s) => s > outcome.uptoSeq)
     }
+    this.watchGap(entry)
     entry.compactAfter = Date.now() + this.options.idleCompactMs
     this.counters.compactionsSkipped++
     return false
@@ -323,13 +497,43 @@ export class DocumentRegistry {
     }
   }
 
-  /** Compacts (when needed) and drops a document from memory. */
+  /**
+   * Compacts (when needed) and drops a document from memory. With an asynchronous store the document stays until its
+   * rows are stored and compacted, and stays for good if someone joins it meanwhile.
+   */
   evict(entry: DocEntry): void {
+    if (entry.unloading) return
     this.flush()
+    if (this.busy) {
+      entry.unloading = true
+      void this.after(() => this.evictNow(entry, true))
+      return
+    }
+    this.evictNow(entry, false)
+  }
+
+  private evictNow(entry: DocEntry, deferred: boolean): void {
+    if (deferred && !this.stillEvicting(entry)) return
     if (entry.seqs.length > 0) {
       entry.compactAfter = 0
-      this.compact(entry)
+      const done = this.compact(entry)
+      if (isPromise(done)) {
+        entry.unloading = true
+        void done.then(() => {
+          if (this.stillEvicting(entry)) this.unload(entry)
+        })
+        return
+      }
     }
+    this.unload(entry)
+  }
+
+  private stillEvicting(entry: DocEntry): boolean {
+    entry.unloading = false
+    return this.entries.get(entry.sheetId) === entry && entry.peers.size === 0
+  }
+
+  private unload(entry: DocEntry): void {
     for (const peer of [...entry.peers.keys()]) peer.close(1001, 'the document was unloaded')
     this.destroy(entry)
     this.counters.evictions++
@@ -339,19 +543,30 @@ export class DocumentRegistry {
     return [...this.entries.values()]
   }
 
-  /** Flushes, compacts every document with rows and frees them all. */
-  close(): void {
+  /** Flushes, compacts every document with rows and frees them all (a Promise while an asynchronous store works). */
+  close(): MaybePromise<void> {
     if (this.closed) return
     this.closed = true
     this.flush()
+    if (this.busy) return this.settled().then(() => this.closeAll())
+    return this.closeAll()
+  }
+
+  private closeAll(): MaybePromise<void> {
+    const waits: Promise<unknown>[] = []
     for (const entry of [...this.entries.values()]) {
       if (entry.seqs.length > 0) {
         entry.compactAfter = 0
-        this.compact(entry)
+        const done = this.compact(entry)
+        if (isPromise(done)) {
+          waits.push(done.then(() => this.destroy(entry)))
+          continue
+        }
       }
       this.destroy(entry)
     }
     this.unsubscribe()
+    if (waits.length > 0) return Promise.all(waits).then(() => {})
   }
 
   private controlledByOther(entry: DocEntry, peer: RegistryPeer, clientId: number): boolean {
@@ -360,7 +575,12 @@ export class DocumentRegistry {
   }
 
   private destroy(entry: DocEntry): void {
-    if (this.entries.get(entry.sheetId) === entry) this.entries.delete(entry.sheetId)
+    if (this.entries.get(entry.sheetId) === entry) {
+      this.entries.delete(entry.sheetId)
+      this.options.bus.unwatch?.(entry.sheetId)
+    }
+    if (entry.gapTimer) clearTimeout(entry.gapTimer)
+    entry.gapTimer = null
     entry.peers.clear()
     entry.awareness.destroy()
     entry.doc.destroy()
@@ -410,36 +630,61 @@ export class DocumentRegistry {
   }
 
   /** Stores rows in one transaction (per sheet on failure, so one bad sheet cannot sink the others). */
-  private commit(rows: QueuedRow[]): Set<DocEntry> {
+  private commit(rows: QueuedRow[]): MaybePromise<Set<DocEntry>> {
     const stored = new Set<DocEntry>()
     if (rows.length === 0) return stored
     const live = rows.filter((r) => !r.entry.broken)
-    let seqs: number[] | null
+    let seqs: MaybePromise<number[]> | null
     try {
       seqs = this.options.store.storeUpdates(live.map((r) => r.row))
     } catch {
       seqs = null
     }
+    if (seqs && isPromise(seqs))
+      return seqs.then(
+        (s) => {
+          this.recordStored(live, s, stored)
+          return stored
+        },
+        () => this.commitBySheet(live, stored),
+      )
     if (seqs) {
       this.recordStored(live, seqs, stored)
       return stored
     }
+    return this.commitBySheet(live, stored)
+  }
+
+  /** After a failed group commit: each sheet's rows on their own, so one bad sheet cannot sink the others. */
+  private commitBySheet(live: QueuedRow[], stored: Set<DocEntry>): MaybePromise<Set<DocEntry>> {
     const bySheet = new Map<DocEntry, QueuedRow[]>()
     for (const r of live) bySheet.set(r.entry, [...(bySheet.get(r.entry) ?? []), r])
+    const waits: Promise<void>[] = []
     for (const batch of bySheet.values()) {
-      const entry = batch[0].entry
-      let batchSeqs: number[]
+      let batchSeqs: MaybePromise<number[]>
       try {
         batchSeqs = this.options.store.storeUpdates(batch.map((r) => r.row))
       } catch (err) {
-        this.counters.storeFailures++
-        this.options.log?.(`could not store ${batch.length} update(s) of sheet ${entry.sheetId}: ${(err as Error).message}`)
-        this.breakEntry(entry)
+        this.storeFailed(batch, err)
         continue
       }
-      this.recordStored(batch, batchSeqs, stored)
+      if (isPromise(batchSeqs))
+        waits.push(
+          batchSeqs.then(
+            (s) => this.recordStored(batch, s, stored),
+            (err: unknown) => this.storeFailed(batch, err),
+          ),
+        )
+      else this.recordStored(batch, batchSeqs, stored)
     }
-    return stored
+    return waits.length > 0 ? Promise.all(waits).then(() => stored) : stored
+  }
+
+  private storeFailed(batch: QueuedRow[], err: unknown): void {
+    const entry = batch[0].entry
+    this.counters.storeFailures++
+    this.options.log?.(`could not store ${batch.length} update(s) of sheet ${entry.sheetId}: ${(err as Error).message}`)
+    this.breakEntry(entry)
   }
 
   private recordStored(rows: QueuedRow[], seqs: number[], stored: Set<DocEntry>): void {
@@ -464,12 +709,77 @@ export class DocumentRegistry {
       return
     }
     const entry = this.entries.get(event.sheetId)
-    if (!entry || entry.broken) return
-    if (event.type === 'update') {
-      Y.applyUpdate(entry.doc, event.update, BUS_ORIGIN)
-      if (event.seq > entry.uptoSeq && !entry.seqs.includes(event.seq)) entry.seqs.push(event.seq)
-    } else {
-      awarenessProtocol.applyAwarenessUpdate(entry.awareness, event.update, BUS_ORIGIN)
+    if (!entry) {
+      // Heard while the sheet loads: applied once its document is in memory.
+      this.loading.get(event.sheetId)?.events.push(event)
+      return
     }
+    if (!entry.broken) this.onSheetEvent(entry, event)
+  }
+
+  private onSheetEvent(entry: DocEntry, event: SheetEvent): void {
+    if (event.type === 'awareness') {
+      awarenessProtocol.applyAwarenessUpdate(entry.awareness, event.update, BUS_ORIGIN)
+      return
+    }
+    // A row this document already holds (from its load, or heard twice) is skipped. One the state row covers is
+    // applied all the same: Yjs ignores what it has, and an instance that adopted another's compaction may lack it.
+    if (entry.seqs.includes(event.seq)) return
+    Y.applyUpdate(entry.doc, event.update, BUS_ORIGIN)
+    if (event.seq > entry.uptoSeq) {
+      entry.seqs.push(event.seq)
+      this.watchGap(entry)
+    }
+  }
+
+  /** Seqs known here run without a hole from the state row up. */
+  private contiguous(entry: DocEntry): boolean {
+    let max = entry.uptoSeq
+    for (const seq of entry.seqs) if (seq > max) max = seq
+    return max - entry.uptoSeq === entry.seqs.length
+  }
+
+  /** A hole that outlasts `gapMs` means a row was stored but its publication never reached us: catch up. */
+  private watchGap(entry: DocEntry): void {
+    if (entry.gapTimer || this.contiguous(entry)) return
+    entry.gapTimer = setTimeout(() => {
+      entry.gapTimer = null
+      if (this.entries.get(entry.sheetId) === entry && !entry.broken && !this.contiguous(entry)) this.catchUp(entry)
+    }, this.options.gapMs ?? 2000)
+    entry.gapTimer.unref()
+  }
+
+  /**
+   * Brings a document up to date from the database (state and rows it lacks), relaying what was missing to its
+   * peers. Runs as store work, so no commit of this instance is in flight meanwhile.
+   */
+  catchUp(entry: DocEntry): void {
+    const run = () => {
+      if (this.entries.get(entry.sheetId) !== entry || entry.broken) return
+      let loaded: MaybePromise<LoadedDocument>
+      try {
+        loaded = this.options.store.loadDocument(entry.sheetId)
+      } catch (err) {
+        this.options.log?.(`could not catch sheet ${entry.sheetId} up: ${(err as Error).message}`)
+        return
+      }
+      if (isPromise(loaded)) this.hold(loaded.then((l) => this.merge(entry, l)))
+      else this.merge(entry, loaded)
+    }
+    if (this.busy) void this.after(run)
+    else run()
+  }
+
+  private merge(entry: DocEntry, loaded: LoadedDocument): void {
+    if (this.entries.get(entry.sheetId) !== entry || entry.broken) return
+    Y.applyUpdate(entry.doc, Y.encodeStateAsUpdate(loaded.doc), BUS_ORIGIN)
+    loaded.doc.destroy()
+    if (loaded.uptoSeq > entry.uptoSeq) {
+      entry.uptoSeq = loaded.uptoSeq
+      entry.seqs = entry.seqs.filter((s) => s > loaded.uptoSeq)
+    }
+    const known = new Set(entry.seqs)
+    for (const seq of loaded.seqs) if (seq > entry.uptoSeq && !known.has(seq)) entry.seqs.push(seq)
+    this.counters.catchUps++
   }
 }

@@ -27,15 +27,32 @@ export type CompactOutcome =
   | { ok: true; uptoSeq: number; deleted: number }
   | { ok: false; reason: string; uptoSeq: number }
 
-/** The hooks the registry persists through (STYLE 13: loadDocument / storeUpdate), replaceable in tests. */
+/** A value now, or later: the SQLite store answers at once, a network database answers with a Promise. */
+export type MaybePromise<T> = T | Promise<T>
+
+export function isPromise<T>(value: MaybePromise<T>): value is Promise<T> {
+  return value instanceof Promise
+}
+
+/**
+ * The hooks the registry persists through (STYLE 13: loadDocument / storeUpdate), replaceable in tests. Each may
+ * answer at once or with a Promise; the registry keeps the same guarantees either way (registry.ts).
+ */
 export interface CollabStore {
-  loadDocument(sheetId: string): LoadedDocument
-  /** Appends rows in one transaction and returns their seqs in order; throws if the transaction fails. */
-  storeUpdates(rows: readonly PendingRow[]): number[]
+  loadDocument(sheetId: string): MaybePromise<LoadedDocument>
+  /** Appends rows in one transaction and returns their seqs in order; throws (or rejects) if the transaction fails. */
+  storeUpdates(rows: readonly PendingRow[]): MaybePromise<number[]>
   /**
    * Replaces the state row and deletes the rows it now covers, in one transaction — only when the database holds
    * exactly what this process knows (`prevUptoSeq` unchanged and `coveredSeqs` are all the rows up to the new seq).
    */
+  compact(sheetId: string, state: Uint8Array, prevUptoSeq: number, coveredSeqs: readonly number[]): MaybePromise<CompactOutcome>
+}
+
+/** A store that always answers at once (SQLite). */
+export interface SyncCollabStore extends CollabStore {
+  loadDocument(sheetId: string): LoadedDocument
+  storeUpdates(rows: readonly PendingRow[]): number[]
   compact(sheetId: string, state: Uint8Array, prevUptoSeq: number, coveredSeqs: readonly number[]): CompactOutcome
 }
 
@@ -52,7 +69,7 @@ export function buildDocument(state: Uint8Array | null, updates: readonly Uint8A
   return doc
 }
 
-export function createSqliteStore(db: Db): CollabStore {
+export function createSqliteStore(db: Db): SyncCollabStore {
   // Every query is prepared once. The append runs for each accepted edit before it is relayed, so its transactions
   // are better-sqlite3's own (a single row commits on its own): Drizzle's `db.transaction` builds a session object per
   // call, which doubled the time an edit waited before being sent on (bench/cases/collab-latency.ts).

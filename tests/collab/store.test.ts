@@ -4,7 +4,7 @@
 import { afterEach, beforeEach, describe, expect, it } from 'vitest'
 import * as Y from 'yjs'
 import { cellsOf } from '../../shared/doc/sheetDoc'
-import { createSqliteStore, type CollabStore } from '../../server/collab/store'
+import { createSqliteStore, type SyncCollabStore } from '../../server/collab/store'
 import { createLab, type Lab } from './support/fixture'
 
 /** Every stored row of a sheet, oldest first. */
@@ -13,7 +13,7 @@ function storedRows(lab: Lab, sheetId: string): { seq: number; update: Uint8Arra
 }
 
 /** An update that appends `text` to the first formula of the sheet's stored document. */
-function edit(store: CollabStore, sheetId: string, text: string): Uint8Array {
+function edit(store: SyncCollabStore, sheetId: string, text: string): Uint8Array {
   const { doc } = store.loadDocument(sheetId)
   const formula = cellsOf(doc)
     .toArray()
@@ -32,7 +32,7 @@ function firstFormulaSource(doc: Y.Doc): string {
 
 describe('collab: SQLite store', () => {
   let lab: Lab
-  let store: CollabStore
+  let store: SyncCollabStore
   beforeEach(async () => {
     lab = await createLab()
     store = createSqliteStore(lab.handle.db)
