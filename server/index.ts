@@ -21,6 +21,7 @@ import { createDevMailer, smtpMailer, type Mailer } from './mail/mailer'
 import { pruneExpired } from './services/housekeeping'
 import { closeSharedEvaluator } from './services/evaluation'
 import { createCollab, type Collab } from './collab/index'
+import type { Pool } from 'pg'
 import type { AppHooks } from './deps'
 
 const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..')
@@ -38,6 +39,8 @@ export interface ServerEnv {
   TRUST_PROXY?: string
   /** Port of the local fake SMTP server (default: any free port). */
   DEV_SMTP_PORT?: string
+  /** redis://…: live edits and control events fan out to the other app instances through Redis streams. */
+  REDIS_URL?: string
 }
 
 /**
@@ -128,7 +131,15 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
 
   // behind a reverse proxy the browser's Origin is the public address, not the Host the proxy forwards
   const allowedOrigins = env.PUBLIC_URL ? [new URL(env.PUBLIC_URL).origin] : undefined
-  const collab = createCollab({ db: handle.db, secret, allowedOrigins, log: (m) => log(`collab: ${m}`) })
+  const collab = createCollab({
+    db: handle.db,
+    secret,
+    allowedOrigins,
+    // several instances: the update log in PostgreSQL when the database is PostgreSQL, the fan-out through Redis
+    pgPool: (handle as { pool?: Pool }).pool,
+    redisUrl: env.REDIS_URL || undefined,
+    log: (m) => log(`collab: ${m}`),
+  })
   const hooks: AppHooks = {
     membershipChanged: (labId, userId) => collab.membershipChanged(labId, userId),
     sheetDeleted: (sheetId) => collab.sheetDeleted(sheetId),

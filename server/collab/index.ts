@@ -13,15 +13,18 @@ import type { Duplex } from 'node:stream'
 import { randomUUID } from 'node:crypto'
 import { WebSocketServer } from 'ws'
 import type * as Y from 'yjs'
+import type { Pool } from 'pg'
 import type { Db } from '../db/client'
 import { userForToken } from '../services/sessions'
 import { roleInLab, sheetAccess } from '../services/access'
 import { createAuthenticate, sessionMessage, type Authenticate } from './auth'
 import { createLocalBus, type CollabBus } from './bus'
+import { createRedisBus } from './redisBus'
 import { CLOSE, CollabConnection, DEFAULT_RATE_LIMIT, emptyConnectionCounters, type ConnectionCounters, type RateLimit } from './connection'
 import { rejectUpgrade } from './http'
 import { DocumentRegistry, type RegistryCounters } from './registry'
 import { createSqliteStore, isPromise, type CollabStore } from './store'
+import { createPgStore } from './store.pg'
 
 export { CLOSE } from './connection'
 export type { RateLimit } from './connection'
@@ -44,14 +47,22 @@ export interface CollabOptions {
   idleCompactMs?: number
   /** Unload a sheet this long after its last connection left (default 30 s). */
   evictAfterMs?: number
+  /** A hole in the seqs heard from other instances older than this is filled from the database (default 2 s). */
+  gapMs?: number
   /** Housekeeping period (default 1 s). */
   sweepMs?: number
   /** Ping period; a connection that misses a pong is dropped (default 30 s). */
   pingMs?: number
   /** How often each connection's session and role are checked again in the database (default 15 s). */
   recheckMs?: number
-  /** Fan-out to other app instances (default: none, one process). */
+  /** Fan-out to other app instances (default: none, one process; or Redis streams with `redisUrl`). */
   bus?: CollabBus
+  /** REDIS_URL: fan out through Redis streams (redisBus.ts), closed with the collaboration server. */
+  redisUrl?: string
+  /** Prefix of the Redis keys (default `penumbra:`). */
+  redisPrefix?: string
+  /** The PostgreSQL pool when the database is PostgreSQL: the update log is then kept there (store.pg.ts). */
+  pgPool?: Pool
   instanceId?: string
   hooks?: { authenticate?: Authenticate; store?: CollabStore }
   log?: (message: string) => void
@@ -89,7 +100,8 @@ export function createCollab(options: CollabOptions): Collab {
   const { db } = options
   const log = options.log ?? ((message: string) => console.warn(`[collab] ${message}`))
   const instanceId = options.instanceId ?? randomUUID()
-  const bus = options.bus ?? createLocalBus()
+  const ownBus = !options.bus && options.redisUrl ? createRedisBus(options.redisUrl, { prefix: options.redisPrefix, log: (m) => log(`redis: ${m}`) }) : null
+  const bus = options.bus ?? ownBus ?? createLocalBus()
   const authenticate = options.hooks?.authenticate ?? createAuthenticate(db, options.secret, options.allowedOrigins)
   const limit: RateLimit = { ...DEFAULT_RATE_LIMIT, ...options.rateLimit }
   const pingMs = options.pingMs ?? 30_000
@@ -100,12 +112,13 @@ export function createCollab(options: CollabOptions): Collab {
   const connections = new Set<CollabConnection>()
 
   const registry = new DocumentRegistry({
-    store: options.hooks?.store ?? createSqliteStore(db),
+    store: options.hooks?.store ?? (options.pgPool ? createPgStore(options.pgPool) : createSqliteStore(db)),
     bus,
     instanceId,
     compactEvery: options.compactEvery ?? 500,
     idleCompactMs: options.idleCompactMs ?? 10_000,
     evictAfterMs: options.evictAfterMs ?? 30_000,
+    gapMs: options.gapMs,
     log,
     onControl: (event) => {
       if (event.type === 'membership') applyMembership(event.labId, event.userId)
@@ -250,6 +263,7 @@ export function createCollab(options: CollabOptions): Collab {
       const open = [...connections]
       for (const conn of open) conn.close(CLOSE.goingAway, 'the server is shutting down')
       await registry.close()
+      await ownBus?.close()
       wss.close()
       await Promise.race([Promise.all(open.map((c) => c.whenClosed)), new Promise((resolve) => setTimeout(resolve, 1000).unref())])
       for (const conn of open) conn.terminate()
@@ -263,7 +277,7 @@ export function createCollab(options: CollabOptions): Collab {
         connections: connections.size,
         readers,
         writers: connections.size - readers,
-        counters: { ...registry.counters, ...connCounters, upgradesRefused },
+        counters: { ...registry.counters, busFailures: registry.counters.busFailures + (bus.failures?.() ?? 0), ...connCounters, upgradesRefused },
         sheets: registry.sheets().map((e) => ({ sheetId: e.sheetId, connections: e.peers.size, rowsSinceCompaction: e.seqs.length, uptoSeq: e.uptoSeq })),
       }
     },

@@ -5,8 +5,8 @@ import { describe, expect, it } from 'vitest'
 import * as Y from 'yjs'
 import { cellsOf, docToSheetFile } from '../../shared/doc/sheetDoc'
 import { loadDocument } from '../../server/services/documents'
-import { createMemoryBus } from '../../server/collab/index'
-import { until } from './support/fixture'
+import { createMemoryBus, type CollabBus } from '../../server/collab/index'
+import { storedRows, until } from './support/fixture'
 import { useCollab } from './support/useCollab'
 
 function text(doc: Y.Doc): Y.Text {
@@ -57,5 +57,30 @@ describe('collab: two instances sharing one log', () => {
     expect(formula(stored)).toBe(formula(b.doc))
     expect(docToSheetFile(stored)).toEqual(docToSheetFile(b.doc))
     expect(Y.encodeStateVector(stored)).toEqual(Y.encodeStateVector(b.doc))
+  })
+
+  it('catches a document up from the database when a publication from the other instance was lost', async () => {
+    const inner = createMemoryBus()
+    let lose = 0
+    const bus: CollabBus = {
+      publish(instanceId, event) {
+        if (event.type === 'update' && lose > 0) lose--
+        else inner.publish(instanceId, event)
+      },
+      subscribe: (instanceId, listener) => inner.subscribe(instanceId, listener),
+    }
+    const one = await t.start({ bus, instanceId: 'one', gapMs: 50 })
+    const two = await t.another({ bus, instanceId: 'two', gapMs: 50 })
+    const a = t.connect('editor', { server: one })
+    const b = t.connect('editor2', { server: two })
+    await Promise.all([a.synced(), b.synced()])
+    lose = 1
+    text(a.doc).insert(4, ' lost')
+    await until(() => storedRows(t.lab) === 1, 'the first edit stored (its publication lost)')
+    text(a.doc).insert(text(a.doc).length, ' heard')
+    // Seq 2 arrives without seq 1: after gapMs instance two reads the sheet again and relays what it lacked.
+    await until(() => formula(b.doc) === 'Eg*2 lost heard', 'both edits at b')
+    expect(two.collab.stats().counters.catchUps).toBe(1)
+    expect(two.collab.stats().sheets[0]).toMatchObject({ rowsSinceCompaction: 2 })
   })
 })
