@@ -22,7 +22,7 @@ import { createLocalBus, type CollabBus } from './bus'
 import { createRedisBus } from './redisBus'
 import { CLOSE, CollabConnection, DEFAULT_RATE_LIMIT, emptyConnectionCounters, type ConnectionCounters, type RateLimit } from './connection'
 import { rejectUpgrade } from './http'
-import { DocumentRegistry, type RegistryCounters } from './registry'
+import { DocumentRegistry, SheetDeletedError, type RegistryCounters } from './registry'
 import { createSqliteStore, isPromise, type CollabStore } from './store'
 import { createPgStore } from './store.pg'
 
@@ -213,6 +213,7 @@ export function createCollab(options: CollabOptions): Collab {
       const opened = registry.open(admission.sheetId)
       entry = isPromise(opened) ? await opened : opened
     } catch (err) {
+      if (err instanceof SheetDeletedError) return refuse(404, 'no such sheet')
       log(`could not load sheet ${admission.sheetId}: ${(err as Error).message}`)
       return refuse(500, 'could not load this sheet')
     }

@@ -23,6 +23,13 @@ import type { CollabBus, BusEvent } from './bus'
 import { isPromise, type CollabStore, type CompactOutcome, type LoadedDocument, type MaybePromise, type PendingRow } from './store'
 import { encodeAwarenessEntries, encodeAwarenessMessage, encodeSyncStep1, encodeSyncStep2, encodeUpdateMessage, type AwarenessEntry } from './protocol'
 
+/** A sheet deleted while its document was loading. */
+export class SheetDeletedError extends Error {
+  constructor() {
+    super('the sheet was deleted while it loaded')
+  }
+}
+
 /** What the registry needs from a connection. */
 export interface RegistryPeer {
   readonly userId: string
@@ -85,6 +92,8 @@ export interface DocEntry {
 interface Loading {
   promise: Promise<DocEntry>
   events: SheetEvent[]
+  /** Deleted while it loaded: the load ends in a refusal instead of a document. */
+  dropped: boolean
 }
 type SheetEvent = Extract<BusEvent, { type: 'update' | 'awareness' }>
 
@@ -164,11 +173,15 @@ export class DocumentRegistry {
 
   /** Holds the bus events of a sheet while its document loads; on failure the sheet is not watched any more. */
   private track(sheetId: string, load: Promise<LoadedDocument>): Promise<DocEntry> {
-    const pending: Loading = { promise: null as unknown as Promise<DocEntry>, events: [] }
+    const pending: Loading = { promise: null as unknown as Promise<DocEntry>, events: [], dropped: false }
     pending.promise = load.then(
       (loaded) => {
         this.loading.delete(sheetId)
         if (this.closed) throw new Error('the collaboration server is shutting down')
+        if (pending.dropped) {
+          this.options.bus.unwatch?.(sheetId)
+          throw new SheetDeletedError()
+        }
         const entry = this.install(sheetId, loaded)
         for (const event of pending.events) this.onSheetEvent(entry, event)
         return entry
@@ -334,6 +347,8 @@ export class DocumentRegistry {
 
   /** Forgets a sheet at once (deleted): queued rows and frames for it are dropped, its peers closed. */
   drop(sheetId: string, code: number, reason: string): void {
+    const loading = this.loading.get(sheetId)
+    if (loading) loading.dropped = true
     const entry = this.entries.get(sheetId)
     if (!entry) return
     this.rows = this.rows.filter((r) => r.entry !== entry)

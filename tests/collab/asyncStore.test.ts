@@ -156,6 +156,20 @@ describe('collab: a store that answers later', () => {
     expect(JSON.parse(refused.body)).toEqual({ error: 'could not load this sheet' })
   })
 
+  it('refuses with 404 the upgrades waiting for a sheet that is deleted while it loads', async () => {
+    const slow = slowStore(t.lab)
+    await t.start({ hooks: { store: slow.store } })
+    slow.gates.load.shut()
+    const waiting = upgradeStatus(t.server, t.lab.sheetId, t.lab.tokens.editor)
+    await until(() => slow.calls.load === 1, 'the load to start')
+    t.server.collab.sheetDeleted(t.lab.sheetId)
+    slow.gates.load.open()
+    const refused = await waiting
+    expect(refused.status).toBe(404)
+    expect(JSON.parse(refused.body)).toEqual({ error: 'no such sheet' })
+    expect(t.server.collab.stats().documents).toBe(0)
+  })
+
   it('changeDocument() settles once the change is stored', async () => {
     const slow = slowStore(t.lab, () => 20)
     await t.start({ hooks: { store: slow.store } })
