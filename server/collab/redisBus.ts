@@ -13,6 +13,7 @@
  *   when the next seq they hear leaves a hole (registry.ts).
  * - Events an instance published itself are skipped when it reads them back.
  */
+import { randomUUID } from 'node:crypto'
 import { Redis } from 'ioredis'
 import type { BusEvent, CollabBus } from './bus'
 
@@ -53,6 +54,9 @@ export function createRedisBus(url: string, options: RedisBusOptions = {}): Redi
   const log = options.log ?? ((m: string) => console.warn(`[redis bus] ${m}`))
   const controlKey = `${prefix}control`
   const sheetKey = (sheetId: string) => `${prefix}sheet:${sheetId}`
+  // This instance's own wake-up stream, read with the others: an entry there ends the blocking read at once, so a
+  // newly watched sheet joins the read without waiting out `blockMs`.
+  const wakeKey = `${prefix}wake:${randomUUID()}`
 
   // Commands queue while Redis is away and are retried twice; a publication that still fails is counted and lost.
   const writer = new Redis(url, { maxRetriesPerRequest: 2 })
@@ -67,7 +71,6 @@ export function createRedisBus(url: string, options: RedisBusOptions = {}): Redi
   const sheetOfKey = new Map<string, string>()
   let self: string | null = null
   let listener: ((event: BusEvent) => void) | null = null
-  let readerId: number | null = null
   let failureCount = 0
   let healthy = true
   let closed = false
@@ -99,8 +102,12 @@ export function createRedisBus(url: string, options: RedisBusOptions = {}): Redi
 
   /** Interrupts the blocking read so it starts again with the current set of streams. */
   function interrupt(): void {
-    if (readerId === null) return
-    writer.client('UNBLOCK', readerId).catch(() => {})
+    writer
+      .pipeline()
+      .xadd(wakeKey, 'MAXLEN', 1, '*', F.type, 'wake')
+      .pexpire(wakeKey, 600_000)
+      .exec()
+      .catch((err: Error) => failed(`waking the reader: ${err.message}`))
   }
 
   function decode(key: string, fields: Buffer[]): BusEvent | null {
@@ -139,6 +146,10 @@ export function createRedisBus(url: string, options: RedisBusOptions = {}): Redi
       if (!answer) continue
       for (const [keyBuffer, entries] of answer) {
         const key = keyBuffer.toString()
+        if (key === wakeKey) {
+          positions.set(key, entries[entries.length - 1][0].toString())
+          continue
+        }
         if (!positions.has(key)) continue // unwatched meanwhile
         for (const [id, fields] of entries) {
           positions.set(key, id.toString())
@@ -160,16 +171,10 @@ export function createRedisBus(url: string, options: RedisBusOptions = {}): Redi
     }
   }
 
-  reader.on('ready', () => {
-    reader
-      .client('ID')
-      .then((id) => (readerId = Number(id)))
-      .catch(() => (readerId = null))
-  })
-
   // Without Redis at start the control stream is read from a minute back once it comes (the connections retry).
   const ready = lastId(controlKey).then((start) => {
     positions.set(controlKey, start)
+    positions.set(wakeKey, '0-0')
     void readLoop()
   })
 
@@ -235,6 +240,7 @@ export function createRedisBus(url: string, options: RedisBusOptions = {}): Redi
       closed = true
       listener = null
       reader.disconnect()
+      await writer.del(wakeKey).catch(() => {})
       await writer.quit().catch(() => writer.disconnect())
     },
   }

@@ -23,6 +23,19 @@ import type { CollabBus, BusEvent } from './bus'
 import { isPromise, type CollabStore, type CompactOutcome, type LoadedDocument, type MaybePromise, type PendingRow } from './store'
 import { encodeAwarenessEntries, encodeAwarenessMessage, encodeSyncStep1, encodeSyncStep2, encodeUpdateMessage, type AwarenessEntry } from './protocol'
 
+/**
+ * The seqs right above the state row that this instance holds without a hole: what a compaction may cover. With
+ * several instances writing, rows of the others stored but not yet heard of leave holes; compacting up to the first
+ * hole keeps the log short under constant typing (the state may hold later rows too: applying them again on load
+ * changes nothing). One instance alone always holds them all.
+ */
+function knownPrefix(entry: DocEntry): number[] {
+  const sorted = entry.seqs.slice().sort((a, b) => a - b)
+  let n = 0
+  while (n < sorted.length && sorted[n] === entry.uptoSeq + n + 1) n++
+  return n === sorted.length ? sorted : sorted.slice(0, n)
+}
+
 /** A sheet deleted while its document was loading. */
 export class SheetDeletedError extends Error {
   constructor() {
@@ -423,8 +436,10 @@ export class DocumentRegistry {
       if (entry.broken || entry.seqs.length === 0) return false
     }
     if (this.entries.get(entry.sheetId) !== entry) return false
+    const covered = knownPrefix(entry)
+    // Most rows known here lie beyond a hole (another instance's rows not heard of yet): wait for it to fill.
+    if (covered.length * 2 < entry.seqs.length) return false
     const state = Y.encodeStateAsUpdate(entry.doc)
-    const covered = entry.seqs.slice()
     let outcome
     try {
       outcome = this.options.store.compact(entry.sheetId, state, entry.uptoSeq, covered)
