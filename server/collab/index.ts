@@ -21,7 +21,8 @@ import { createLocalBus, type CollabBus } from './bus'
 import { CLOSE, CollabConnection, DEFAULT_RATE_LIMIT, emptyConnectionCounters, type ConnectionCounters, type RateLimit } from './connection'
 import { rejectUpgrade } from './http'
 import { DocumentRegistry, type RegistryCounters } from './registry'
-import { createSqliteStore, type CollabStore } from './store'
+import type { CollabStore } from './store'
+import { defaultStore } from './defaultStore'
 
 export { CLOSE } from './connection'
 export type { RateLimit } from './connection'
@@ -100,7 +101,7 @@ export function createCollab(options: CollabOptions): Collab {
   const connections = new Set<CollabConnection>()
 
   const registry = new DocumentRegistry({
-    store: options.hooks?.store ?? createSqliteStore(db),
+    store: options.hooks?.store ?? defaultStore(db),
     bus,
     instanceId,
     compactEvery: options.compactEvery ?? 500,
@@ -137,13 +138,14 @@ export function createCollab(options: CollabOptions): Collab {
   function recheck(conn: CollabConnection, now: number) {
     conn.lastRecheck = now
     userForToken(db, options.secret, conn.token)
-      .then((session) => {
+      .then(async (session) => {
         if (conn.closed) return
         if (!session.ok) {
           conn.close(CLOSE.sessionEnded, sessionMessage(session.reason))
           return
         }
-        const access = sheetAccess(db, conn.sheetId, conn.userId)
+        const access = await sheetAccess(db, conn.sheetId, conn.userId)
+        if (conn.closed) return
         if (!access.sheet) {
           closeSheet(conn.sheetId)
           return
@@ -162,12 +164,13 @@ export function createCollab(options: CollabOptions): Collab {
   }
 
   function applyMembership(labId: string, userId: string) {
-    let role: ReturnType<typeof roleInLab> | undefined
-    for (const conn of connections) {
-      if (conn.labId !== labId || conn.userId !== userId) continue
-      role ??= roleInLab(db, labId, userId)
-      conn.applyRole(role)
-    }
+    const affected = [...connections].filter((conn) => conn.labId === labId && conn.userId === userId)
+    if (affected.length === 0) return
+    roleInLab(db, labId, userId)
+      .then((role) => {
+        for (const conn of affected) if (!conn.closed) conn.applyRole(role)
+      })
+      .catch((err: Error) => log(`membership check failed: ${err.message}`))
   }
 
   function closeSheet(sheetId: string) {

@@ -39,7 +39,7 @@ describe('collab: an update before the one it builds on', () => {
   it('refuses it with 1007 (nothing stored or relayed); the two sent in order are stored and relayed', async () => {
     const watcher = t.connect('editor2')
     await watcher.synced()
-    const [first, second] = dependentPair(loadDocument(t.lab.handle.db, t.lab.sheetId))
+    const [first, second] = dependentPair(await loadDocument(t.lab.handle.db, t.lab.sheetId))
     const early = await t.raw('editor')
     early.ws.send(syncFrame(2, second))
     const closed = await early.closed
@@ -50,7 +50,7 @@ describe('collab: an update before the one it builds on', () => {
     editor.ws.send(syncFrame(2, first))
     editor.ws.send(syncFrame(2, second))
     await until(() => text(watcher.doc).toString() === 'Eg*2+1+2', 'both updates at the watcher')
-    expect(text(loadDocument(t.lab.handle.db, t.lab.sheetId)).toString()).toBe('Eg*2+1+2')
+    expect(text(await loadDocument(t.lab.handle.db, t.lab.sheetId)).toString()).toBe('Eg*2+1+2')
     expect(editor.isOpen()).toBe(true)
   })
 })
@@ -118,6 +118,6 @@ describe('collab: the stock client through a server restart', () => {
     await until(() => a.provider.wsconnected && b.provider.wsconnected && a.provider.synced && b.provider.synced, 'both to reconnect', 10_000)
     const expected = '(b)online Eg*2 +offline'
     await until(() => text(a.doc).toString() === expected && text(b.doc).toString() === expected, 'the offline edits to cross', 10_000)
-    await until(() => text(loadDocument(t.lab.handle.db, t.lab.sheetId)).toString() === expected, 'the offline edits stored')
+    await until(() => text(await loadDocument(t.lab.handle.db, t.lab.sheetId)).toString() === expected, 'the offline edits stored')
   })
 })

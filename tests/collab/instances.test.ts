@@ -53,7 +53,7 @@ describe('collab: two instances sharing one log', () => {
     await until(() => one.collab.stats().counters.compactions + two.collab.stats().counters.compactions >= 5, 'compactions on the shared log')
     await two.close()
     await one.close()
-    const stored = loadDocument(t.lab.handle.db, t.lab.sheetId)
+    const stored = await loadDocument(t.lab.handle.db, t.lab.sheetId)
     expect(formula(stored)).toBe(formula(b.doc))
     expect(docToSheetFile(stored)).toEqual(docToSheetFile(b.doc))
     expect(Y.encodeStateVector(stored)).toEqual(Y.encodeStateVector(b.doc))

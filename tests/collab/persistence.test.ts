@@ -56,7 +56,7 @@ describe('collab: update log', () => {
     expect(stored.uptoSeq).toBeGreaterThan(0)
     expect(stored.updates.length).toBeLessThan(500)
 
-    const reloaded = loadDocument(t.lab.handle.db, t.lab.sheetId)
+    const reloaded = await loadDocument(t.lab.handle.db, t.lab.sheetId)
     expect(docToSheetFile(reloaded)).toEqual(docToSheetFile(a.doc))
     expect(Y.encodeStateVector(reloaded)).toEqual(Y.encodeStateVector(a.doc))
     expect(contains(reloaded, a.doc) && contains(a.doc, reloaded)).toBe(true)
@@ -83,7 +83,7 @@ describe('collab: update log', () => {
 
   it('loads a sheet whose log was never compacted (10,000 rows) and compacts it right after the first answer', async () => {
     const doc = new Y.Doc()
-    Y.applyUpdate(doc, Y.encodeStateAsUpdate(loadDocument(t.lab.handle.db, t.lab.sheetId)))
+    Y.applyUpdate(doc, Y.encodeStateAsUpdate(await loadDocument(t.lab.handle.db, t.lab.sheetId)))
     const rows: Uint8Array[] = []
     doc.on('update', (u: Uint8Array) => rows.push(u))
     const text = formulaText(doc)
@@ -96,7 +96,7 @@ describe('collab: update log', () => {
     await a.synced()
     expect(formulaText(a.doc).toString()).toBe(text.toString())
     await until(() => storedRows(t.lab) === 0, 'the compaction of the long log')
-    expect(formulaText(loadDocument(t.lab.handle.db, t.lab.sheetId)).toString()).toBe(text.toString())
+    expect(formulaText(await loadDocument(t.lab.handle.db, t.lab.sheetId)).toString()).toBe(text.toString())
   })
 
   it('buildDocument() turns a state and a long log into the same document the edits made', () => {
@@ -140,7 +140,7 @@ describe('collab: update log', () => {
     const a = t.connect('viewer')
     await a.synced()
     t.server.collab.changeDocument(t.lab.sheetId, (doc) => doc.getMap('meta').set('title', 'Edge model, annealed'), t.lab.userIds.owner)
-    expect(docToSheetFile(loadDocument(t.lab.handle.db, t.lab.sheetId)).title).toBe('Edge model, annealed')
+    expect(docToSheetFile(await loadDocument(t.lab.handle.db, t.lab.sheetId)).title).toBe('Edge model, annealed')
     const row = t.lab.handle.sqlite.prepare('SELECT user_id FROM sheet_updates WHERE sheet_id = ?').get(t.lab.sheetId) as { user_id: string }
     expect(row.user_id).toBe(t.lab.userIds.owner)
     await until(() => a.doc.getMap('meta').get('title') === 'Edge model, annealed', 'the change at the viewer')
@@ -168,6 +168,6 @@ describe('collab: update log', () => {
     expect(stored).toBe(240)
     await second.close()
     await t.server.close()
-    expect(formulaText(loadDocument(t.lab.handle.db, t.lab.sheetId)).toString()).toBe(ta.toString())
+    expect(formulaText(await loadDocument(t.lab.handle.db, t.lab.sheetId)).toString()).toBe(ta.toString())
   })
 })

@@ -90,7 +90,7 @@ describe('collab: sessions and roles while connected', () => {
     await until(() => editor.denied.length === 1, 'the permission-denied answer')
     await until(() => t.server.collab.stats().counters.deniedUpdates === 20, 'the twenty later keystrokes refused')
     expect(text(watcher.doc).toString()).toBe('Eg*2' + '01234567890123456789')
-    expect(text(loadDocument(t.lab.handle.db, t.lab.sheetId)).toString()).toBe(text(watcher.doc).toString())
+    expect(text(await loadDocument(t.lab.handle.db, t.lab.sheetId)).toString()).toBe(text(watcher.doc).toString())
     expect(storedRows(t.lab)).toBe(20)
     expect(editor.denied.length).toBe(1)
     expect(editor.provider.wsconnected).toBe(true)

@@ -41,7 +41,7 @@ describe('collab: varints decoded as numbers', () => {
   it('applies an editor update whose length is a non-minimal varint, and drops the same frame from a reviewer', async () => {
     const watcher = t.connect('editor2')
     await watcher.synced()
-    const base = loadDocument(t.lab.handle.db, t.lab.sheetId)
+    const base = await loadDocument(t.lab.handle.db, t.lab.sheetId)
     const reviewer = await t.raw('reviewer')
     reviewer.ws.send(syncFrame(2, appendToFormula(base, '*9'), { lengthBytes: 4, syncTypeBytes: 2 }))
     await roundTrip(reviewer)
@@ -51,12 +51,12 @@ describe('collab: varints decoded as numbers', () => {
     const editor = await t.raw('editor')
     editor.ws.send(syncFrame(2, appendToFormula(base, '*3'), { lengthBytes: 4 }))
     await until(() => formula(watcher.doc) === 'Eg*2*3', 'the editor update at the watcher')
-    expect(formula(loadDocument(t.lab.handle.db, t.lab.sheetId))).toBe('Eg*2*3')
+    expect(formula(await loadDocument(t.lab.handle.db, t.lab.sheetId))).toBe('Eg*2*3')
     expect(reviewer.isOpen() && editor.isOpen()).toBe(true)
   })
 
   it('closes a connection whose message type is 2^32 (0 in its low 32 bits), storing nothing', async () => {
-    const base = loadDocument(t.lab.handle.db, t.lab.sheetId)
+    const base = await loadDocument(t.lab.handle.db, t.lab.sheetId)
     const update = appendToFormula(base, '+7')
     for (const person of ['editor', 'viewer'] as const) {
       const raw = await t.raw(person)
@@ -116,7 +116,7 @@ describe('collab: readers on the wire', () => {
   it('drops a reader’s sync step 2 sent as its very first message, answers it once, and keeps the reader', async () => {
     const watcher = t.connect('editor')
     await watcher.synced()
-    const base = loadDocument(t.lab.handle.db, t.lab.sheetId)
+    const base = await loadDocument(t.lab.handle.db, t.lab.sheetId)
     const viewer = await t.raw('viewer')
     viewer.ws.send(syncFrame(1, appendToFormula(base, ' first')))
     viewer.ws.send(syncFrame(1, appendToFormula(base, ' second')))
@@ -258,7 +258,7 @@ describe('collab: a writer over its rate limit', () => {
     await watcher.synced()
     const editor = await t.raw('editor')
     // One local document typing 40 keystrokes, each sent as its own update the moment it is made.
-    const local = loadDocument(t.lab.handle.db, t.lab.sheetId)
+    const local = await loadDocument(t.lab.handle.db, t.lab.sheetId)
     const frames: Uint8Array[] = []
     local.on('update', (u: Uint8Array) => frames.push(syncFrame(2, u)))
     const text = cellsOf(local).get(2).get('source') as Y.Text
@@ -273,7 +273,7 @@ describe('collab: a writer over its rate limit', () => {
     expect(accepted).toBeLessThanOrEqual(21)
     expect(formula(watcher.doc)).toBe('Eg*2' + 'abcdefghijklmnopqrstuvwxyzabcdefghijklmn'.slice(0, accepted))
     expect(storedRows(t.lab)).toBe(accepted)
-    expect(formula(loadDocument(t.lab.handle.db, t.lab.sheetId))).toBe(formula(watcher.doc))
+    expect(formula(await loadDocument(t.lab.handle.db, t.lab.sheetId))).toBe(formula(watcher.doc))
     expect(watcher.closes).toEqual([])
   })
 })
@@ -334,7 +334,7 @@ describe('collab: deeply nested values in a writer’s update', () => {
   it('accepts a spectrum cell’s columns (a few levels of objects over long arrays)', async () => {
     const watcher = t.connect('editor2')
     await watcher.synced()
-    const local = loadDocument(t.lab.handle.db, t.lab.sheetId)
+    const local = await loadDocument(t.lab.handle.db, t.lab.sheetId)
     const before = Y.encodeStateVector(local)
     const cell = new Y.Map<unknown>()
     cell.set('id', 'cs')

@@ -74,7 +74,7 @@ export async function createLab(file = ':memory:', seed: SheetFile = DEMO_SHEET)
   const addSheet = (sheetFile: SheetFile = seed) => {
     const id = randomUUID()
     db.insert(sheets).values({ id, labId, title: sheetFile.title, createdBy: userIds.owner, createdAt: now, updatedAt: now }).run()
-    seedDocument(db, id, sheetFile)
+    await seedDocument(db, id, sheetFile)
     return id
   }
   const sheetId = addSheet(seed)

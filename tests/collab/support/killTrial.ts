@@ -114,7 +114,7 @@ export async function killTrial(options: KillTrialOptions = {}): Promise<KillTri
     const check = openDb(dbFile)
     let stored: Y.Doc
     try {
-      stored = loadDocument(check.db, lab.sheetId)
+      stored = await loadDocument(check.db, lab.sheetId)
     } finally {
       check.close()
     }
