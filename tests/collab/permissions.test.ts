@@ -80,7 +80,7 @@ describe('collab: readers', () => {
     const r = t.connect(reader)
     await Promise.all([editor.synced(), watcher.synced(), r.synced()])
     expect(formula(r.doc)).toBe('Eg*2')
-    const rowsBefore = storedRows(t.lab)
+    const rowsBefore = await storedRows(t.lab)
 
     // The reader's stock client sends its local edits as update messages.
     const text = cellsOf(r.doc).get(2).get('source') as Y.Text
@@ -96,7 +96,7 @@ describe('collab: readers', () => {
     await until(() => formula(watcher.doc) === 'Eg*2+1', 'the editor change at the second editor')
     await until(() => formula(r.doc).endsWith('Eg*2+1'), 'the editor change at the reader')
     expect(formula(editor.doc)).toBe('Eg*2+1')
-    expect(storedRows(t.lab)).toBe(rowsBefore + 1)
+    expect(await storedRows(t.lab)).toBe(rowsBefore + 1)
     expect(formula(await loadDocument(t.lab.handle.db, t.lab.sheetId))).toBe('Eg*2+1')
     // Answered once only, and still connected.
     expect(r.denied.length).toBe(1)
@@ -109,7 +109,7 @@ describe('collab: readers', () => {
     const watcher = t.connect('editor')
     await watcher.synced()
     const viewer = await t.raw('viewer')
-    const rowsBefore = storedRows(t.lab)
+    const rowsBefore = await storedRows(t.lab)
     const base = await loadDocument(t.lab.handle.db, t.lab.sheetId)
     // 0x80 0x00 is message type 0 (sync), 0x82 0x00 sync type 2 (update): a byte check for 0 and 2 misses both.
     viewer.ws.send(syncFrame(2, appendToFormula(base, ' sneaky'), { typeBytes: 2, syncTypeBytes: 2 }))
@@ -120,7 +120,7 @@ describe('collab: readers', () => {
     expect(denied.length).toBe(1)
     expect(t.server.collab.stats().counters.deniedUpdates).toBe(3)
     expect(viewer.isOpen()).toBe(true)
-    expect(storedRows(t.lab)).toBe(rowsBefore)
+    expect(await storedRows(t.lab)).toBe(rowsBefore)
     expect(formula(await loadDocument(t.lab.handle.db, t.lab.sheetId))).toBe('Eg*2')
     expect(formula(watcher.doc)).toBe('Eg*2')
   })
@@ -163,7 +163,7 @@ describe('collab: membership changes', () => {
     const editor = t.connect('editor')
     const other = t.connect('editor2')
     await Promise.all([editor.synced(), other.synced()])
-    t.lab.setRole('editor', null)
+    await t.lab.setRole('editor', null)
     t.server.collab.membershipChanged(t.lab.labId, t.lab.userIds.editor)
     await until(() => editor.closes.length === 1, 'the removed member to be disconnected')
     expect(editor.closes[0]).toEqual({ code: CLOSE.removed, reason: 'you are no longer a member of this lab' })
@@ -176,13 +176,13 @@ describe('collab: membership changes', () => {
     const editor = t.connect('editor')
     const watcher = t.connect('editor2')
     await Promise.all([editor.synced(), watcher.synced()])
-    t.lab.setRole('editor', 'viewer')
+    await t.lab.setRole('editor', 'viewer')
     t.server.collab.membershipChanged(t.lab.labId, t.lab.userIds.editor)
-    const rows = storedRows(t.lab)
+    const rows = await storedRows(t.lab)
     ;(cellsOf(editor.doc).get(2).get('source') as Y.Text).insert(0, '2*')
     await until(() => editor.denied.length === 1, 'permission denied for the demoted editor')
     expect(formula(watcher.doc)).toBe('Eg*2')
-    expect(storedRows(t.lab)).toBe(rows)
+    expect(await storedRows(t.lab)).toBe(rows)
     expect(editor.provider.wsconnected).toBe(true)
   })
 
@@ -190,7 +190,7 @@ describe('collab: membership changes', () => {
     const viewer = t.connect('viewer')
     const watcher = t.connect('editor')
     await Promise.all([viewer.synced(), watcher.synced()])
-    t.lab.setRole('viewer', 'editor')
+    await t.lab.setRole('viewer', 'editor')
     t.server.collab.membershipChanged(t.lab.labId, t.lab.userIds.viewer)
     await until(() => t.server.collab.stats().readers === 0, 'the promotion')
     ;(cellsOf(viewer.doc).get(2).get('source') as Y.Text).insert(0, '2*')
@@ -203,7 +203,7 @@ describe('collab: membership changes', () => {
     const editor = t.connect('editor', { server: quick })
     const viewer = t.connect('viewer', { server: quick })
     await Promise.all([editor.synced(), viewer.synced()])
-    t.lab.setRole('editor', null)
+    await t.lab.setRole('editor', null)
     await until(() => editor.closes.length === 1, 'the recheck to disconnect the removed editor')
     expect(editor.closes[0].code).toBe(CLOSE.removed)
     const { jwtVerify } = await import('jose')
@@ -215,7 +215,7 @@ describe('collab: membership changes', () => {
   })
 
   it('sheetDeleted() closes every connection of that sheet (4404) and leaves other sheets alone', async () => {
-    const second = t.lab.addSheet()
+    const second = await t.lab.addSheet()
     const a = t.connect('editor')
     const b = t.connect('editor', { sheetId: second })
     await Promise.all([a.synced(), b.synced()])

@@ -62,7 +62,7 @@ describe('collab: updates that would break the sheet document', () => {
     expect(closed.reason).toMatch(/^edit refused: /)
     expect(closed.reason).toMatch(reason)
     expect(t.server.collab.stats().counters.refusedUpdates).toBe(1)
-    expect(storedRows(t.lab)).toBe(0)
+    expect(await storedRows(t.lab)).toBe(0)
     // the watcher is still live and still gets valid edits; its document never saw the refused one
     const other = await t.raw('owner')
     other.ws.send(syncFrame(2, editOf(await loadDocument(t.lab.handle.db, t.lab.sheetId), (d) => byId(d, 'cd')!.set('value', 900))))

@@ -88,6 +88,16 @@ export async function freshPgDb(): Promise<AnyDbHandle> {
   return handle
 }
 
+const dropLater = new Set<string>()
+
+/** A new, empty PostgreSQL database (not migrated: for a server process to migrate and seed), dropped when the file ends. */
+export async function emptyPgDatabase(): Promise<string> {
+  const name = `${PREFIX}${process.pid}_${randomBytes(6).toString('hex')}`
+  await adminPool().query(`CREATE DATABASE ${name} TEMPLATE template0 ENCODING 'UTF8' LC_COLLATE 'C' LC_CTYPE 'C'`)
+  dropLater.add(name)
+  return urlFor(name)
+}
+
 /** The test database: SQLite (`file`, in memory by default) or, under DATABASE_URL, a fresh PostgreSQL database. */
 export async function openTestDb(file = ':memory:'): Promise<AnyDbHandle> {
   return ON_POSTGRES ? freshPgDb() : openDb(file)
@@ -101,4 +111,6 @@ export function openSqliteDb(file = ':memory:'): DbHandle {
 // whatever a test file left open is dropped when it ends
 afterAll(async () => {
   await Promise.all([...open].map(async (h) => h.close()))
+  for (const name of dropLater) await adminPool().query(`DROP DATABASE IF EXISTS ${name} WITH (FORCE)`)
+  dropLater.clear()
 })
