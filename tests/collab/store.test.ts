@@ -6,7 +6,7 @@ import * as Y from 'yjs'
 import { cellsOf } from '../../shared/doc/sheetDoc'
 import { createSqliteStore, type CollabStore } from '../../server/collab/store'
 import { createLab, sqliteOf, type Lab } from './support/fixture'
-import { ON_POSTGRES, SQLITE_ONLY } from '../utils/db'
+import { ON_POSTGRES, sqliteOnly } from '../utils/db'
 
 /** Every stored row of a sheet, oldest first. */
 function storedRows(lab: Lab, sheetId: string): { seq: number; update: Uint8Array }[] {
@@ -31,7 +31,7 @@ function firstFormulaSource(doc: Y.Doc): string {
   return (formula.get('source') as Y.Text).toString()
 }
 
-describe.skipIf(ON_POSTGRES)(`collab: SQLite store (skipped: ${SQLITE_ONLY})`, () => {
+describe.skipIf(ON_POSTGRES)(sqliteOnly('collab: SQLite store'), () => {
   let lab: Lab
   let store: CollabStore
   beforeEach(async () => {

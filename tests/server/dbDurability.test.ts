@@ -1,5 +1,5 @@
 import { describe, it, expect, afterEach } from 'vitest'
-import { ON_POSTGRES, SQLITE_ONLY } from '../utils/db'
+import { ON_POSTGRES, sqliteOnly } from '../utils/db'
 import { mkdtempSync, rmSync, statSync } from 'node:fs'
 import os from 'node:os'
 import path from 'node:path'
@@ -8,7 +8,7 @@ import { startCheckpoints } from '../../server/db/checkpoints'
 import { createSqliteStore } from '../../server/collab/store'
 
 // SQLite's `synchronous` pragma: 1 = NORMAL, 2 = FULL (sqlite.org/pragma.html#pragma_synchronous).
-describe.skipIf(ON_POSTGRES)(`openDb(file, options) (skipped: ${SQLITE_ONLY})`, () => {
+describe.skipIf(ON_POSTGRES)(sqliteOnly('openDb(file, options)'), () => {
   const dirs: string[] = []
   const file = () => {
     const dir = mkdtempSync(path.join(os.tmpdir(), 'penumbra-db-'))

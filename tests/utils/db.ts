@@ -16,6 +16,11 @@ export const ON_POSTGRES = DIALECT === 'pg'
 /** Why a test about SQLite itself does not run under PostgreSQL (for `it.skipIf(ON_POSTGRES)`). */
 export const SQLITE_ONLY = 'about the embedded SQLite database; DATABASE_URL selects PostgreSQL'
 
+/** A SQLite-only suite's title: under PostgreSQL it says why it is skipped. */
+export function sqliteOnly(title: string): string {
+  return ON_POSTGRES ? `${title} (skipped: ${SQLITE_ONLY})` : title
+}
+
 const PREFIX = (process.env.PENUMBRA_TEST_DB_PREFIX ?? 'penumbra_test_').toLowerCase().replace(/[^a-z0-9_]/g, '_')
 
 function urlFor(database: string): string {
@@ -108,9 +113,16 @@ export function openSqliteDb(file = ':memory:'): DbHandle {
   return openDb(file)
 }
 
-// whatever a test file left open is dropped when it ends
-afterAll(async () => {
+async function dropAll(): Promise<void> {
   await Promise.all([...open].map(async (h) => h.close()))
   for (const name of dropLater) await adminPool().query(`DROP DATABASE IF EXISTS ${name} WITH (FORCE)`)
   dropLater.clear()
-})
+}
+
+// whatever a test file left open is dropped when it ends (a helper process a test starts imports this outside any
+// test file: nothing to register there)
+try {
+  afterAll(dropAll)
+} catch {
+  // not inside a test file
+}
