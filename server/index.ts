@@ -1,6 +1,6 @@
 /**
- * Starts Penumbra: opens the SQLite database in DATA_DIR (running migrations), seeds the demo lab into an empty
- * database, serves the built client and the API on one port, routes websocket upgrades under /collab/ to the
+ * Starts Penumbra: opens the database (SQLite in DATA_DIR, or PostgreSQL when DATABASE_URL=postgres://… names one)
+ * and runs its migrations, seeds the demo lab into an empty database, serves the built client and the API on one port, routes websocket upgrades under /collab/ to the
  * collaboration server, and closes everything cleanly on SIGTERM or SIGINT.
  *
  *   node --import tsx server/index.ts        (npm run serve; npm start builds the client first)
@@ -14,14 +14,14 @@ import type { AddressInfo } from 'node:net'
 import type { Duplex } from 'node:stream'
 import { createApp } from './app'
 import { defaultConfig, type AppConfig } from './config'
-import { openDb, type DbHandle } from './db/client'
+import { openDb, openPgDb, type AnyDbHandle } from './db/client'
+import { dialectFromUrl } from './db/dialect'
 import { demoAccountsPresent, formatDemoTable, isEmpty, seedDemo } from './db/seed'
 import { demoGuestUrl } from './db/seedSnapshots'
 import { createDevMailer, smtpMailer, type Mailer } from './mail/mailer'
 import { pruneExpired } from './services/housekeeping'
 import { closeSharedEvaluator } from './services/evaluation'
 import { createCollab, type Collab } from './collab/index'
-import type { Pool } from 'pg'
 import type { AppHooks } from './deps'
 
 const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..')
@@ -39,6 +39,8 @@ export interface ServerEnv {
   TRUST_PROXY?: string
   /** Port of the local fake SMTP server (default: any free port). */
   DEV_SMTP_PORT?: string
+  /** `postgres://user@host:port/database` selects PostgreSQL (the scale-out configuration); unset, SQLite in DATA_DIR. */
+  DATABASE_URL?: string
   /** redis://…: live edits and control events fan out to the other app instances through Redis streams. */
   REDIS_URL?: string
 }
@@ -61,7 +63,7 @@ export interface RunningServer {
   demoGuestUrl: string | null
   port: number
   dataDir: string
-  handle: DbHandle
+  handle: AnyDbHandle
   mailer: Mailer
   config: AppConfig
   collab: Collab | null
@@ -96,7 +98,10 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
   const dataDir = path.resolve(env.DATA_DIR ?? 'data')
   mkdirSync(dataDir, { recursive: true })
 
-  const handle = openDb(path.join(dataDir, 'penumbra.sqlite'), { backgroundCheckpoints: true })
+  const handle: AnyDbHandle =
+    dialectFromUrl(env.DATABASE_URL) === 'pg'
+      ? await openPgDb(env.DATABASE_URL as string, { log: warn })
+      : openDb(path.join(dataDir, 'penumbra.sqlite'), { backgroundCheckpoints: true })
   const secret = loadSecret(dataDir, env.PENUMBRA_SECRET, warn)
 
   let mailer: Mailer
@@ -120,13 +125,14 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
     trustProxy: parseTrustProxy(env.TRUST_PROXY),
   })
 
-  if (isEmpty(handle.db)) {
+  if (await isEmpty(handle.db)) {
     const seeded = await seedDemo({ db: handle.db, config }, { warn, secret })
     log(`Seeded the demo lab with ${seeded.sheets.length} sheet(s).`)
   }
 
-  pruneExpired(handle.db)
-  const housekeeping = setInterval(() => pruneExpired(handle.db), 3600_000)
+  const prune = () => pruneExpired(handle.db).catch((err: unknown) => warn(`housekeeping failed: ${err instanceof Error ? err.message : String(err)}`))
+  await prune()
+  const housekeeping = setInterval(() => void prune(), 3600_000)
   housekeeping.unref()
 
   // behind a reverse proxy the browser's Origin is the public address, not the Host the proxy forwards
@@ -135,8 +141,7 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
     db: handle.db,
     secret,
     allowedOrigins,
-    // several instances: the update log in PostgreSQL when the database is PostgreSQL, the fan-out through Redis
-    pgPool: (handle as { pool?: Pool }).pool,
+    // several instances: the fan-out through Redis (the update log follows the database: PostgreSQL or SQLite)
     redisUrl: env.REDIS_URL || undefined,
     log: (m) => log(`collab: ${m}`),
   })
@@ -183,19 +188,21 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
       })
       closeSharedEvaluator()
       await mailer.close().catch((err: unknown) => warn(`closing mail: ${String(err)}`))
-      try {
-        handle.sqlite.pragma('wal_checkpoint(TRUNCATE)')
-      } catch {
-        // an in-memory or already-closed database has nothing to checkpoint
+      if (handle.dialect === 'sqlite') {
+        try {
+          handle.sqlite.pragma('wal_checkpoint(TRUNCATE)')
+        } catch {
+          // an in-memory or already-closed database has nothing to checkpoint
+        }
       }
-      handle.close()
+      await handle.close()
     })())
 
   const address = server.address()
   return {
     url,
     host: typeof address === 'object' && address ? address.address : '',
-    demoGuestUrl: demoGuestUrl(handle.db, secret, config),
+    demoGuestUrl: await demoGuestUrl(handle.db, secret, config),
     port: actualPort,
     dataDir,
     handle,
@@ -215,7 +222,7 @@ async function main(): Promise<void> {
     process.exit(1)
   }
   console.log(`Penumbra is running at ${running.url}`)
-  const demo = demoAccountsPresent(running.handle.db)
+  const demo = await demoAccountsPresent(running.handle.db)
   if (demo.length > 0) console.log(`\nDemo sign-ins (fictional lab "Halvorsen Thin-Film Lab"):\n${formatDemoTable(demo)}\n`)
   if (running.demoGuestUrl) console.log(`Demo guest link (a snapshot of Film H-17, no sign-in): ${running.demoGuestUrl}`)
   if (!running.config.production) console.log(`Mail sent while developing: ${running.url}/dev/mail`)

@@ -186,9 +186,9 @@ export default async function collabColdOpen(): Promise<ColdOpenReport> {
     handle.db.insert(labs).values({ id: labId, name: 'Halvorsen Thin-Film Lab', createdBy: userId, createdAt: now }).run()
     handle.db.insert(memberships).values({ labId, userId, role: 'owner', createdAt: now }).run()
     const token = (await signSession(SECRET, userId)).token
-    const addSheet = (id: string) => {
+    const addSheet = async (id: string) => {
       handle.db.insert(sheets).values({ id, labId, title: SHEET.title, createdBy: userId, createdAt: now, updatedAt: now }).run()
-      seedDocument(handle.db, id, SHEET)
+      await seedDocument(handle.db, id, SHEET)
     }
 
     const seedState = Y.encodeStateAsUpdate(sheetFileToDoc(SHEET))
@@ -200,7 +200,7 @@ export default async function collabColdOpen(): Promise<ColdOpenReport> {
 
     // History 1: written through the registry exactly as the server stores live edits (group commits of 1–20,
     // compaction every 500 rows), then left as a stopped server leaves it: no final compaction.
-    addSheet('compacted-0')
+    await addSheet('compacted-0')
     handle.sqlite.prepare('UPDATE sheet_states SET state = ? WHERE sheet_id = ?').run(Buffer.from(seedState), 'compacted-0')
     const registry = new DocumentRegistry({ store: createSqliteStore(handle.db), bus: createLocalBus(), instanceId: 'bench', compactEvery: 500, idleCompactMs: 1e9, evictAfterMs: 1e9 })
     const entry = await registry.open('compacted-0')
@@ -218,7 +218,7 @@ export default async function collabColdOpen(): Promise<ColdOpenReport> {
     entry.awareness.destroy()
     entry.doc.destroy()
     // History 2: the whole log on top of the seeded state.
-    addSheet('raw-0')
+    await addSheet('raw-0')
     handle.sqlite.prepare('UPDATE sheet_states SET state = ? WHERE sheet_id = ?').run(Buffer.from(seedState), 'raw-0')
     const insert = handle.sqlite.prepare('INSERT INTO sheet_updates (sheet_id, seq, "update", user_id, created_at) VALUES (@s, coalesce((SELECT max(seq) FROM sheet_updates WHERE sheet_id = @s), (SELECT upto_seq FROM sheet_states WHERE sheet_id = @s), 0) + 1, @u, @by, @at)')
     handle.sqlite.transaction(() => updates.forEach((u) => insert.run({ s: 'raw-0', u: Buffer.from(u), by: userId, at: now })))()

@@ -317,7 +317,7 @@ export default async function collabLatency(): Promise<LatencyReport> {
     }
     // One fresh sheet per round of the real server, so no round inherits another's history — all with the very same
     // seeded state (a second seeding would create the cells anew under another client id).
-    seedDocument(handle.db, sheetIds[0], file)
+    await seedDocument(handle.db, sheetIds[0], file)
     for (const sid of sheetIds.slice(1))
       handle.sqlite.prepare('INSERT INTO sheet_states (sheet_id, state, upto_seq, updated_at) SELECT ?, state, 0, updated_at FROM sheet_states WHERE sheet_id = ?').run(sid, sheetIds[0])
     handle.close()

@@ -35,9 +35,9 @@ export default async function snapshotFreeze(): Promise<void> {
   let worst = 0
   try {
     for (const example of readExamples(EXAMPLES_DIR, (m) => console.warn(m))) {
-      const sheet = createSheet({ db }, 'lab', 'u1', example.sheet)
+      const sheet = await createSheet({ db }, 'lab', 'u1', example.sheet)
       // the file as freezing evaluates it: the stored spectra's numbers written in
-      const text = canonicalJson(liveSheetFile(db, sheet))
+      const text = canonicalJson(await liveSheetFile(db, sheet))
       const engineAlone = () => {
         const parsed = parseSheetFileText(text)
         if (!parsed.ok) throw new Error(`${example.file} does not parse`)

@@ -76,7 +76,7 @@ export function createAuthenticate(db: Db, secret: Uint8Array, allowedOrigins?: 
     const session = await userForToken(db, secret, token)
     if (!session.ok || !token) return { ok: false, status: 401, message: sessionMessage(session.ok ? 'missing' : session.reason) }
     if (!originAllowed(req, allowedOrigins)) return { ok: false, status: 403, message: 'this origin may not open sheets' }
-    const access = sheetAccess(db, sheetId, session.user.id)
+    const access = await sheetAccess(db, sheetId, session.user.id)
     if (!access.sheet) return { ok: false, status: 404, message: 'no such sheet' }
     if (!access.role) return { ok: false, status: 403, message: 'you are not a member of the lab that owns this sheet' }
     return { ok: true, admission: { user: session.user, sheetId, labId: access.sheet.labId, role: access.role, token } }

@@ -13,7 +13,6 @@ import type { Duplex } from 'node:stream'
 import { randomUUID } from 'node:crypto'
 import { WebSocketServer } from 'ws'
 import type * as Y from 'yjs'
-import type { Pool } from 'pg'
 import type { Db } from '../db/client'
 import { userForToken } from '../services/sessions'
 import { roleInLab, sheetAccess } from '../services/access'
@@ -23,8 +22,8 @@ import { createRedisBus } from './redisBus'
 import { CLOSE, CollabConnection, DEFAULT_RATE_LIMIT, emptyConnectionCounters, type ConnectionCounters, type RateLimit } from './connection'
 import { rejectUpgrade } from './http'
 import { DocumentRegistry, SheetDeletedError, type RegistryCounters } from './registry'
-import { createSqliteStore, isPromise, type CollabStore } from './store'
-import { createPgStore } from './store.pg'
+import { isPromise, type CollabStore } from './store'
+import { defaultStore } from './defaultStore'
 
 export { CLOSE } from './connection'
 export type { RateLimit } from './connection'
@@ -61,8 +60,6 @@ export interface CollabOptions {
   redisUrl?: string
   /** Prefix of the Redis keys (default `penumbra:`). */
   redisPrefix?: string
-  /** The PostgreSQL pool when the database is PostgreSQL: the update log is then kept there (store.pg.ts). */
-  pgPool?: Pool
   instanceId?: string
   hooks?: { authenticate?: Authenticate; store?: CollabStore }
   log?: (message: string) => void
@@ -112,7 +109,7 @@ export function createCollab(options: CollabOptions): Collab {
   const connections = new Set<CollabConnection>()
 
   const registry = new DocumentRegistry({
-    store: options.hooks?.store ?? (options.pgPool ? createPgStore(options.pgPool) : createSqliteStore(db)),
+    store: options.hooks?.store ?? defaultStore(db),
     bus,
     instanceId,
     compactEvery: options.compactEvery ?? 500,
@@ -150,13 +147,14 @@ export function createCollab(options: CollabOptions): Collab {
   function recheck(conn: CollabConnection, now: number) {
     conn.lastRecheck = now
     userForToken(db, options.secret, conn.token)
-      .then((session) => {
+      .then(async (session) => {
         if (conn.closed) return
         if (!session.ok) {
           conn.close(CLOSE.sessionEnded, sessionMessage(session.reason))
           return
         }
-        const access = sheetAccess(db, conn.sheetId, conn.userId)
+        const access = await sheetAccess(db, conn.sheetId, conn.userId)
+        if (conn.closed) return
         if (!access.sheet) {
           closeSheet(conn.sheetId)
           return
@@ -175,12 +173,13 @@ export function createCollab(options: CollabOptions): Collab {
   }
 
   function applyMembership(labId: string, userId: string) {
-    let role: ReturnType<typeof roleInLab> | undefined
-    for (const conn of connections) {
-      if (conn.labId !== labId || conn.userId !== userId) continue
-      role ??= roleInLab(db, labId, userId)
-      conn.applyRole(role)
-    }
+    const affected = [...connections].filter((conn) => conn.labId === labId && conn.userId === userId)
+    if (affected.length === 0) return
+    roleInLab(db, labId, userId)
+      .then((role) => {
+        for (const conn of affected) if (!conn.closed) conn.applyRole(role)
+      })
+      .catch((err: Error) => log(`membership check failed: ${err.message}`))
   }
 
   function closeSheet(sheetId: string) {

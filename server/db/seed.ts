@@ -8,13 +8,14 @@ import path from 'node:path'
 import { fileURLToPath, pathToFileURL } from 'node:url'
 import { count, eq } from 'drizzle-orm'
 import type { Db } from './client'
-import { labs, memberships, users, type Role } from './schema'
+import { labs, memberships, users, type Role } from './tables'
 import type { AppConfig } from '../config'
 import { createUser } from '../services/accounts'
 import { createSheet } from '../services/sheets'
 import { newId } from '../services/tokens'
 import { parseSheetFileText, type SheetFile } from '../../shared/schema/sheet'
 import { seedSnapshotDemo, type SnapshotSeed } from './seedSnapshots'
+import { transact } from './transact'
 
 export const DEMO_LAB_NAME = 'Halvorsen Thin-Film Lab'
 
@@ -35,8 +36,8 @@ export const DEMO_ACCOUNTS: readonly DemoAccount[] = [
 
 export const EXAMPLES_DIR = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../../examples')
 
-export function isEmpty(db: Db): boolean {
-  return (db.select({ n: count() }).from(users).get()?.n ?? 0) === 0
+export async function isEmpty(db: Db): Promise<boolean> {
+  return ((await db.select({ n: count() }).from(users))[0]?.n ?? 0) === 0
 }
 
 /** Every valid examples/*.penumbra.json; invalid ones are skipped with a warning naming each problem. */
@@ -72,19 +73,19 @@ export async function seedDemo(
   }
   const labId = newId()
   const now = Date.now()
-  deps.db.transaction(() => {
-    deps.db.insert(labs).values({ id: labId, name: DEMO_LAB_NAME, createdBy: ids.owner, createdAt: now }).run()
-    for (const account of DEMO_ACCOUNTS)
-      deps.db.insert(memberships).values({ labId, userId: ids[account.role], role: account.role, createdAt: now }).run()
+  await transact(deps.db, async (db) => {
+    await db.insert(labs).values({ id: labId, name: DEMO_LAB_NAME, createdBy: ids.owner, createdAt: now })
+    for (const account of DEMO_ACCOUNTS) await db.insert(memberships).values({ labId, userId: ids[account.role], role: account.role, createdAt: now })
   })
   const examples = readExamples(options.examplesDir ?? EXAMPLES_DIR, warn)
   if (examples.length === 0) warn('demo seed: no valid examples/*.penumbra.json found; the demo lab has no sheets')
   // the editor measured and modelled the film (the edge model); the owner wrote the rest
   const editorsExample = examples.find((e) => e.file === 'edge-model.penumbra.json') ?? examples[0]
-  const sheets = examples.map((example) => {
-    const row = createSheet(deps, labId, example === editorsExample ? ids.editor : ids.owner, example.sheet)
-    return { id: row.id, title: row.title, file: example.file }
-  })
+  const sheets: { id: string; title: string; file: string }[] = []
+  for (const example of examples) {
+    const row = await createSheet(deps, labId, example === editorsExample ? ids.editor : ids.owner, example.sheet)
+    sheets.push({ id: row.id, title: row.title, file: example.file })
+  }
   const result: SeedResult = { labId, users: ids, sheets: sheets.map(({ id, title }) => ({ id, title })) }
   const bandEdge = sheets.find((s) => s.file === 'edge-model.penumbra.json')
   const { evaluate, publicUrl } = deps.config
@@ -96,8 +97,10 @@ export async function seedDemo(
 }
 
 /** Which demo accounts exist (to print them at start). */
-export function demoAccountsPresent(db: Db): DemoAccount[] {
-  return DEMO_ACCOUNTS.filter((a) => !!db.select({ id: users.id }).from(users).where(eq(users.email, a.email)).get())
+export async function demoAccountsPresent(db: Db): Promise<DemoAccount[]> {
+  const present: DemoAccount[] = []
+  for (const a of DEMO_ACCOUNTS) if ((await db.select({ id: users.id }).from(users).where(eq(users.email, a.email))).length > 0) present.push(a)
+  return present
 }
 
 export function formatDemoTable(accounts: readonly DemoAccount[]): string {
@@ -107,23 +110,24 @@ export function formatDemoTable(accounts: readonly DemoAccount[]): string {
   return [line(rows[0]), '  ' + widths.map((w) => '-'.repeat(w)).join('  '), ...rows.slice(1).map(line)].join('\n')
 }
 
-// `npm run seed`: seed DATA_DIR's database if it is empty
+// `npm run seed`: seed the database (PostgreSQL when DATABASE_URL names one, else DATA_DIR's SQLite) if it is empty
 if (process.argv[1] && import.meta.url === pathToFileURL(path.resolve(process.argv[1])).href) {
-  const { openDb } = await import('./client')
+  const { openConfiguredDb } = await import('./client')
   const { defaultConfig } = await import('../config')
   const { mkdirSync } = await import('node:fs')
   const dataDir = path.resolve(process.env.DATA_DIR ?? 'data')
   mkdirSync(dataDir, { recursive: true })
-  const handle = openDb(path.join(dataDir, 'penumbra.sqlite'))
-  if (!isEmpty(handle.db)) console.log(`The database in ${dataDir} already has accounts; nothing seeded.`)
+  const handle = await openConfiguredDb(path.join(dataDir, 'penumbra.sqlite'))
+  const where = handle.dialect === 'pg' ? 'PostgreSQL (DATABASE_URL)' : dataDir
+  if (!(await isEmpty(handle.db))) console.log(`The database in ${where} already has accounts; nothing seeded.`)
   else {
     const { loadSecret } = await import('../index')
     const { closeSharedEvaluator } = await import('../services/evaluation')
     const secret = loadSecret(dataDir, process.env.PENUMBRA_SECRET, (m) => console.warn(m))
     const result = await seedDemo({ db: handle.db, config: defaultConfig({ publicUrl: process.env.PUBLIC_URL ?? 'http://localhost:3000' }) }, { secret })
     closeSharedEvaluator()
-    console.log(`Seeded "${DEMO_LAB_NAME}" with ${result.sheets.length} sheet(s) in ${dataDir}:\n${formatDemoTable(DEMO_ACCOUNTS)}`)
+    console.log(`Seeded "${DEMO_LAB_NAME}" with ${result.sheets.length} sheet(s) in ${where}:\n${formatDemoTable(DEMO_ACCOUNTS)}`)
     if (result.review) console.log(`Demo guest link: ${result.review.guestUrl}`)
   }
-  handle.close()
+  await handle.close()
 }

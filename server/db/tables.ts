@@ -30,3 +30,5 @@ export const {
   reviewDecisions,
   guestLinks,
 } = active
+
+export { ROLES, REVIEW_DECISIONS, type Role, type ReviewDecision } from './schema'

@@ -14,10 +14,10 @@ const NO_LAB = 'No such lab, or you are not a member of it.'
 const NO_SHEET = 'No such sheet, or you are not a member of its lab.'
 
 export function loadLab(deps: AppDeps, param = 'labId'): RequestHandler {
-  return (req, _res, next) => {
+  return async (req, _res, next) => {
     if (!req.user) throw unauthorized()
-    const lab = labById(deps, String(req.params[param]))
-    const role = lab ? roleInLab(deps.db, lab.id, req.user.id) : null
+    const lab = await labById(deps, String(req.params[param]))
+    const role = lab ? await roleInLab(deps.db, lab.id, req.user.id) : null
     if (!lab || !role) throw notFound(NO_LAB)
     req.lab = lab
     req.role = role
@@ -26,11 +26,11 @@ export function loadLab(deps: AppDeps, param = 'labId'): RequestHandler {
 }
 
 export function loadSheet(deps: AppDeps, param = 'sheetId'): RequestHandler {
-  return (req, _res, next) => {
+  return async (req, _res, next) => {
     if (!req.user) throw unauthorized()
-    const { sheet, role } = sheetAccess(deps.db, String(req.params[param]), req.user.id)
+    const { sheet, role } = await sheetAccess(deps.db, String(req.params[param]), req.user.id)
     if (!sheet || !role) throw notFound(NO_SHEET)
-    const lab = labById(deps, sheet.labId)
+    const lab = await labById(deps, sheet.labId)
     if (!lab) throw notFound(NO_SHEET)
     req.sheet = sheet
     req.lab = lab
@@ -51,11 +51,11 @@ const NO_SNAPSHOT = 'No such snapshot, or you are not a member of its lab.'
 
 /** A snapshot, its sheet and lab, and the caller's role there (404 for a missing snapshot or a non-member). */
 export function loadSnapshot(deps: AppDeps, param = 'snapshotId'): RequestHandler {
-  return (req, _res, next) => {
+  return async (req, _res, next) => {
     if (!req.user) throw unauthorized()
-    const snapshot = snapshotById(deps.db, String(req.params[param]))
-    const { sheet, role } = snapshot ? sheetAccess(deps.db, snapshot.sheetId, req.user.id) : { sheet: null, role: null }
-    const lab = sheet ? labById(deps, sheet.labId) : undefined
+    const snapshot = await snapshotById(deps.db, String(req.params[param]))
+    const { sheet, role } = snapshot ? await sheetAccess(deps.db, snapshot.sheetId, req.user.id) : { sheet: null, role: null }
+    const lab = sheet ? await labById(deps, sheet.labId) : undefined
     if (!snapshot || !sheet || !role || !lab) throw notFound(NO_SNAPSHOT)
     req.snapshot = snapshot
     req.sheet = sheet

@@ -47,9 +47,9 @@ export function authRoutes(deps: AppDeps): Router {
     res.json({ user: publicUser(user) })
   })
 
-  r.post('/sign-out', (req, res) => {
+  r.post('/sign-out', async (req, res) => {
     if (req.user) {
-      revokeSession(deps.db, req.user.jti, req.user.exp)
+      await revokeSession(deps.db, req.user.jti, req.user.exp)
       callHook(deps, 'sessionsEnded', req.user.id)
     }
     clearSession(deps, res)
@@ -71,23 +71,23 @@ export function authRoutes(deps: AppDeps): Router {
     },
   )
 
-  r.patch('/me', requireUser, (req, res) => {
+  r.patch('/me', requireUser, async (req, res) => {
     const { name } = parse(updateMeBody, req.body)
-    res.json({ user: publicUser(updateName(deps, req.user!.id, name)) })
+    res.json({ user: publicUser(await updateName(deps, req.user!.id, name)) })
   })
 
   r.post('/password', requireUser, async (req, res) => {
     const body = parse(changePasswordBody, req.body)
     await changePassword(deps, req.user!.id, body.currentPassword, body.newPassword)
     // every older session ended; this one continues with a fresh token
-    const user = userById(deps, req.user!.id)
+    const user = await userById(deps, req.user!.id)
     if (user) await startSession(deps, res, user.id)
     res.status(204).end()
   })
 
-  r.post('/reset-request', mailLimit, (req, res) => {
+  r.post('/reset-request', mailLimit, async (req, res) => {
     const { email } = parse(resetRequestBody, req.body)
-    requestReset(deps, email)
+    await requestReset(deps, email)
     res.status(202).json({ message: `If ${email} has a Penumbra account, a link to choose a new password is on its way.` })
   })
 

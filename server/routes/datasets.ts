@@ -108,11 +108,11 @@ export function datasetRoutes(deps: AppDeps): { sheetDatasets: Router; datasets:
     const file = withFileErrors(() => parseSpectrumFile(bytes))
     res.json(previewOf(file, fileName, opts))
   })
-  sheetDatasets.post('/:sheetId/datasets', sheet, writers, upload.single('file'), (req, res) => {
+  sheetDatasets.post('/:sheetId/datasets', sheet, writers, upload.single('file'), async (req, res) => {
     if (!req.file && req.is('application/json')) {
       // a spectrum cell's inline columns (a sheet file imported into the open sheet): stored as they are
       const body = parse(inlineDatasetBody, req.body, 'The spectrum was not accepted')
-      const id = storeDataset(deps.db, { labId: req.lab!.id, sheetId: req.sheet!.id, name: body.name, sourceName: body.source ?? null, uploadedBy: req.user!.id, columns: body.columns })
+      const id = await storeDataset(deps.db, { labId: req.lab!.id, sheetId: req.sheet!.id, name: body.name, sourceName: body.source ?? null, uploadedBy: req.user!.id, columns: body.columns })
       const reply: DatasetCreated = {
         id, name: body.name, source: body.source ?? '', sample: '',
         columns: body.columns.map((c) => ({ name: c.name, quantity: c.quantity ?? '', unit: c.unit, ...columnSummary(c.values) })), warnings: [],
@@ -127,9 +127,7 @@ export function datasetRoutes(deps: AppDeps): { sheetDatasets: Router; datasets:
       return { file, spectrum: mapSpectrum(file, opts) }
     })
     const name = opts.name ?? nameFromFile(fileName)
-    const id = deps.db.transaction(() =>
-      storeDataset(deps.db, { labId: req.lab!.id, sheetId: req.sheet!.id, name, sourceName: fileName, uploadedBy: req.user!.id, columns: spectrum.columns }),
-    )
+    const id = await storeDataset(deps.db, { labId: req.lab!.id, sheetId: req.sheet!.id, name, sourceName: fileName, uploadedBy: req.user!.id, columns: spectrum.columns })
     const reply: DatasetCreated = {
       id, name, source: fileName, sample: file.samples.length > 1 ? spectrum.sample : '',
       columns: spectrum.columns.map((c) => ({ name: c.name, quantity: c.quantity, unit: c.unit, ...columnSummary(c.values) })),
@@ -139,7 +137,7 @@ export function datasetRoutes(deps: AppDeps): { sheetDatasets: Router; datasets:
   })
   sheetDatasets.get('/:sheetId/cells/:cellId/csv', sheet, async (req, res) => {
     const row = req.sheet!
-    const file = inlineDatasets(deps.db, loadSheetFile(deps.db, row.id, row.title), row.labId)
+    const file = await inlineDatasets(deps.db, await loadSheetFile(deps.db, row.id, row.title), row.labId)
     const cellId = String(req.params.cellId)
     const cells = file.cells as SheetCell[]
     if (!cells.some((c) => c.id === cellId)) throw notFound('No such cell in this sheet.')
@@ -162,9 +160,9 @@ export function datasetRoutes(deps: AppDeps): { sheetDatasets: Router; datasets:
 
   const datasets = Router()
   datasets.use(requireUser)
-  datasets.get('/:datasetId', (req, res) => {
-    const d = datasetById(deps.db, String(req.params.datasetId))
-    if (!d || !roleInLab(deps.db, d.labId, req.user!.id)) throw notFound(NO_DATASET)
+  datasets.get('/:datasetId', async (req, res) => {
+    const d = await datasetById(deps.db, String(req.params.datasetId))
+    if (!d || !(await roleInLab(deps.db, d.labId, req.user!.id))) throw notFound(NO_DATASET)
     const reply: DatasetReply = {
       id: d.id, name: d.name, source: d.sourceName, createdAt: d.createdAt,
       columns: d.columns.map((c) => ({ name: c.name, ...(c.quantity ? { quantity: c.quantity } : {}), unit: c.unit, values: jsonValues(c.values) })),

@@ -9,7 +9,7 @@ import path from 'node:path'
 import { existsSync } from 'node:fs'
 import { fileURLToPath } from 'node:url'
 import type { AppDeps } from '../deps'
-import { mails } from '../db/schema'
+import { mails } from '../db/tables'
 import { escapeHtml } from '../mail/messages'
 import { linksIn } from '../mail/mime'
 import type { DevMail } from '../../shared/schema/api'
@@ -22,15 +22,10 @@ const FONTS = new Map<string, string>([
   ['fira-mono-400.woff2', 'node_modules/@fontsource/fira-mono/files/fira-mono-latin-400-normal.woff2'],
 ])
 
-export function devMessages(deps: AppDeps): DevMail[] {
+export async function devMessages(deps: AppDeps): Promise<DevMail[]> {
   if (deps.mailer.inbox) return deps.mailer.inbox()
-  return deps.db
-    .select()
-    .from(mails)
-    .orderBy(desc(mails.createdAt))
-    .limit(200)
-    .all()
-    .map((m) => ({ id: m.id, from: deps.config.mailFrom, to: [m.to], subject: m.subject, receivedAt: m.sentAt ?? m.createdAt, text: m.text, html: m.html, links: linksIn(m.text) }))
+  const rows = await deps.db.select().from(mails).orderBy(desc(mails.createdAt)).limit(200)
+  return rows.map((m) => ({ id: m.id, from: deps.config.mailFrom, to: [m.to], subject: m.subject, receivedAt: m.sentAt ?? m.createdAt, text: m.text, html: m.html, links: linksIn(m.text) }))
 }
 
 function page(messages: DevMail[]): string {
@@ -90,22 +85,22 @@ export function fromLoopback(req: Request): boolean {
  * The mailbox holds every account's sign-up, reset and invitation links, so it answers in full only on this machine;
  * from elsewhere a signed-in person sees the messages sent to their own address, and nobody else anything.
  */
-function visibleMessages(deps: AppDeps, req: Request): DevMail[] {
+async function visibleMessages(deps: AppDeps, req: Request): Promise<DevMail[]> {
   if (fromLoopback(req)) return devMessages(deps)
   if (!req.user) throw forbidden('The developer mailbox answers only on this machine (or, signed in, shows your own mail).')
   const own = req.user.email.toLowerCase()
-  return devMessages(deps).filter((m) => m.to.some((to) => to.toLowerCase() === own))
+  return (await devMessages(deps)).filter((m) => m.to.some((to) => to.toLowerCase() === own))
 }
 
 export function devMailRoutes(deps: AppDeps): Router {
   const r = Router()
-  r.get('/mail.json', (req, res) => {
-    const messages = visibleMessages(deps, req)
+  r.get('/mail.json', async (req, res) => {
+    const messages = await visibleMessages(deps, req)
     res.set('Cache-Control', 'no-store').json({ messages })
   })
-  r.get('/mail', (req, res) => {
+  r.get('/mail', async (req, res) => {
     // read first: a refusal must not go out labelled as HTML
-    const messages = visibleMessages(deps, req)
+    const messages = await visibleMessages(deps, req)
     res.set('Cache-Control', 'no-store').type('html').send(page(messages))
   })
   r.get('/fonts/:file', (req, res, next) => {

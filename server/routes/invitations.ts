@@ -13,9 +13,9 @@ export function invitationRoutes(deps: AppDeps): Router {
   const r = Router()
   const tokenLimit = limiter(deps.config.limits.token, 'attempts with mailed links from this address', { onlyFailures: true })
 
-  r.get('/:token', tokenLimit, (req, res) => {
+  r.get('/:token', tokenLimit, async (req, res) => {
     const token = parse(tokenSchema, req.params.token, 'The invitation link is not valid')
-    res.json(previewInvitation(deps, token, !!req.user))
+    res.json(await previewInvitation(deps, token, !!req.user))
   })
 
   r.post('/:token/accept', tokenLimit, async (req, res) => {

@@ -17,51 +17,51 @@ export function labRoutes(deps: AppDeps): Router {
   const owner = (what: string) => allowRoles(['owner'], OWNERS_ONLY(what))
   r.use(requireUser)
 
-  r.get('/', (req, res) => {
-    res.json({ labs: listLabs(deps, req.user!.id) })
+  r.get('/', async (req, res) => {
+    res.json({ labs: await listLabs(deps, req.user!.id) })
   })
 
-  r.post('/', (req, res) => {
+  r.post('/', async (req, res) => {
     const { name } = parse(createLabBody, req.body)
-    res.status(201).json(createLab(deps, req.user!.id, name))
+    res.status(201).json(await createLab(deps, req.user!.id, name))
   })
 
-  r.get('/:labId', lab, (req, res) => {
-    res.json(labReply(deps, req.lab!, req.role!))
+  r.get('/:labId', lab, async (req, res) => {
+    res.json(await labReply(deps, req.lab!, req.role!))
   })
 
-  r.patch('/:labId', lab, owner('rename the lab'), (req, res) => {
+  r.patch('/:labId', lab, owner('rename the lab'), async (req, res) => {
     const { name } = parse(renameLabBody, req.body)
-    res.json(renameLab(deps, req.lab!, req.role!, name))
+    res.json(await renameLab(deps, req.lab!, req.role!, name))
   })
 
-  r.get('/:labId/members', lab, (req, res) => {
-    res.json({ members: listMembers(deps, req.lab!.id) })
+  r.get('/:labId/members', lab, async (req, res) => {
+    res.json({ members: await listMembers(deps, req.lab!.id) })
   })
 
-  r.patch('/:labId/members/:userId', lab, owner('change roles'), (req, res) => {
+  r.patch('/:labId/members/:userId', lab, owner('change roles'), async (req, res) => {
     const { role } = parse(changeRoleBody, req.body)
-    res.json(changeRole(deps, req.lab!.id, String(req.params.userId), role))
+    res.json(await changeRole(deps, req.lab!.id, String(req.params.userId), role))
   })
 
-  r.delete('/:labId/members/:userId', lab, (req, res) => {
+  r.delete('/:labId/members/:userId', lab, async (req, res) => {
     const target = String(req.params.userId)
     if (target !== req.user!.id && req.role !== 'owner') throw forbidden(OWNERS_ONLY('remove other members'))
-    removeMember(deps, req.lab!.id, target)
+    await removeMember(deps, req.lab!.id, target)
     res.status(204).end()
   })
 
-  r.get('/:labId/invitations', lab, owner('see invitations'), (req, res) => {
-    res.json({ invitations: listInvitations(deps, req.lab!.id) })
+  r.get('/:labId/invitations', lab, owner('see invitations'), async (req, res) => {
+    res.json({ invitations: await listInvitations(deps, req.lab!.id) })
   })
 
-  r.post('/:labId/invitations', lab, owner('invite people'), (req, res) => {
+  r.post('/:labId/invitations', lab, owner('invite people'), async (req, res) => {
     const { email, role } = parse(inviteBody, req.body)
-    res.status(201).json(createInvitation(deps, req.lab!, req.user!, email, role))
+    res.status(201).json(await createInvitation(deps, req.lab!, req.user!, email, role))
   })
 
-  r.delete('/:labId/invitations/:invitationId', lab, owner('withdraw invitations'), (req, res) => {
-    revokeInvitation(deps, req.lab!.id, String(req.params.invitationId))
+  r.delete('/:labId/invitations/:invitationId', lab, owner('withdraw invitations'), async (req, res) => {
+    await revokeInvitation(deps, req.lab!.id, String(req.params.invitationId))
     res.status(204).end()
   })
 

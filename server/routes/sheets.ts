@@ -45,32 +45,32 @@ export function sheetRoutes(deps: AppDeps): { labSheets: Router; sheets: Router 
 
   const labSheets = Router({ mergeParams: true })
   labSheets.use(requireUser)
-  labSheets.get('/', lab, (req, res) => {
-    res.json({ sheets: listSheets(deps, req.lab!.id) })
+  labSheets.get('/', lab, async (req, res) => {
+    res.json({ sheets: await listSheets(deps, req.lab!.id) })
   })
-  labSheets.post('/', lab, allowRoles(WRITE_ROLES, 'Only owners and editors may create sheets.'), upload.single('file'), (req, res) => {
+  labSheets.post('/', lab, allowRoles(WRITE_ROLES, 'Only owners and editors may create sheets.'), upload.single('file'), async (req, res) => {
     const file = sheetFileFromRequest(req)
-    const row = createSheet(deps, req.lab!.id, req.user!.id, file)
-    res.status(201).location(`/api/sheets/${row.id}`).json(sheetReply(deps, row, req.lab!, req.role!, req.user!.id))
+    const row = await createSheet(deps, req.lab!.id, req.user!.id, file)
+    res.status(201).location(`/api/sheets/${row.id}`).json(await sheetReply(deps, row, req.lab!, req.role!, req.user!.id))
   })
 
   const sheets = Router()
   sheets.use(requireUser)
-  sheets.get('/:sheetId', sheet, (req, res) => {
-    res.json(sheetReply(deps, req.sheet!, req.lab!, req.role!, req.user!.id))
+  sheets.get('/:sheetId', sheet, async (req, res) => {
+    res.json(await sheetReply(deps, req.sheet!, req.lab!, req.role!, req.user!.id))
   })
-  sheets.patch('/:sheetId', sheet, writers, (req, res) => {
+  sheets.patch('/:sheetId', sheet, writers, async (req, res) => {
     const { title } = parse(renameSheetBody, req.body)
-    res.json(sheetReply(deps, renameSheet(deps, req.sheet!, title), req.lab!, req.role!, req.user!.id))
+    res.json(await sheetReply(deps, await renameSheet(deps, req.sheet!, title), req.lab!, req.role!, req.user!.id))
   })
-  sheets.delete('/:sheetId', sheet, (req, res) => {
+  sheets.delete('/:sheetId', sheet, async (req, res) => {
     if (!canDeleteSheet(req.role, req.sheet!, req.user!.id))
       throw forbidden(req.role === 'editor' ? 'Editors may delete only the sheets they made.' : 'Only owners and the editor who made a sheet may delete it.')
-    deleteSheet(deps, req.sheet!.id)
+    await deleteSheet(deps, req.sheet!.id)
     res.status(204).end()
   })
-  sheets.get('/:sheetId/file', sheet, (req, res) => {
-    const file = exportSheet(deps, req.sheet!)
+  sheets.get('/:sheetId/file', sheet, async (req, res) => {
+    const file = await exportSheet(deps, req.sheet!)
     res.set('Content-Type', `${SHEET_MEDIA_TYPE}; charset=utf-8`)
     res.set('Content-Disposition', contentDisposition(downloadName(req.sheet!.title)))
     res.set('Cache-Control', 'no-store')

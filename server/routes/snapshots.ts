@@ -78,18 +78,18 @@ export function snapshotRoutes(deps: AppDeps) {
   sheetScoped.post('/snapshots', sheet, allowRoles(WRITE_ROLES, 'Only owners and editors may freeze snapshots.'), async (req, res) => {
     const { message } = parse(createSnapshotBody, req.body)
     const row = await freezeSnapshot(deps, req.sheet!, req.user!.id, message, { evaluator: evaluator() })
-    res.status(201).location(`/api/snapshots/${row.id}`).json(snapshotSummary(db, row))
+    res.status(201).location(`/api/snapshots/${row.id}`).json(await snapshotSummary(db, row))
   })
-  sheetScoped.get('/snapshots', sheet, (req, res) => {
-    res.json({ snapshots: listSnapshots(db, req.sheet!.id) })
+  sheetScoped.get('/snapshots', sheet, async (req, res) => {
+    res.json({ snapshots: await listSnapshots(db, req.sheet!.id) })
   })
-  sheetScoped.post('/comments', sheet, commenters, (req, res) => {
+  sheetScoped.post('/comments', sheet, commenters, async (req, res) => {
     const body = parse(createCommentBody, req.body)
-    res.status(201).json(createComment(deps, req.sheet!, req.user!.id, body))
+    res.status(201).json(await createComment(deps, req.sheet!, req.user!.id, body))
   })
-  sheetScoped.get('/comments', sheet, (req, res) => {
+  sheetScoped.get('/comments', sheet, async (req, res) => {
     const which = typeof req.query.snapshotId === 'string' && req.query.snapshotId ? req.query.snapshotId : undefined
-    res.json({ comments: listComments(db, req.sheet!.id, which) })
+    res.json({ comments: await listComments(db, req.sheet!.id, which) })
   })
   sheetScoped.get('/comments/events', sheet, (req, res) => {
     const sheetId = req.sheet!.id
@@ -97,10 +97,16 @@ export function snapshotRoutes(deps: AppDeps) {
     res.status(200).set({ 'Content-Type': 'text/event-stream; charset=utf-8', 'Cache-Control': 'no-store', Connection: 'keep-alive', 'X-Accel-Buffering': 'no' })
     res.flushHeaders()
     res.write(': comments of this sheet, live\n\n')
+    // a member removed since the stream opened hears nothing more, and the stream ends; comments are sent in order
+    let sending = Promise.resolve()
     const unsubscribe = subscribeComments(sheetId, (comment) => {
-      // a member removed since the stream opened hears nothing more, and the stream ends
-      if (!sheetAccess(db, sheetId, userId).role) return void res.end()
-      res.write(`event: comment\ndata: ${JSON.stringify(comment)}\n\n`)
+      sending = sending
+        .then(async () => {
+          if (res.writableEnded) return
+          if (!(await sheetAccess(db, sheetId, userId)).role) return void res.end()
+          res.write(`event: comment\ndata: ${JSON.stringify(comment)}\n\n`)
+        })
+        .catch(() => void res.end())
     })
     const keepAlive = setInterval(() => res.write(': still here\n\n'), 25_000)
     keepAlive.unref()
@@ -113,17 +119,17 @@ export function snapshotRoutes(deps: AppDeps) {
   // /api/snapshots/:snapshotId
   const snapshots = Router()
   snapshots.use(requireUser)
-  snapshots.get('/:snapshotId', snapshot, (req, res) => {
-    res.json(snapshotDetail(db, req.snapshot!))
+  snapshots.get('/:snapshotId', snapshot, async (req, res) => {
+    res.json(await snapshotDetail(db, req.snapshot!))
   })
-  snapshots.delete('/:snapshotId', snapshot, allowRoles(['owner'], 'Only owners may delete snapshots.'), (req, res) => {
-    deleteSnapshot(db, req.snapshot!)
+  snapshots.delete('/:snapshotId', snapshot, allowRoles(['owner'], 'Only owners may delete snapshots.'), async (req, res) => {
+    await deleteSnapshot(db, req.snapshot!)
     res.status(204).end()
   })
-  snapshots.get('/:snapshotId/file', snapshot, (req, res) => {
+  snapshots.get('/:snapshotId/file', snapshot, async (req, res) => {
     res.set('Content-Type', `${SHEET_MEDIA_TYPE}; charset=utf-8`)
     res.set('Content-Disposition', contentDisposition(`${snapshotDownloadName(req.snapshot!)}.penumbra.json`))
-    res.send(snapshotFileText(db, req.snapshot!))
+    res.send(await snapshotFileText(db, req.snapshot!))
   })
   snapshots.get('/:snapshotId/cells/:cellId/csv', snapshot, (req, res) => {
     sendCsv(res, snapshotCellCsv(req.snapshot!, String(req.params.cellId), extraSeries(req.query)))
@@ -134,87 +140,87 @@ export function snapshotRoutes(deps: AppDeps) {
     let b: CompareSide
     let bInfo: CompareReply['b']
     if (other === 'live') {
-      const file = canonicalJson(liveSheetFile(db, req.sheet!))
+      const file = canonicalJson(await liveSheetFile(db, req.sheet!))
       const hash = sha256Hex(file)
       const results = JSON.parse(await evaluateOnServer(evaluator(), file, deps.config.evaluate.budgetMs, hash)) as EvaluationResult
       b = { cells: (JSON.parse(file) as { cells: CompareSide['cells'] }).cells, results }
       bInfo = { id: 'live', hash, createdAt: null }
     } else {
-      const row = snapshotById(db, other)
-      if (!row || !roleInLab(db, row.labId, req.user!.id)) throw notFound('No such snapshot to compare with, or you are not a member of its lab.')
+      const row = await snapshotById(db, other)
+      if (!row || !(await roleInLab(db, row.labId, req.user!.id))) throw notFound('No such snapshot to compare with, or you are not a member of its lab.')
       b = side(row)
       bInfo = { id: row.id, hash: row.hash, createdAt: row.createdAt }
     }
     const reply: CompareReply = { a: { id: a.id, hash: a.hash, createdAt: a.createdAt }, b: bInfo, ...compareSheets(side(a), b) }
     res.json(reply)
   })
-  snapshots.post('/:snapshotId/restore', snapshot, allowRoles(WRITE_ROLES, 'Only owners and editors may restore a snapshot.'), (req, res) => {
+  snapshots.post('/:snapshotId/restore', snapshot, allowRoles(WRITE_ROLES, 'Only owners and editors may restore a snapshot.'), async (req, res) => {
     const { title } = parse(restoreSnapshotBody, req.body)
-    const row = restoreAsNewSheet(deps, req.snapshot!, req.user!.id, title)
-    res.status(201).location(`/api/sheets/${row.id}`).json(sheetReply(deps, row, req.lab!, req.role!, req.user!.id))
+    const row = await restoreAsNewSheet(deps, req.snapshot!, req.user!.id, title)
+    res.status(201).location(`/api/sheets/${row.id}`).json(await sheetReply(deps, row, req.lab!, req.role!, req.user!.id))
   })
-  snapshots.post('/:snapshotId/reviews', snapshot, allowRoles(WRITE_ROLES, 'Only owners and editors may ask for a review.'), (req, res) => {
+  snapshots.post('/:snapshotId/reviews', snapshot, allowRoles(WRITE_ROLES, 'Only owners and editors may ask for a review.'), async (req, res) => {
     const { reviewerIds, note } = parse(createReviewBody, req.body)
-    res.status(201).json(createReview(deps, req.snapshot!, req.user!.id, reviewerIds, note))
+    res.status(201).json(await createReview(deps, req.snapshot!, req.user!.id, reviewerIds, note))
   })
-  snapshots.get('/:snapshotId/reviews', snapshot, (req, res) => {
-    res.json({ reviews: snapshotReviews(db, req.snapshot!.id) })
+  snapshots.get('/:snapshotId/reviews', snapshot, async (req, res) => {
+    res.json({ reviews: await snapshotReviews(db, req.snapshot!.id) })
   })
-  snapshots.post('/:snapshotId/guest-links', snapshot, allowRoles(WRITE_ROLES, 'Only owners and editors may make guest links.'), (req, res) => {
+  snapshots.post('/:snapshotId/guest-links', snapshot, allowRoles(WRITE_ROLES, 'Only owners and editors may make guest links.'), async (req, res) => {
     const body = parse(createGuestLinkBody, req.body)
-    res.status(201).json(createGuestLink(deps, req.snapshot!, req.user!.id, body))
+    res.status(201).json(await createGuestLink(deps, req.snapshot!, req.user!.id, body))
   })
-  snapshots.get('/:snapshotId/guest-links', snapshot, (req, res) => {
-    res.json({ links: listGuestLinks(db, req.snapshot!.id) })
+  snapshots.get('/:snapshotId/guest-links', snapshot, async (req, res) => {
+    res.json({ links: await listGuestLinks(db, req.snapshot!.id) })
   })
 
   // /api/reviews/:reviewId
   const reviews = Router()
   reviews.use(requireUser)
-  const loadReview = (id: string, userId: string) => {
-    const row = reviewById(db, id)
-    const role = row ? roleInLab(db, row.labId, userId) : null
+  const loadReview = async (id: string, userId: string) => {
+    const row = await reviewById(db, id)
+    const role = row ? await roleInLab(db, row.labId, userId) : null
     if (!row || !role) throw notFound('No such review, or you are not a member of its lab.')
     return { row, role }
   }
-  reviews.get('/:reviewId', (req, res) => {
-    res.json(reviewReply(db, loadReview(String(req.params.reviewId), req.user!.id).row))
+  reviews.get('/:reviewId', async (req, res) => {
+    res.json(await reviewReply(db, (await loadReview(String(req.params.reviewId), req.user!.id)).row))
   })
-  reviews.patch('/:reviewId', (req, res) => {
-    const { row, role } = loadReview(String(req.params.reviewId), req.user!.id)
+  reviews.patch('/:reviewId', async (req, res) => {
+    const { row, role } = await loadReview(String(req.params.reviewId), req.user!.id)
     if (role !== 'owner' && role !== 'reviewer') throw forbidden(role === 'viewer' ? 'Viewers see decisions but cannot decide.' : 'Only the reviewers asked may decide a review.')
     const { decision, note } = parse(decideReviewBody, req.body)
-    res.json(decideReview(deps, row, req.user!.id, decision, note))
+    res.json(await decideReview(deps, row, req.user!.id, decision, note))
   })
 
   // /api/labs/:labId/reviews
   const labReviews = Router({ mergeParams: true })
   labReviews.use(requireUser)
-  labReviews.get('/', loadLab(deps), (req, res) => {
-    res.json(reviewQueue(db, req.lab!.id, req.user!.id))
+  labReviews.get('/', loadLab(deps), async (req, res) => {
+    res.json(await reviewQueue(db, req.lab!.id, req.user!.id))
   })
 
   // /api/comments/:commentId
   const commentsRouter = Router()
   commentsRouter.use(requireUser)
-  commentsRouter.patch('/:commentId', (req, res) => {
-    const row = commentById(db, String(req.params.commentId))
-    const role = row ? roleInLab(db, row.labId, req.user!.id) : null
+  commentsRouter.patch('/:commentId', async (req, res) => {
+    const row = await commentById(db, String(req.params.commentId))
+    const role = row ? await roleInLab(db, row.labId, req.user!.id) : null
     if (!row || !role) throw notFound('No such comment, or you are not a member of its lab.')
     if (!COMMENT_ROLES.includes(role)) throw forbidden(COMMENTERS_ONLY)
     const { resolved } = parse(updateCommentBody, req.body)
-    res.json(setResolved(db, row, resolved, req.user!.id))
+    res.json(await setResolved(db, row, resolved, req.user!.id))
   })
 
   // /api/guest-links/:linkId
   const links = Router()
   links.use(requireUser)
-  links.delete('/:linkId', (req, res) => {
-    const row = guestLinkById(db, String(req.params.linkId))
-    const role = row ? roleInLab(db, row.labId, req.user!.id) : null
+  links.delete('/:linkId', async (req, res) => {
+    const row = await guestLinkById(db, String(req.params.linkId))
+    const role = row ? await roleInLab(db, row.labId, req.user!.id) : null
     if (!row || !role) throw notFound('No such guest link, or you are not a member of its lab.')
     if (!WRITE_ROLES.includes(role)) throw forbidden('Only owners and editors may revoke guest links.')
-    revokeGuestLink(db, row)
+    await revokeGuestLink(db, row)
     res.status(204).end()
   })
 
@@ -225,13 +231,13 @@ export function snapshotRoutes(deps: AppDeps) {
     guestHeaders(res)
     next()
   })
-  guest.get('/:token', tokenLimit, (req, res) => {
-    const { link, snapshot: snap } = openGuestLink(db, String(req.params.token))
-    res.json(guestSnapshot(db, link, snap))
+  guest.get('/:token', tokenLimit, async (req, res) => {
+    const { link, snapshot: snap } = await openGuestLink(db, String(req.params.token))
+    res.json(await guestSnapshot(db, link, snap))
   })
-  guest.get('/:token/cells/:cellId/csv', tokenLimit, (req, res) => {
+  guest.get('/:token/cells/:cellId/csv', tokenLimit, async (req, res) => {
     // a download from the page is not another view of it
-    const { snapshot: snap } = openGuestLink(db, String(req.params.token), { countView: false })
+    const { snapshot: snap } = await openGuestLink(db, String(req.params.token), { countView: false })
     sendCsv(res, snapshotCellCsv(snap, String(req.params.cellId), extraSeries(req.query)))
   })
 

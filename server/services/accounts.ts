@@ -6,7 +6,8 @@ import { and, eq, isNull } from 'drizzle-orm'
 import { callHook, type AppDeps } from '../deps'
 import type { Db } from '../db/client'
 import type { AppConfig } from '../config'
-import { pendingSignups, passwordResets, users } from '../db/schema'
+import { pendingSignups, passwordResets, users } from '../db/tables'
+import { transact } from '../db/transact'
 import { conflict, forbidden, gone, notFound } from '../errors'
 import { alreadySignedUpMail, confirmSignUpMail, passwordResetMail } from '../mail/messages'
 import { MAIL_LINK_ROUTES, type SignUpBody, type User } from '../../shared/schema/api'
@@ -20,12 +21,12 @@ export function publicUser(u: Pick<UserRow, 'id' | 'email' | 'name'>): User {
   return { id: u.id, email: u.email, name: u.name }
 }
 
-export function userByEmail(deps: Pick<AppDeps, 'db'>, email: string): UserRow | undefined {
-  return deps.db.select().from(users).where(eq(users.email, email.toLowerCase())).get()
+export async function userByEmail(deps: Pick<AppDeps, 'db'>, email: string): Promise<UserRow | undefined> {
+  return (await deps.db.select().from(users).where(eq(users.email, email.toLowerCase())))[0]
 }
 
-export function userById(deps: Pick<AppDeps, 'db'>, id: string): UserRow | undefined {
-  return deps.db.select().from(users).where(eq(users.id, id)).get()
+export async function userById(deps: Pick<AppDeps, 'db'>, id: string): Promise<UserRow | undefined> {
+  return (await deps.db.select().from(users).where(eq(users.id, id)))[0]
 }
 
 /** `/confirm/:token` → `https://host/confirm/<token>` */
@@ -43,16 +44,16 @@ export async function createUser(deps: { db: Db; config: Pick<AppConfig, 'argon2
     createdAt: Date.now(),
     sessionsValidFrom: null,
   }
-  deps.db.insert(users).values(row).run()
+  await deps.db.insert(users).values(row)
   return row
 }
 
 /** Same work and the same answer whether or not the address has an account; the mail says which. */
 export async function requestSignUp(deps: AppDeps, body: SignUpBody): Promise<void> {
   const passwordHash = await hashPassword(deps.config, body.password)
-  const existing = userByEmail(deps, body.email)
+  const existing = await userByEmail(deps, body.email)
   if (existing) {
-    queueMail(deps, 'already-signed-up', existing.email, alreadySignedUpMail({
+    await queueMail(deps, 'already-signed-up', existing.email, alreadySignedUpMail({
       name: existing.name,
       signInLink: linkTo(deps, MAIL_LINK_ROUTES.signIn),
       resetLink: linkTo(deps, MAIL_LINK_ROUTES.requestReset),
@@ -62,8 +63,8 @@ export async function requestSignUp(deps: AppDeps, body: SignUpBody): Promise<vo
   const { token, hash } = newToken()
   const now = Date.now()
   const expiresAt = now + deps.config.ttl.signupMs
-  deps.db.insert(pendingSignups).values({ id: newId(), email: body.email, name: body.name, passwordHash, tokenHash: hash, createdAt: now, expiresAt }).run()
-  queueMail(deps, 'confirm-sign-up', body.email, confirmSignUpMail({ name: body.name, link: linkTo(deps, MAIL_LINK_ROUTES.confirmSignUp, token), expiresAt }))
+  await deps.db.insert(pendingSignups).values({ id: newId(), email: body.email, name: body.name, passwordHash, tokenHash: hash, createdAt: now, expiresAt })
+  await queueMail(deps, 'confirm-sign-up', body.email, confirmSignUpMail({ name: body.name, link: linkTo(deps, MAIL_LINK_ROUTES.confirmSignUp, token), expiresAt }))
 }
 
 /** Opens a confirmation link: creates the account. */
@@ -73,64 +74,64 @@ export async function requestSignUp(deps: AppDeps, body: SignUpBody): Promise<vo
  * its owner with a stranger's password. A wrong password leaves the link usable.
  */
 export async function confirmSignUp(deps: AppDeps, token: string, password: string): Promise<UserRow> {
-  const row = deps.db.select().from(pendingSignups).where(eq(pendingSignups.tokenHash, hashToken(token))).get()
+  const [row] = await deps.db.select().from(pendingSignups).where(eq(pendingSignups.tokenHash, hashToken(token)))
   if (!row) throw notFound('This confirmation link is not valid. Sign up again to get a new one.')
   if (row.usedAt != null) throw gone('This confirmation link has already been used. Sign in with your e-mail and password.')
   if (row.expiresAt <= Date.now()) throw gone('This confirmation link has expired. Sign up again to get a new one.')
   if (!(await verifyPassword(row.passwordHash, password)))
     throw forbidden('That is not the password chosen when signing up. If you did not sign up for Penumbra yourself, ignore the e-mail: no account is made.')
-  return deps.db.transaction(() => {
-    deps.db.update(pendingSignups).set({ usedAt: Date.now() }).where(eq(pendingSignups.id, row.id)).run()
-    if (userByEmail(deps, row.email)) throw conflict('An account with this e-mail address already exists. Sign in instead.')
+  return transact(deps.db, async (db) => {
+    await db.update(pendingSignups).set({ usedAt: Date.now() }).where(eq(pendingSignups.id, row.id))
+    if (await userByEmail({ db }, row.email)) throw conflict('An account with this e-mail address already exists. Sign in instead.')
     const user: UserRow = { id: newId(), email: row.email, name: row.name, passwordHash: row.passwordHash, createdAt: Date.now(), sessionsValidFrom: null }
-    deps.db.insert(users).values(user).run()
+    await db.insert(users).values(user)
     return user
   })
 }
 
 /** The user for an e-mail and password, or null; takes the same time when the address has no account. */
 export async function checkCredentials(deps: AppDeps, email: string, password: string): Promise<UserRow | null> {
-  const user = userByEmail(deps, email)
+  const user = await userByEmail(deps, email)
   if (!user) return verifyAgainstDummy(deps.config, password).then(() => null)
   return (await verifyPassword(user.passwordHash, password)) ? user : null
 }
 
-export function updateName(deps: AppDeps, userId: string, name: string): UserRow {
-  deps.db.update(users).set({ name }).where(eq(users.id, userId)).run()
-  return userById(deps, userId)!
+export async function updateName(deps: AppDeps, userId: string, name: string): Promise<UserRow> {
+  await deps.db.update(users).set({ name }).where(eq(users.id, userId))
+  return (await userById(deps, userId))!
 }
 
 /** Sets a new password and ends every session issued before now. */
 async function setPassword(deps: AppDeps, userId: string, password: string): Promise<void> {
   const passwordHash = await hashPassword(deps.config, password)
-  deps.db.update(users).set({ passwordHash, sessionsValidFrom: Date.now() }).where(eq(users.id, userId)).run()
+  await deps.db.update(users).set({ passwordHash, sessionsValidFrom: Date.now() }).where(eq(users.id, userId))
   callHook(deps, 'sessionsEnded', userId)
 }
 
 export async function changePassword(deps: AppDeps, userId: string, current: string, next: string): Promise<void> {
-  const user = userById(deps, userId)
+  const user = await userById(deps, userId)
   if (!user || !(await verifyPassword(user.passwordHash, current))) throw forbidden('The current password is not right.')
   await setPassword(deps, userId, next)
 }
 
 /** Mails a reset link when the address has an account; otherwise does nothing visible. */
-export function requestReset(deps: AppDeps, email: string): void {
-  const user = userByEmail(deps, email)
+export async function requestReset(deps: AppDeps, email: string): Promise<void> {
+  const user = await userByEmail(deps, email)
   const { token, hash } = newToken()
   if (!user) return
   const now = Date.now()
   const expiresAt = now + deps.config.ttl.resetMs
-  deps.db.insert(passwordResets).values({ id: newId(), userId: user.id, tokenHash: hash, createdAt: now, expiresAt }).run()
-  queueMail(deps, 'password-reset', user.email, passwordResetMail({ name: user.name, link: linkTo(deps, MAIL_LINK_ROUTES.resetPassword, token), expiresAt }))
+  await deps.db.insert(passwordResets).values({ id: newId(), userId: user.id, tokenHash: hash, createdAt: now, expiresAt })
+  await queueMail(deps, 'password-reset', user.email, passwordResetMail({ name: user.name, link: linkTo(deps, MAIL_LINK_ROUTES.resetPassword, token), expiresAt }))
 }
 
 /** Uses a reset link once: sets the password, spends every other open link of that user, ends older sessions. */
 export async function resetPassword(deps: AppDeps, token: string, password: string): Promise<void> {
-  const row = deps.db.select().from(passwordResets).where(eq(passwordResets.tokenHash, hashToken(token))).get()
+  const [row] = await deps.db.select().from(passwordResets).where(eq(passwordResets.tokenHash, hashToken(token)))
   if (!row) throw notFound('This reset link is not valid. Ask for a new one.')
   if (row.usedAt != null) throw gone('This reset link has already been used. Ask for a new one if you need to.')
   if (row.expiresAt <= Date.now()) throw gone('This reset link has expired. Ask for a new one.')
   // spend the link before the slow hash, so two requests with one link cannot both succeed
-  deps.db.update(passwordResets).set({ usedAt: Date.now() }).where(and(eq(passwordResets.userId, row.userId), isNull(passwordResets.usedAt))).run()
+  await deps.db.update(passwordResets).set({ usedAt: Date.now() }).where(and(eq(passwordResets.userId, row.userId), isNull(passwordResets.usedAt)))
   await setPassword(deps, row.userId, password)
 }

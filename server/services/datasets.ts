@@ -6,7 +6,7 @@
  */
 import { eq } from 'drizzle-orm'
 import type { Db } from '../db/client'
-import { datasets } from '../db/schema'
+import { datasets } from '../db/tables'
 import type { SheetFile, SpectrumCell } from '../../shared/schema/sheet'
 import { fileForm, inlineColumns, metadataColumns, needsDataset, type StoredColumn } from '../../shared/import/spectrumCell'
 import { newId } from './tokens'
@@ -54,15 +54,15 @@ function packColumns(columns: readonly StoredColumn[]): Buffer {
 }
 
 /** Stores a dataset; returns its id. Call inside the caller's transaction when other rows go with it. */
-export function storeDataset(db: Db, d: NewDataset): string {
+export async function storeDataset(db: Db, d: NewDataset): Promise<string> {
   const id = `ds_${newId()}`
   const meta: DatasetColumnMeta[] = d.columns.map((c) => ({ name: c.name, ...(c.quantity ? { quantity: c.quantity } : {}), unit: c.unit, count: c.values.length }))
-  db.insert(datasets)
+  await db
+    .insert(datasets)
     .values({
       id, labId: d.labId, sheetId: d.sheetId, name: d.name, sourceName: d.sourceName ?? null, uploadedBy: d.uploadedBy,
       createdAt: Date.now(), columns: JSON.stringify(meta), values: packColumns(d.columns),
     })
-    .run()
   return id
 }
 
@@ -85,7 +85,7 @@ function remember(d: StoredDataset): void {
 }
 
 /** A dataset with its columns' values (cached), or null. */
-export function datasetById(db: Db, id: string): StoredDataset | null {
+export async function datasetById(db: Db, id: string): Promise<StoredDataset | null> {
   const hit = cache.get(id)
   if (hit) {
     // most recently used last
@@ -93,7 +93,7 @@ export function datasetById(db: Db, id: string): StoredDataset | null {
     cache.set(id, hit)
     return hit
   }
-  const row = db.select().from(datasets).where(eq(datasets.id, id)).get()
+  const [row] = await db.select().from(datasets).where(eq(datasets.id, id))
   if (!row) return null
   const meta = JSON.parse(row.columns) as DatasetColumnMeta[]
   const blob = row.values
@@ -119,15 +119,21 @@ export function datasetById(db: Db, id: string): StoredDataset | null {
  * alone: the cells lose their `datasetId` and column metadata, as a file is written). Only datasets of `labId` are read: a document that names another lab's dataset gets nothing from it (the
  * cell then reports that its data is not loaded). Cells that already carry values are left as they are.
  */
-export function inlineDatasets<F extends SheetFile>(db: Db, file: F, labId: string): F {
+export async function inlineDatasets<F extends SheetFile>(db: Db, file: F, labId: string): Promise<F> {
   let changed = false
-  const cells = file.cells.map((cell) => {
-    if (!needsDataset(cell)) return cell
-    const d = datasetById(db, cell.datasetId)
-    if (!d || d.labId !== labId) return cell
-    changed = true
-    return fileForm(cell, d.columns)
-  })
+  const cells: F['cells'] = []
+  for (const cell of file.cells) {
+    if (!needsDataset(cell)) {
+      cells.push(cell)
+      continue
+    }
+    const d = await datasetById(db, cell.datasetId)
+    if (!d || d.labId !== labId) cells.push(cell)
+    else {
+      changed = true
+      cells.push(fileForm(cell, d.columns))
+    }
+  }
   return changed ? { ...file, cells } : file
 }
 
@@ -136,15 +142,18 @@ export function inlineDatasets<F extends SheetFile>(db: Db, file: F, labId: stri
  * cells in their live-document form (metadata and `datasetId`, no numbers). Run inside the sheet's creating
  * transaction, so a failure stores nothing.
  */
-export function storeInlineDatasets<F extends SheetFile>(db: Db, file: F, where: { labId: string; sheetId: string; userId: string }): F {
-  const cells = file.cells.map((cell) => {
-    if (cell.kind !== 'spectrum') return cell
-    const columns = inlineColumns(cell)
-    if (!columns || columns.length === 0) return cell
-    const id = storeDataset(db, { labId: where.labId, sheetId: where.sheetId, name: cell.name, sourceName: cell.source ?? null, uploadedBy: where.userId, columns })
+export async function storeInlineDatasets<F extends SheetFile>(db: Db, file: F, where: { labId: string; sheetId: string; userId: string }): Promise<F> {
+  const cells: F['cells'] = []
+  for (const cell of file.cells) {
+    const columns = cell.kind === 'spectrum' ? inlineColumns(cell) : null
+    if (cell.kind !== 'spectrum' || !columns || columns.length === 0) {
+      cells.push(cell)
+      continue
+    }
+    const id = await storeDataset(db, { labId: where.labId, sheetId: where.sheetId, name: cell.name, sourceName: cell.source ?? null, uploadedBy: where.userId, columns })
     const live: SpectrumCell = { ...cell, datasetId: id, columns: metadataColumns(columns) }
-    return live
-  })
+    cells.push(live)
+  }
   return { ...file, cells }
 }
 

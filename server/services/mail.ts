@@ -4,16 +4,16 @@
  */
 import { eq } from 'drizzle-orm'
 import type { Db } from '../db/client'
-import { mails } from '../db/schema'
+import { mails } from '../db/tables'
 import type { Mailer } from '../mail/mailer'
 import type { MailContent } from '../mail/messages'
 import { newId } from './tokens'
 
 export type MailKind = 'invitation' | 'password-reset' | 'confirm-sign-up' | 'already-signed-up' | 'review-request' | 'review-decision' | 'mention'
 
-export function queueMail(deps: { db: Db; mailer: Mailer }, kind: MailKind, to: string, content: MailContent): string {
+export async function queueMail(deps: { db: Db; mailer: Mailer }, kind: MailKind, to: string, content: MailContent): Promise<string> {
   const id = newId()
-  deps.db.insert(mails).values({ id, to, kind, subject: content.subject, text: content.text, html: content.html, createdAt: Date.now() }).run()
+  await deps.db.insert(mails).values({ id, to, kind, subject: content.subject, text: content.text, html: content.html, createdAt: Date.now() })
   let sending: Promise<void>
   try {
     sending = deps.mailer.send({ to, ...content })
@@ -32,9 +32,11 @@ export function queueMail(deps: { db: Db; mailer: Mailer }, kind: MailKind, to: 
 }
 
 function record(db: Db, id: string, values: { sentAt?: number; error?: string }): void {
+  // the database may already be closed at shutdown; the mail itself went out
+  const ignore = () => {}
   try {
-    db.update(mails).set(values).where(eq(mails.id, id)).run()
+    db.update(mails).set(values).where(eq(mails.id, id)).then(ignore, ignore)
   } catch {
-    // the database may already be closed at shutdown; the mail itself went out
+    ignore()
   }
 }

@@ -6,7 +6,7 @@ import { SignJWT, jwtVerify, errors as joseErrors } from 'jose'
 import { eq } from 'drizzle-orm'
 import { randomUUID } from 'node:crypto'
 import type { Db } from '../db/client'
-import { users, sessionsRevoked } from '../db/schema'
+import { users, sessionsRevoked } from '../db/tables'
 
 export const SESSION_COOKIE = 'penumbra_session'
 export const SESSION_TTL_SECONDS = 7 * 24 * 3600
@@ -96,9 +96,9 @@ export async function userForToken(
   const verified = await verifySession(secret, token)
   if (!verified.ok) return verified
   const { claims } = verified
-  const revoked = db.select().from(sessionsRevoked).where(eq(sessionsRevoked.jti, claims.jti)).get()
+  const [revoked] = await db.select({ jti: sessionsRevoked.jti }).from(sessionsRevoked).where(eq(sessionsRevoked.jti, claims.jti))
   if (revoked) return { ok: false, reason: 'revoked' }
-  const user = db.select().from(users).where(eq(users.id, claims.userId)).get()
+  const [user] = await db.select().from(users).where(eq(users.id, claims.userId))
   if (!user) return { ok: false, reason: 'unknown-user' }
   // a password reset or change ends every session issued before it (to the millisecond; rows written by older builds
   // hold seconds)
@@ -110,6 +110,6 @@ export async function userForToken(
 }
 
 /** Signs a session out for good: its jti is refused until the token would have expired anyway. */
-export function revokeSession(db: Db, jti: string, exp: number): void {
-  db.insert(sessionsRevoked).values({ jti, expiresAt: exp }).onConflictDoNothing().run()
+export async function revokeSession(db: Db, jti: string, exp: number): Promise<void> {
+  await db.insert(sessionsRevoked).values({ jti, expiresAt: exp }).onConflictDoNothing()
 }

@@ -5,13 +5,15 @@
 import { desc, eq, sql } from 'drizzle-orm'
 import type { AppDeps } from '../deps'
 import { callHook } from '../deps'
-import { sheetStates, sheetUpdates, sheets, users, type Role } from '../db/schema'
+import { sheetStates, sheetUpdates, sheets, users, type Role } from '../db/tables'
 import { SHEET_FORMAT, SHEET_VERSION, withCellIds, type SheetFile } from '../../shared/schema/sheet'
 import { newCellId } from '../../shared/doc/sheetDoc'
 import type { Sheet, SheetSummary } from '../../shared/schema/api'
 import type { LabRow, SheetRow } from '../types'
 import { loadSheetFile, seedDocument } from './documents'
 import { newId } from './tokens'
+import { transact } from '../db/transact'
+import { DIALECT } from '../db/dialect'
 import { inlineDatasets, storeInlineDatasets } from './datasets'
 
 /** Owners may delete any sheet; editors the ones they made. */
@@ -19,20 +21,21 @@ export function canDeleteSheet(role: Role | null | undefined, sheet: Pick<SheetR
   return role === 'owner' || (role === 'editor' && sheet.createdBy === userId)
 }
 
-function authorName(deps: Pick<AppDeps, 'db'>, userId: string): string {
-  return deps.db.select({ name: users.name }).from(users).where(eq(users.id, userId)).get()?.name ?? 'a former member'
+async function authorName(deps: Pick<AppDeps, 'db'>, userId: string): Promise<string> {
+  return (await deps.db.select({ name: users.name }).from(users).where(eq(users.id, userId)))[0]?.name ?? 'a former member'
 }
 
 /**
  * When a sheet last changed: its row (create, rename) or its live document (the newest stored update, or the
  * compaction that folded it in), so editing cells moves a sheet up the list without the live layer touching the row.
  */
-const lastChange = sql<number>`max(${sheets.updatedAt},
+const largest = DIALECT === 'pg' ? sql.raw('greatest') : sql.raw('max')
+const lastChange = sql<number>`${largest}(${sheets.updatedAt},
   coalesce((select max(su.created_at) from ${sheetUpdates} su where su.sheet_id = ${sheets.id}), 0),
   coalesce((select ss.updated_at from ${sheetStates} ss where ss.sheet_id = ${sheets.id}), 0))`
 
-function withLastChange(deps: Pick<AppDeps, 'db'>, row: SheetRow): SheetRow {
-  const found = deps.db.select({ at: lastChange }).from(sheets).where(eq(sheets.id, row.id)).get()
+async function withLastChange(deps: Pick<AppDeps, 'db'>, row: SheetRow): Promise<SheetRow> {
+  const [found] = await deps.db.select({ at: lastChange }).from(sheets).where(eq(sheets.id, row.id))
   return found ? { ...row, updatedAt: Number(found.at) } : row
 }
 
@@ -40,19 +43,19 @@ function summary(row: SheetRow, author: string): SheetSummary {
   return { id: row.id, labId: row.labId, title: row.title, createdBy: row.createdBy, authorName: author, createdAt: row.createdAt, updatedAt: row.updatedAt }
 }
 
-export function sheetReply(deps: Pick<AppDeps, 'db'>, row: SheetRow, lab: Pick<LabRow, 'name'>, role: Role, userId: string): Sheet {
-  return { ...summary(withLastChange(deps, row), authorName(deps, row.createdBy)), labName: lab.name, role, canDelete: canDeleteSheet(role, row, userId) }
+export async function sheetReply(deps: Pick<AppDeps, 'db'>, row: SheetRow, lab: Pick<LabRow, 'name'>, role: Role, userId: string): Promise<Sheet> {
+  const updated = await withLastChange(deps, row)
+  return { ...summary(updated, await authorName(deps, row.createdBy)), labName: lab.name, role, canDelete: canDeleteSheet(role, row, userId) }
 }
 
-export function listSheets(deps: Pick<AppDeps, 'db'>, labId: string): SheetSummary[] {
-  return deps.db
+export async function listSheets(deps: Pick<AppDeps, 'db'>, labId: string): Promise<SheetSummary[]> {
+  const rows = await deps.db
     .select({ sheet: sheets, author: users.name, lastChange })
     .from(sheets)
     .leftJoin(users, eq(users.id, sheets.createdBy))
     .where(eq(sheets.labId, labId))
     .orderBy(desc(lastChange), desc(sheets.createdAt))
-    .all()
-    .map((r) => summary({ ...r.sheet, updatedAt: Number(r.lastChange) }, r.author ?? 'a former member'))
+  return rows.map((r) => summary({ ...r.sheet, updatedAt: Number(r.lastChange) }, r.author ?? 'a former member'))
 }
 
 export function blankSheetFile(title: string): SheetFile {
@@ -60,32 +63,33 @@ export function blankSheetFile(title: string): SheetFile {
 }
 
 /** Stores a new sheet and seeds its document with the file's cells (cells without ids get one). */
-export function createSheet(deps: Pick<AppDeps, 'db'>, labId: string, userId: string, file: SheetFile): SheetRow {
+export async function createSheet(deps: Pick<AppDeps, 'db'>, labId: string, userId: string, file: SheetFile): Promise<SheetRow> {
   const now = Date.now()
   const row: SheetRow = { id: newId(), labId, title: file.title, createdBy: userId, createdAt: now, updatedAt: now }
-  deps.db.transaction(() => {
-    deps.db.insert(sheets).values(row).run()
+  const withIds = withCellIds(file, newCellId)
+  await transact(deps.db, async (db) => {
+    await db.insert(sheets).values(row)
     // spectra written into the file become datasets; the document keeps their metadata and ids
-    const live = storeInlineDatasets(deps.db, withCellIds(file, newCellId), { labId, sheetId: row.id, userId })
-    seedDocument(deps.db, row.id, live)
+    const live = await storeInlineDatasets(db, withIds, { labId, sheetId: row.id, userId })
+    await seedDocument(db, row.id, live)
   })
   return row
 }
 
-export function renameSheet(deps: Pick<AppDeps, 'db'>, row: SheetRow, title: string): SheetRow {
+export async function renameSheet(deps: Pick<AppDeps, 'db'>, row: SheetRow, title: string): Promise<SheetRow> {
   const updatedAt = Date.now()
-  deps.db.update(sheets).set({ title, updatedAt }).where(eq(sheets.id, row.id)).run()
+  await deps.db.update(sheets).set({ title, updatedAt }).where(eq(sheets.id, row.id))
   return { ...row, title, updatedAt }
 }
 
-export function deleteSheet(deps: AppDeps, sheetId: string): void {
-  deps.db.delete(sheets).where(eq(sheets.id, sheetId)).run()
+export async function deleteSheet(deps: AppDeps, sheetId: string): Promise<void> {
+  await deps.db.delete(sheets).where(eq(sheets.id, sheetId))
   callHook(deps, 'sheetDeleted', sheetId)
 }
 
 /** The sheet file of a stored sheet, titled as the sheet is now, with its datasets' numbers written in. */
-export function exportSheet(deps: Pick<AppDeps, 'db'>, row: SheetRow): SheetFile {
-  return inlineDatasets(deps.db, loadSheetFile(deps.db, row.id, row.title), row.labId)
+export async function exportSheet(deps: Pick<AppDeps, 'db'>, row: SheetRow): Promise<SheetFile> {
+  return inlineDatasets(deps.db, await loadSheetFile(deps.db, row.id, row.title), row.labId)
 }
 
 /**

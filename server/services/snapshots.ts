@@ -8,8 +8,8 @@ import { and, count, desc, eq, gt, isNull, sql } from 'drizzle-orm'
 import * as Y from 'yjs'
 import type { AppDeps } from '../deps'
 import type { AppConfig } from '../config'
-import type { Db } from '../db/client'
-import { guestLinks, reviews, snapshots, users } from '../db/schema'
+import { isPostgres, type Db } from '../db/client'
+import { guestLinks, reviews, snapshots, users } from '../db/tables'
 import { docToSheetFile, newCellId } from '../../shared/doc/sheetDoc'
 import { canonicalJson, SNAPSHOT_MEMBER } from '../../shared/snapshot/canonical'
 import { parseSheetFile, withCellIds, type SheetFile } from '../../shared/schema/sheet'
@@ -35,8 +35,8 @@ export function sha256Hex(text: string): string {
  * The sheet file a document holds now, titled as the sheet is, with its stored datasets' numbers written into the
  * spectrum cells (services/datasets.ts), so a snapshot's file stands alone.
  */
-export function liveSheetFile(db: Db, sheet: Pick<SheetRow, 'id' | 'labId' | 'title'>, doc: Y.Doc = loadDocument(db, sheet.id)): SheetFile {
-  return inlineDatasets(db, { ...docToSheetFile(doc), title: sheet.title }, sheet.labId)
+export async function liveSheetFile(db: Db, sheet: Pick<SheetRow, 'id' | 'labId' | 'title'>, doc?: Y.Doc): Promise<SheetFile> {
+  return inlineDatasets(db, { ...docToSheetFile(doc ?? (await loadDocument(db, sheet.id))), title: sheet.title }, sheet.labId)
 }
 
 /**
@@ -123,8 +123,8 @@ export interface FreezeOptions {
 
 /** Freezes the sheet's live document as a new snapshot. */
 export async function freezeSnapshot(deps: { db: Db; config: Pick<AppConfig, 'evaluate'> }, sheet: SheetRow, userId: string, message: string, options: FreezeOptions = {}): Promise<SnapshotRow> {
-  const doc = loadDocument(deps.db, sheet.id)
-  const file = canonicalJson(liveSheetFile(deps.db, sheet, doc))
+  const doc = await loadDocument(deps.db, sheet.id)
+  const file = canonicalJson(await liveSheetFile(deps.db, sheet, doc))
   const hash = sha256Hex(file)
   // the worker evaluates while this thread encodes the document's state
   const evaluation = evaluateOnServer(options.evaluator ?? sharedEvaluator(), file, deps.config.evaluate.budgetMs, hash)
@@ -144,7 +144,8 @@ export async function freezeSnapshot(deps: { db: Db; config: Pick<AppConfig, 'ev
     createdBy: userId,
     createdAt: options.now ?? Date.now(),
   }
-  insertStatement(deps.db).run(row)
+  if (isPostgres(deps.db)) await deps.db.insert(snapshots).values(row)
+  else insertStatement(deps.db).run(row)
   return row
 }
 
@@ -157,8 +158,8 @@ function engineVersionOf(results: string): string {
   return version.includes('"') ? ENGINE_VERSION : version
 }
 
-/** The snapshot insert, prepared once per database handle (a freeze builds no SQL). */
-const inserts = new WeakMap<Db, ReturnType<typeof prepareInsert>>()
+/** The snapshot insert, prepared once per SQLite connection (a freeze builds no SQL). */
+const inserts = new WeakMap<object, ReturnType<typeof prepareInsert>>()
 
 function prepareInsert(db: Db) {
   const p = (name: keyof SnapshotRow) => sql.placeholder(name)
@@ -172,28 +173,29 @@ function prepareInsert(db: Db) {
 }
 
 function insertStatement(db: Db): ReturnType<typeof prepareInsert> {
-  let statement = inserts.get(db)
-  if (!statement) inserts.set(db, (statement = prepareInsert(db)))
+  let statement = inserts.get(db.$client)
+  if (!statement) inserts.set(db.$client, (statement = prepareInsert(db)))
   return statement
 }
 
-export function snapshotById(db: Db, id: string): SnapshotRow | undefined {
-  return db.select().from(snapshots).where(eq(snapshots.id, id)).get()
+export async function snapshotById(db: Db, id: string): Promise<SnapshotRow | undefined> {
+  return (await db.select().from(snapshots).where(eq(snapshots.id, id)))[0]
 }
 
-export function userName(db: Db, userId: string): string {
-  return db.select({ name: users.name }).from(users).where(eq(users.id, userId)).get()?.name ?? 'a former member'
+export async function userName(db: Db, userId: string): Promise<string> {
+  return (await db.select({ name: users.name }).from(users).where(eq(users.id, userId)))[0]?.name ?? 'a former member'
 }
 
 /** Guest links still usable (neither revoked nor expired) and reviews of a snapshot. */
-function usage(db: Db, snapshotId: string, now = Date.now()): { guestLinkCount: number; reviewCount: number } {
+async function usage(db: Db, snapshotId: string, now = Date.now()): Promise<{ guestLinkCount: number; reviewCount: number }> {
   const guestLinkCount =
-    db
-      .select({ n: count() })
-      .from(guestLinks)
-      .where(and(eq(guestLinks.snapshotId, snapshotId), isNull(guestLinks.revokedAt), gt(guestLinks.expiresAt, now)))
-      .get()?.n ?? 0
-  const reviewCount = db.select({ n: count() }).from(reviews).where(eq(reviews.snapshotId, snapshotId)).get()?.n ?? 0
+    (
+      await db
+        .select({ n: count() })
+        .from(guestLinks)
+        .where(and(eq(guestLinks.snapshotId, snapshotId), isNull(guestLinks.revokedAt), gt(guestLinks.expiresAt, now)))
+    )[0]?.n ?? 0
+  const reviewCount = (await db.select({ n: count() }).from(reviews).where(eq(reviews.snapshotId, snapshotId)))[0]?.n ?? 0
   return { guestLinkCount, reviewCount }
 }
 
@@ -201,7 +203,7 @@ function titleOf(row: SnapshotRow): string {
   return (JSON.parse(row.file) as { title?: string }).title ?? 'Untitled sheet'
 }
 
-export function snapshotSummary(db: Db, row: SnapshotRow): SnapshotSummary {
+export async function snapshotSummary(db: Db, row: SnapshotRow): Promise<SnapshotSummary> {
   return {
     id: row.id,
     sheetId: row.sheetId,
@@ -209,41 +211,36 @@ export function snapshotSummary(db: Db, row: SnapshotRow): SnapshotSummary {
     hash: row.hash,
     createdAt: row.createdAt,
     createdBy: row.createdBy,
-    authorName: userName(db, row.createdBy),
+    authorName: await userName(db, row.createdBy),
     message: row.message,
     engineVersion: row.engineVersion,
     title: titleOf(row),
-    reviewState: reviewStateOf(db, row),
-    ...usage(db, row.id),
+    reviewState: await reviewStateOf(db, row),
+    ...(await usage(db, row.id)),
   }
 }
 
-export function snapshotDetail(db: Db, row: SnapshotRow): SnapshotDetail {
-  return { ...snapshotSummary(db, row), file: JSON.parse(row.file) as SnapshotDetail['file'], results: JSON.parse(row.results) as SnapshotDetail['results'] }
+export async function snapshotDetail(db: Db, row: SnapshotRow): Promise<SnapshotDetail> {
+  return { ...(await snapshotSummary(db, row)), file: JSON.parse(row.file) as SnapshotDetail['file'], results: JSON.parse(row.results) as SnapshotDetail['results'] }
 }
 
 /** A sheet's snapshots, newest first. */
-export function listSnapshots(db: Db, sheetId: string): SnapshotSummary[] {
-  return db
-    .select()
-    .from(snapshots)
-    .where(eq(snapshots.sheetId, sheetId))
-    .orderBy(desc(snapshots.createdAt), desc(snapshots.id))
-    .all()
-    .map((row) => snapshotSummary(db, row))
+export async function listSnapshots(db: Db, sheetId: string): Promise<SnapshotSummary[]> {
+  const rows = await db.select().from(snapshots).where(eq(snapshots.sheetId, sheetId)).orderBy(desc(snapshots.createdAt), desc(snapshots.id))
+  return Promise.all(rows.map((row) => snapshotSummary(db, row)))
 }
 
 /**
  * The exported snapshot file: the sheet file with a `snapshot` member holding its hash and stored results, so
  * `npm run evaluate -- FILE --check` can recompute it anywhere.
  */
-export function snapshotFileText(db: Db, row: SnapshotRow): string {
+export async function snapshotFileText(db: Db, row: SnapshotRow): Promise<string> {
   const file = JSON.parse(row.file) as Record<string, unknown>
   const snapshot = {
     hash: row.hash,
     engineVersion: row.engineVersion,
     createdAt: new Date(row.createdAt).toISOString(),
-    author: userName(db, row.createdBy),
+    author: await userName(db, row.createdBy),
     message: row.message,
     results: JSON.parse(row.results) as unknown,
   }
@@ -255,15 +252,15 @@ export function snapshotDownloadName(row: SnapshotRow): string {
 }
 
 /** Deletes a snapshot (owners only, checked by the route): refused while a review or a usable guest link uses it. */
-export function deleteSnapshot(db: Db, row: SnapshotRow): void {
-  const used = usage(db, row.id)
+export async function deleteSnapshot(db: Db, row: SnapshotRow): Promise<void> {
+  const used = await usage(db, row.id)
   if (used.reviewCount > 0) throw conflict('This snapshot has a review, so it is kept as the record of what was reviewed.')
   if (used.guestLinkCount > 0) throw conflict('A guest link still shows this snapshot. Revoke it first, then delete the snapshot.')
-  db.delete(snapshots).where(eq(snapshots.id, row.id)).run()
+  await db.delete(snapshots).where(eq(snapshots.id, row.id))
 }
 
 /** A new sheet in the snapshot's lab made from its file (cells keep their ids). */
-export function restoreAsNewSheet(deps: Pick<AppDeps, 'db'>, row: SnapshotRow, userId: string, title?: string): SheetRow {
+export async function restoreAsNewSheet(deps: Pick<AppDeps, 'db'>, row: SnapshotRow, userId: string, title?: string): Promise<SheetRow> {
   const parsed = parseSheetFile(JSON.parse(row.file))
   if (!parsed.ok) throw new HttpError(500, 'The snapshot file could not be read back.')
   const file = withCellIds(parsed.value, newCellId)

@@ -12,7 +12,7 @@ import { eq } from 'drizzle-orm'
 import { call, makeTestApp, seedLab, type TestApp } from '../utils/server'
 import { readExamples, EXAMPLES_DIR } from '../../server/db/seed'
 import { createSheet } from '../../server/services/sheets'
-import { snapshots } from '../../server/db/schema'
+import { snapshots } from '../../server/db/tables'
 
 const root = path.join(__dirname, '../..')
 let dir: string
@@ -26,10 +26,10 @@ function cli(args: string[]) {
 
 beforeAll(async () => {
   dir = mkdtempSync(path.join(tmpdir(), 'penumbra-check-'))
-  t = makeTestApp()
+  t = await makeTestApp()
   const lab = await seedLab(t)
   for (const [i, example] of readExamples(EXAMPLES_DIR, (m) => console.warn(m)).entries()) {
-    const sheet = createSheet(t.deps, lab.labId, lab.users.editor.id, example.sheet)
+    const sheet = await createSheet(t.deps, lab.labId, lab.users.editor.id, example.sheet)
     const made = await call(t, lab.users.editor.cookie).post(`/api/sheets/${sheet.id}/snapshots`, { message: `frozen for the check ${i}` })
     expect(made.status).toBe(201)
     const res = await call(t, lab.users.viewer.cookie).get(`/api/snapshots/${made.body.id}/file`).buffer(true).parse((r, cb) => {
@@ -42,13 +42,13 @@ beforeAll(async () => {
     expect(res.headers['content-disposition']).toMatch(/\.penumbra\.json/)
     const file = path.join(dir, `${i}.penumbra.json`)
     writeFileSync(file, res.body as string)
-    const row = t.db.select().from(snapshots).where(eq(snapshots.id, made.body.id)).get()!
+    const [row] = await t.db.select().from(snapshots).where(eq(snapshots.id, made.body.id))
     exported.push({ title: example.sheet.title, file, storedResults: row.results })
   }
 }, 120_000)
 
-afterAll(() => {
-  t?.close()
+afterAll(async () => {
+  await t?.close()
   if (dir) rmSync(dir, { recursive: true, force: true })
 })
 

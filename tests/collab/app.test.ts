@@ -2,6 +2,8 @@
 // changing a member's role, removing a member and signing out reach open websockets; the exported file of a sheet
 // being edited live, evaluated by POST /api/evaluate, gives the results each client computes from its own copy.
 import { afterAll, beforeEach, describe, expect, it } from 'vitest'
+import { eq } from 'drizzle-orm'
+import { users } from '../../server/db/tables'
 import request from 'supertest'
 import type { Express } from 'express'
 import * as Y from 'yjs'
@@ -75,10 +77,10 @@ describe('collab with the REST app', () => {
     await until(() => formula(watcher.doc).toString() === '2*Eg*2', 'the edit before the demotion')
     const res = await as('owner').patch(`/api/labs/${t.lab.labId}/members/${t.lab.userIds.editor}`, { role: 'viewer' })
     expect(res.status).toBe(200)
-    const rows = storedRows(t.lab)
+    const rows = await storedRows(t.lab)
     formula(editor.doc).insert(0, '5*')
     await until(() => editor.denied.length === 1, 'permission denied after the demotion')
-    expect(storedRows(t.lab)).toBe(rows)
+    expect(await storedRows(t.lab)).toBe(rows)
     expect(formula(watcher.doc).toString()).toBe('2*Eg*2')
     expect(editor.provider.wsconnected).toBe(true)
     expect(editor.closes).toEqual([])
@@ -108,7 +110,7 @@ describe('collab with the REST app', () => {
     const editor = t.connect('editor')
     await editor.synced()
     // What setPassword does: every session issued before this second ends.
-    t.lab.handle.sqlite.prepare('UPDATE users SET sessions_valid_from = ? WHERE id = ?').run(Math.floor(Date.now() / 1000) + 1, t.lab.userIds.editor)
+    await t.lab.handle.db.update(users).set({ sessionsValidFrom: Math.floor(Date.now() / 1000) + 1 }).where(eq(users.id, t.lab.userIds.editor))
     await until(() => editor.closes.length === 1, 'the old session to close')
     expect(editor.closes[0].code).toBe(CLOSE.sessionEnded)
   })

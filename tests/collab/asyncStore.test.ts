@@ -6,7 +6,8 @@ import * as Y from 'yjs'
 import { cellsOf, docToSheetFile } from '../../shared/doc/sheetDoc'
 import { loadDocument } from '../../server/services/documents'
 import { CLOSE, createMemoryBus } from '../../server/collab/index'
-import { createSqliteStore, type CollabStore, type LoadedDocument, type PendingRow } from '../../server/collab/store'
+import type { CollabStore, LoadedDocument, PendingRow } from '../../server/collab/store'
+import { defaultStore } from '../../server/collab/defaultStore'
 import { storedRows, until, upgradeStatus, type Lab } from './support/fixture'
 import { useCollab } from './support/useCollab'
 
@@ -31,18 +32,18 @@ function gate() {
 }
 
 /**
- * The SQLite store behind Promises: each call does its work after `delay()` milliseconds (the read of a load happens
+ * The database's own store behind Promises: each call does its work after `delay()` milliseconds (the read of a load happens
  * at once, its answer later, as a network round trip would), and after the gates open. Counts calls and records how
  * many calls were in flight together.
  */
 function slowStore(lab: Lab, delay: () => number = () => 2) {
-  const inner = createSqliteStore(lab.handle.db)
+  const inner = defaultStore(lab.handle.db)
   const gates = { load: gate(), store: gate() }
   const failNext = { store: 0, load: 0 }
   const calls = { load: 0, store: 0, compact: 0 }
   let inFlight = 0
   let maxInFlight = 0
-  const later = <T>(g: ReturnType<typeof gate>, work: () => T): Promise<T> => {
+  const later = <T>(g: ReturnType<typeof gate>, work: () => T | Promise<T>): Promise<T> => {
     inFlight++
     maxInFlight = Math.max(maxInFlight, inFlight)
     return new Promise<void>((resolve) => setTimeout(resolve, delay()))
@@ -94,10 +95,10 @@ describe('collab: a store that answers later', () => {
     formula(a.doc).insert(0, 'more ')
     await new Promise((r) => setTimeout(r, 60))
     expect(formula(b.doc).toString()).toBe('Eg*2')
-    expect(storedRows(t.lab)).toBe(0)
+    expect(await storedRows(t.lab)).toBe(0)
     slow.gates.store.open()
     await until(() => formula(b.doc).toString() === 'more held Eg*2', 'the edits at b')
-    expect(storedRows(t.lab)).toBe(2)
+    expect(await storedRows(t.lab)).toBe(2)
     expect(slow.maxInFlight()).toBe(1)
   })
 
@@ -117,7 +118,7 @@ describe('collab: a store that answers later', () => {
     // Never a commit beside a commit or a compaction: the store saw one call at a time.
     expect(slow.maxInFlight()).toBe(1)
     await t.server.close()
-    const stored = loadDocument(t.lab.handle.db, t.lab.sheetId)
+    const stored = await loadDocument(t.lab.handle.db, t.lab.sheetId)
     expect(docToSheetFile(stored)).toEqual(docToSheetFile(a.doc))
   })
 
@@ -133,7 +134,7 @@ describe('collab: a store that answers later', () => {
     await until(() => a.closes.length >= 1 && b.closes.length >= 1, 'the sheet connections to close')
     expect(a.closes[0]).toEqual({ code: CLOSE.saveFailed, reason: 'the change could not be saved; reconnecting' })
     expect(formula(b.doc).toString()).toBe('Eg*2')
-    expect(storedRows(t.lab)).toBe(0)
+    expect(await storedRows(t.lab)).toBe(0)
   })
 
   it('loads a sheet once for connections that arrive while it loads, and refuses with 500 when the load fails', async () => {
@@ -149,7 +150,7 @@ describe('collab: a store that answers later', () => {
     await Promise.all([a.synced(), b.synced()])
     expect(slow.calls.load).toBe(1)
     expect(formula(b.doc).toString()).toBe('Eg*2')
-    const other = t.lab.addSheet()
+    const other = await t.lab.addSheet()
     slow.failNext.load = 1
     const refused = await upgradeStatus(t.server, other, t.lab.tokens.editor)
     expect(refused.status).toBe(500)
@@ -174,7 +175,7 @@ describe('collab: a store that answers later', () => {
     const slow = slowStore(t.lab, () => 20)
     await t.start({ hooks: { store: slow.store } })
     await t.server.collab.changeDocument(t.lab.sheetId, (doc) => doc.getMap('meta').set('title', 'Edge model, annealed'), t.lab.userIds.owner)
-    expect(docToSheetFile(loadDocument(t.lab.handle.db, t.lab.sheetId)).title).toBe('Edge model, annealed')
+    expect(docToSheetFile(await loadDocument(t.lab.handle.db, t.lab.sheetId)).title).toBe('Edge model, annealed')
   })
 
   it('applies the bus events heard while a sheet loads once it is in memory', async () => {
@@ -189,7 +190,7 @@ describe('collab: a store that answers later', () => {
     const b = t.connect('editor2', { server: two })
     await until(() => slow.calls.load === 1, 'the load on instance two')
     formula(a.doc).insert(0, 'while loading ')
-    await until(() => storedRows(t.lab) === 1, 'a’s edit stored')
+    await until(async () => (await storedRows(t.lab)) === 1, 'a’s edit stored')
     await new Promise((r) => setTimeout(r, 20))
     slow.gates.load.open()
     await b.synced()

@@ -45,7 +45,7 @@ describe('collab: two editors in one formula', () => {
     expect(ta.toString()).toBe(tb.toString())
     expect(ta.toString()).toBe(' '.repeat(40) + 'Eg*2' + '+1'.repeat(40))
     await t.server.collab.close()
-    const stored = loadDocument(t.lab.handle.db, t.lab.sheetId)
+    const stored = await loadDocument(t.lab.handle.db, t.lab.sheetId)
     expect(formulaText(stored, 'x').toString()).toBe(ta.toString())
   })
 

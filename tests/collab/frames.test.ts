@@ -52,22 +52,22 @@ describe('collab: malformed and oversize frames', () => {
   })
 
   it('closes a connection whose update is truncated, storing nothing from it', async () => {
-    const rows = storedRows(t.lab)
-    const full = syncFrame(2, appendToFormula(loadDocument(t.lab.handle.db, t.lab.sheetId), '*7'))
+    const rows = await storedRows(t.lab)
+    const full = syncFrame(2, appendToFormula(await loadDocument(t.lab.handle.db, t.lab.sheetId), '*7'))
     const closed = await sendAndClose(full.subarray(0, full.length - 5))
     expect(closed.code).toBe(CLOSE.malformed)
     expect(closed.reason).toMatch(/declares \d+ bytes but only \d+ follow/)
-    expect(storedRows(t.lab)).toBe(rows)
-    expect(formula(loadDocument(t.lab.handle.db, t.lab.sheetId))).toBe('Eg*2')
+    expect(await storedRows(t.lab)).toBe(rows)
+    expect(formula(await loadDocument(t.lab.handle.db, t.lab.sheetId))).toBe('Eg*2')
     await othersCarryOn('+2')
   })
 
   it('closes a connection whose well-framed update is not a Yjs update', async () => {
-    const rows = storedRows(t.lab)
+    const rows = await storedRows(t.lab)
     const closed = await sendAndClose(syncFrame(2, new Uint8Array([5, 1, 200, 0x99, 7, 7, 7])))
     expect(closed.code).toBe(CLOSE.malformed)
     expect(closed.reason).toMatch(/malformed document update/)
-    expect(storedRows(t.lab)).toBe(rows)
+    expect(await storedRows(t.lab)).toBe(rows)
     await othersCarryOn('+3')
   })
 
@@ -103,7 +103,7 @@ describe('collab: malformed and oversize frames', () => {
   })
 
   it('accepts an update just under the limit (a large dataset column) and relays it', async () => {
-    const doc = loadDocument(t.lab.handle.db, t.lab.sheetId)
+    const doc = await loadDocument(t.lab.handle.db, t.lab.sheetId)
     const before = Y.encodeStateVector(doc)
     const values = Array.from({ length: 60_000 }, (_, i) => 300 + i * 0.01)
     const spectrum = new Y.Map<unknown>()

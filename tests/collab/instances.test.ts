@@ -53,7 +53,7 @@ describe('collab: two instances sharing one log', () => {
     await until(() => one.collab.stats().counters.compactions + two.collab.stats().counters.compactions >= 5, 'compactions on the shared log')
     await two.close()
     await one.close()
-    const stored = loadDocument(t.lab.handle.db, t.lab.sheetId)
+    const stored = await loadDocument(t.lab.handle.db, t.lab.sheetId)
     expect(formula(stored)).toBe(formula(b.doc))
     expect(docToSheetFile(stored)).toEqual(docToSheetFile(b.doc))
     expect(Y.encodeStateVector(stored)).toEqual(Y.encodeStateVector(b.doc))
@@ -76,7 +76,7 @@ describe('collab: two instances sharing one log', () => {
     await Promise.all([a.synced(), b.synced()])
     lose = 1
     text(a.doc).insert(4, ' lost')
-    await until(() => storedRows(t.lab) === 1, 'the first edit stored (its publication lost)')
+    await until(async () => (await storedRows(t.lab)) === 1, 'the first edit stored (its publication lost)')
     text(a.doc).insert(text(a.doc).length, ' heard')
     // Seq 2 arrives without seq 1: after gapMs instance two reads the sheet again and relays what it lacked.
     await until(() => formula(b.doc) === 'Eg*2 lost heard', 'both edits at b')

@@ -1,6 +1,8 @@
 // The update log: every accepted update is stored before it is relayed; the log is compacted as it grows and when a
 // sheet goes idle; a reload from the database gives the very same document; a refused store is never relayed.
 import { describe, expect, it } from 'vitest'
+import { eq } from 'drizzle-orm'
+import { sheets, sheetUpdates } from '../../server/db/tables'
 import * as Y from 'yjs'
 import { cellsOf, docToSheetFile, sheetFileToDoc } from '../../shared/doc/sheetDoc'
 import { loadDocument, storedUpdates } from '../../server/services/documents'
@@ -41,7 +43,7 @@ describe('collab: update log', () => {
       if (i % 100 === 99) ta.delete(0, 1)
       if (i % 50 === 0) {
         await new Promise((r) => setTimeout(r, 0))
-        maxRows = Math.max(maxRows, storedRows(t.lab))
+        maxRows = Math.max(maxRows, await storedRows(t.lab))
       }
     }
     const length = 'Eg*2'.length + N - N / 100
@@ -56,7 +58,7 @@ describe('collab: update log', () => {
     expect(stored.uptoSeq).toBeGreaterThan(0)
     expect(stored.updates.length).toBeLessThan(500)
 
-    const reloaded = loadDocument(t.lab.handle.db, t.lab.sheetId)
+    const reloaded = await loadDocument(t.lab.handle.db, t.lab.sheetId)
     expect(docToSheetFile(reloaded)).toEqual(docToSheetFile(a.doc))
     expect(Y.encodeStateVector(reloaded)).toEqual(Y.encodeStateVector(a.doc))
     expect(contains(reloaded, a.doc) && contains(a.doc, reloaded)).toBe(true)
@@ -68,8 +70,8 @@ describe('collab: update log', () => {
     const a = t.connect('editor')
     await a.synced()
     formulaText(a.doc).insert(0, '2*')
-    await until(() => storedRows(t.lab) === 1, 'the update row')
-    await until(() => storedRows(t.lab) === 0, 'the idle compaction')
+    await until(async () => await storedRows(t.lab) === 1, 'the update row')
+    await until(async () => await storedRows(t.lab) === 0, 'the idle compaction')
     expect(t.server.collab.stats().documents).toBe(1)
     a.destroy()
     t.forget(a)
@@ -83,20 +85,21 @@ describe('collab: update log', () => {
 
   it('loads a sheet whose log was never compacted (10,000 rows) and compacts it right after the first answer', async () => {
     const doc = new Y.Doc()
-    Y.applyUpdate(doc, Y.encodeStateAsUpdate(loadDocument(t.lab.handle.db, t.lab.sheetId)))
+    Y.applyUpdate(doc, Y.encodeStateAsUpdate(await loadDocument(t.lab.handle.db, t.lab.sheetId)))
     const rows: Uint8Array[] = []
     doc.on('update', (u: Uint8Array) => rows.push(u))
     const text = formulaText(doc)
     for (let i = 0; i < 10_000; i++) text.insert(text.length, String(i % 10))
-    const insert = t.lab.handle.sqlite.prepare('INSERT INTO sheet_updates (sheet_id, seq, "update", user_id, created_at) VALUES (@s, coalesce((SELECT max(seq) FROM sheet_updates WHERE sheet_id = @s), (SELECT upto_seq FROM sheet_states WHERE sheet_id = @s), 0) + 1, @u, NULL, 0)')
-    t.lab.handle.sqlite.transaction(() => rows.forEach((r) => insert.run({ s: t.lab.sheetId, u: Buffer.from(r) })))()
-    expect(storedRows(t.lab)).toBe(10_000)
+    // written outside the server, as a log that was never compacted (the state row covers none of it)
+    const log = rows.map((r, i) => ({ sheetId: t.lab.sheetId, seq: i + 1, update: Buffer.from(r), userId: null, createdAt: 0 }))
+    for (let i = 0; i < log.length; i += 1000) await t.lab.handle.db.insert(sheetUpdates).values(log.slice(i, i + 1000))
+    expect(await storedRows(t.lab)).toBe(10_000)
     await t.start()
     const a = t.connect('viewer')
     await a.synced()
     expect(formulaText(a.doc).toString()).toBe(text.toString())
-    await until(() => storedRows(t.lab) === 0, 'the compaction of the long log')
-    expect(formulaText(loadDocument(t.lab.handle.db, t.lab.sheetId)).toString()).toBe(text.toString())
+    await until(async () => await storedRows(t.lab) === 0, 'the compaction of the long log')
+    expect(formulaText(await loadDocument(t.lab.handle.db, t.lab.sheetId)).toString()).toBe(text.toString())
   })
 
   it('buildDocument() turns a state and a long log into the same document the edits made', () => {
@@ -117,21 +120,20 @@ describe('collab: update log', () => {
 
   it('never relays an update the database refused: its sheet reloads, the clients resync, other sheets go on', async () => {
     await t.start()
-    const other = t.lab.addSheet()
+    const other = await t.lab.addSheet()
     const a = t.connect('editor')
     const b = t.connect('editor2')
     const c = t.connect('editor', { sheetId: other })
     await Promise.all([a.synced(), b.synced(), c.synced()])
     // The sheet row vanishes under the live document (as if deleted without the hook): inserts now fail on the key.
-    t.lab.handle.sqlite.pragma('foreign_keys = ON')
-    t.lab.handle.sqlite.prepare('DELETE FROM sheets WHERE id = ?').run(t.lab.sheetId)
+    await t.lab.handle.db.delete(sheets).where(eq(sheets.id, t.lab.sheetId))
     formulaText(a.doc).insert(0, 'LOST ')
     formulaText(c.doc).insert(0, 'kept ')
     await until(() => t.server.collab.stats().counters.storeFailures === 1, 'the refused store')
     await until(() => a.closes.length >= 1 && b.closes.length >= 1, 'the sheet connections to close')
     expect(a.closes[0]).toEqual({ code: CLOSE.saveFailed, reason: 'the change could not be saved; reconnecting' })
     expect(formulaText(b.doc).toString()).toBe('Eg*2')
-    await until(() => storedRows(t.lab, other) === 1, 'the other sheet stored')
+    await until(async () => await storedRows(t.lab, other) === 1, 'the other sheet stored')
     expect(c.closes).toEqual([])
   })
 
@@ -140,9 +142,9 @@ describe('collab: update log', () => {
     const a = t.connect('viewer')
     await a.synced()
     t.server.collab.changeDocument(t.lab.sheetId, (doc) => doc.getMap('meta').set('title', 'Edge model, annealed'), t.lab.userIds.owner)
-    expect(docToSheetFile(loadDocument(t.lab.handle.db, t.lab.sheetId)).title).toBe('Edge model, annealed')
-    const row = t.lab.handle.sqlite.prepare('SELECT user_id FROM sheet_updates WHERE sheet_id = ?').get(t.lab.sheetId) as { user_id: string }
-    expect(row.user_id).toBe(t.lab.userIds.owner)
+    expect(docToSheetFile(await loadDocument(t.lab.handle.db, t.lab.sheetId)).title).toBe('Edge model, annealed')
+    const [row] = await t.lab.handle.db.select({ userId: sheetUpdates.userId }).from(sheetUpdates).where(eq(sheetUpdates.sheetId, t.lab.sheetId))
+    expect(row.userId).toBe(t.lab.userIds.owner)
     await until(() => a.doc.getMap('meta').get('title') === 'Edge model, annealed', 'the change at the viewer')
   })
 
@@ -168,6 +170,6 @@ describe('collab: update log', () => {
     expect(stored).toBe(240)
     await second.close()
     await t.server.close()
-    expect(formulaText(loadDocument(t.lab.handle.db, t.lab.sheetId)).toString()).toBe(ta.toString())
+    expect(formulaText(await loadDocument(t.lab.handle.db, t.lab.sheetId)).toString()).toBe(ta.toString())
   })
 })

@@ -75,7 +75,7 @@ describe.skipIf(SKIP !== null)(`collab: instances joined by Redis streams${SKIP 
     expect(formula(late.doc).toString()).toBe(formula(a.doc).toString())
     await two.close()
     await one.close()
-    expect(docToSheetFile(loadDocument(t.lab.handle.db, t.lab.sheetId))).toEqual(docToSheetFile(a.doc))
+    expect(docToSheetFile(await loadDocument(t.lab.handle.db, t.lab.sheetId))).toEqual(docToSheetFile(a.doc))
   })
 
   it('a reader’s refused update on one instance never reaches the other', async () => {
@@ -83,7 +83,7 @@ describe.skipIf(SKIP !== null)(`collab: instances joined by Redis streams${SKIP 
     const watcher = t.connect('editor2', { server: two })
     await watcher.synced()
     const viewer = await t.raw('viewer', { server: one })
-    const base = loadDocument(t.lab.handle.db, t.lab.sheetId)
+    const base = await loadDocument(t.lab.handle.db, t.lab.sheetId)
     viewer.ws.send(syncFrame(2, appendToFormula(base, ' sneaky')))
     await roundTrip(viewer)
     expect(viewer.frames.map(readServerFrame).filter((f) => f.type === 'denied')).toHaveLength(1)
@@ -92,7 +92,7 @@ describe.skipIf(SKIP !== null)(`collab: instances joined by Redis streams${SKIP 
     await editor.synced()
     formula(editor.doc).insert(0, '2*')
     await until(() => formula(watcher.doc).toString() === '2*Eg*2', 'the editor’s change across instances')
-    expect(storedRows(t.lab)).toBe(1)
+    expect(await storedRows(t.lab)).toBe(1)
     expect(one.collab.stats().counters.deniedUpdates).toBe(1)
   })
 
@@ -111,7 +111,7 @@ describe.skipIf(SKIP !== null)(`collab: instances joined by Redis streams${SKIP 
 
   it('a sheet deleted on one instance closes its sockets on the other and unloads it there', async () => {
     const { one, two } = await twoInstances()
-    const other = t.lab.addSheet()
+    const other = await t.lab.addSheet()
     const b = t.connect('editor2', { server: two })
     const elsewhere = t.connect('editor2', { server: two, sheetId: other })
     await Promise.all([b.synced(), elsewhere.synced()])
@@ -130,7 +130,7 @@ describe.skipIf(SKIP !== null)(`collab: instances joined by Redis streams${SKIP 
     await Promise.all([a.synced(), b.synced()])
     formula(a.doc).insert(0, 'still ')
     await until(() => formula(b.doc).toString() === 'still Eg*2', 'the edit at b on the same instance')
-    expect(storedRows(t.lab)).toBe(1)
+    expect(await storedRows(t.lab)).toBe(1)
     await until(() => alone.collab.stats().counters.busFailures > 0, 'the failures to be counted')
   })
 })

@@ -3,6 +3,8 @@
 // closed; a demotion in the middle of typing drops every later keystroke but keeps the connection; membership and
 // deletion reach connections held by another instance through the bus.
 import { describe, expect, it } from 'vitest'
+import { eq } from 'drizzle-orm'
+import { sheets } from '../../server/db/tables'
 import { randomUUID } from 'node:crypto'
 import * as Y from 'yjs'
 import { cellsOf } from '../../shared/doc/sheetDoc'
@@ -82,7 +84,7 @@ describe('collab: sessions and roles while connected', () => {
       typing.insert(typing.length, String(i % 10))
       if (i === 19) {
         await until(() => text(watcher.doc).length === 4 + 20, 'the first twenty keystrokes')
-        t.lab.setRole('editor', 'reviewer')
+        await t.lab.setRole('editor', 'reviewer')
         t.server.collab.membershipChanged(t.lab.labId, t.lab.userIds.editor)
       }
       await new Promise((r) => setTimeout(r, 1))
@@ -90,8 +92,8 @@ describe('collab: sessions and roles while connected', () => {
     await until(() => editor.denied.length === 1, 'the permission-denied answer')
     await until(() => t.server.collab.stats().counters.deniedUpdates === 20, 'the twenty later keystrokes refused')
     expect(text(watcher.doc).toString()).toBe('Eg*2' + '01234567890123456789')
-    expect(text(loadDocument(t.lab.handle.db, t.lab.sheetId)).toString()).toBe(text(watcher.doc).toString())
-    expect(storedRows(t.lab)).toBe(20)
+    expect(text(await loadDocument(t.lab.handle.db, t.lab.sheetId)).toString()).toBe(text(watcher.doc).toString())
+    expect(await storedRows(t.lab)).toBe(20)
     expect(editor.denied.length).toBe(1)
     expect(editor.provider.wsconnected).toBe(true)
     expect(editor.closes).toEqual([])
@@ -99,11 +101,11 @@ describe('collab: sessions and roles while connected', () => {
   })
 
   it('disconnects a removed member from every sheet of the lab at once', async () => {
-    const second = t.lab.addSheet()
+    const second = await t.lab.addSheet()
     const one = t.connect('editor')
     const two = t.connect('editor', { sheetId: second })
     await Promise.all([one.synced(), two.synced()])
-    t.lab.setRole('editor', null)
+    await t.lab.setRole('editor', null)
     t.server.collab.membershipChanged(t.lab.labId, t.lab.userIds.editor)
     await until(() => one.closes.length === 1 && two.closes.length === 1, 'both connections to close')
     expect([one.closes[0].code, two.closes[0].code]).toEqual([CLOSE.removed, CLOSE.removed])
@@ -114,12 +116,12 @@ describe('collab: the periodic recheck', () => {
   const t = useCollab({ recheckMs: 30, sweepMs: 10 })
 
   it('closes the connections of a sheet deleted without the hook (4404), unloads it, and leaves other sheets open', async () => {
-    const second = t.lab.addSheet()
+    const second = await t.lab.addSheet()
     const a = t.connect('editor')
     const b = t.connect('viewer')
     const c = t.connect('editor', { sheetId: second })
     await Promise.all([a.synced(), b.synced(), c.synced()])
-    t.lab.handle.sqlite.prepare('DELETE FROM sheets WHERE id = ?').run(t.lab.sheetId)
+    await t.lab.handle.db.delete(sheets).where(eq(sheets.id, t.lab.sheetId))
     await until(() => a.closes.length === 1 && b.closes.length === 1, 'the recheck to close the deleted sheet')
     expect(a.closes[0]).toEqual({ code: CLOSE.sheetDeleted, reason: 'this sheet was deleted' })
     expect(t.server.collab.stats().documents).toBe(1)
@@ -135,22 +137,22 @@ describe('collab: control events across instances', () => {
     const bus = createMemoryBus()
     const one = await t.start({ bus, instanceId: 'one' })
     const two = await t.another({ bus, instanceId: 'two' })
-    const second = t.lab.addSheet()
+    const second = await t.lab.addSheet()
     const editor = t.connect('editor', { server: two })
     const watcher = t.connect('editor2', { server: one })
     const reviewer = t.connect('reviewer', { server: two })
     const other = t.connect('owner', { server: two, sheetId: second })
     await Promise.all([editor.synced(), watcher.synced(), reviewer.synced(), other.synced()])
 
-    t.lab.setRole('editor', 'viewer')
+    await t.lab.setRole('editor', 'viewer')
     one.collab.membershipChanged(t.lab.labId, t.lab.userIds.editor)
     await until(() => two.collab.stats().readers === 2, 'the demotion on the other instance')
     text(editor.doc).insert(0, 'NO ')
     await until(() => editor.denied.length === 1, 'permission denied on the other instance')
-    expect(storedRows(t.lab)).toBe(0)
+    expect(await storedRows(t.lab)).toBe(0)
     expect(text(watcher.doc).toString()).toBe('Eg*2')
 
-    t.lab.setRole('reviewer', null)
+    await t.lab.setRole('reviewer', null)
     one.collab.membershipChanged(t.lab.labId, t.lab.userIds.reviewer)
     await until(() => reviewer.closes.length === 1, 'the removal on the other instance')
     expect(reviewer.closes[0].code).toBe(CLOSE.removed)

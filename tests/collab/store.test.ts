@@ -5,11 +5,12 @@ import { afterEach, beforeEach, describe, expect, it } from 'vitest'
 import * as Y from 'yjs'
 import { cellsOf } from '../../shared/doc/sheetDoc'
 import { createSqliteStore, type SyncCollabStore } from '../../server/collab/store'
-import { createLab, type Lab } from './support/fixture'
+import { createLab, sqliteOf, type Lab } from './support/fixture'
+import { ON_POSTGRES, sqliteOnly } from '../utils/db'
 
 /** Every stored row of a sheet, oldest first. */
 function storedRows(lab: Lab, sheetId: string): { seq: number; update: Uint8Array }[] {
-  return lab.handle.sqlite.prepare('SELECT seq, "update" FROM sheet_updates WHERE sheet_id = ? ORDER BY seq').all(sheetId) as { seq: number; update: Uint8Array }[]
+  return sqliteOf(lab).prepare('SELECT seq, "update" FROM sheet_updates WHERE sheet_id = ? ORDER BY seq').all(sheetId) as { seq: number; update: Uint8Array }[]
 }
 
 /** An update that appends `text` to the first formula of the sheet's stored document. */
@@ -30,7 +31,7 @@ function firstFormulaSource(doc: Y.Doc): string {
   return (formula.get('source') as Y.Text).toString()
 }
 
-describe('collab: SQLite store', () => {
+describe.skipIf(ON_POSTGRES)(sqliteOnly('collab: SQLite store'), () => {
   let lab: Lab
   let store: SyncCollabStore
   beforeEach(async () => {

@@ -41,22 +41,22 @@ describe('collab: varints decoded as numbers', () => {
   it('applies an editor update whose length is a non-minimal varint, and drops the same frame from a reviewer', async () => {
     const watcher = t.connect('editor2')
     await watcher.synced()
-    const base = loadDocument(t.lab.handle.db, t.lab.sheetId)
+    const base = await loadDocument(t.lab.handle.db, t.lab.sheetId)
     const reviewer = await t.raw('reviewer')
     reviewer.ws.send(syncFrame(2, appendToFormula(base, '*9'), { lengthBytes: 4, syncTypeBytes: 2 }))
     await roundTrip(reviewer)
     expect(t.server.collab.stats().counters.deniedUpdates).toBe(1)
     expect(received(reviewer).filter((f) => f.type === 'denied').length).toBe(1)
-    expect(storedRows(t.lab)).toBe(0)
+    expect(await storedRows(t.lab)).toBe(0)
     const editor = await t.raw('editor')
     editor.ws.send(syncFrame(2, appendToFormula(base, '*3'), { lengthBytes: 4 }))
     await until(() => formula(watcher.doc) === 'Eg*2*3', 'the editor update at the watcher')
-    expect(formula(loadDocument(t.lab.handle.db, t.lab.sheetId))).toBe('Eg*2*3')
+    expect(formula(await loadDocument(t.lab.handle.db, t.lab.sheetId))).toBe('Eg*2*3')
     expect(reviewer.isOpen() && editor.isOpen()).toBe(true)
   })
 
   it('closes a connection whose message type is 2^32 (0 in its low 32 bits), storing nothing', async () => {
-    const base = loadDocument(t.lab.handle.db, t.lab.sheetId)
+    const base = await loadDocument(t.lab.handle.db, t.lab.sheetId)
     const update = appendToFormula(base, '+7')
     for (const person of ['editor', 'viewer'] as const) {
       const raw = await t.raw(person)
@@ -70,7 +70,7 @@ describe('collab: varints decoded as numbers', () => {
     const raw = await t.raw('editor')
     raw.ws.send(new Uint8Array([0, 0x82, 0x80, 0x80, 0x80, 0x10, ...syncFrame(2, update).subarray(2)]))
     expect((await raw.closed).reason).toMatch(/unknown sync message type 4294967298/)
-    expect(storedRows(t.lab)).toBe(0)
+    expect(await storedRows(t.lab)).toBe(0)
     expect(t.server.collab.stats().counters.deniedUpdates).toBe(0)
   })
 
@@ -109,21 +109,21 @@ describe('collab: readers on the wire', () => {
     expect(closed.code).toBe(CLOSE.malformed)
     expect(closed.reason).toMatch(/nested/)
     ;(cellsOf(editor.doc).get(2).get('source') as Y.Text).insert(0, '2*')
-    await until(() => storedRows(t.lab) === 1, 'the editor to go on')
+    await until(async () => await storedRows(t.lab) === 1, 'the editor to go on')
     expect(editor.closes).toEqual([])
   })
 
   it('drops a reader’s sync step 2 sent as its very first message, answers it once, and keeps the reader', async () => {
     const watcher = t.connect('editor')
     await watcher.synced()
-    const base = loadDocument(t.lab.handle.db, t.lab.sheetId)
+    const base = await loadDocument(t.lab.handle.db, t.lab.sheetId)
     const viewer = await t.raw('viewer')
     viewer.ws.send(syncFrame(1, appendToFormula(base, ' first')))
     viewer.ws.send(syncFrame(1, appendToFormula(base, ' second')))
     await roundTrip(viewer)
     expect(received(viewer).filter((f) => f.type === 'denied')).toEqual([{ type: 'denied', reason: 'your role (viewer) may read this sheet but not change it' }])
     expect(t.server.collab.stats().counters.deniedUpdates).toBe(2)
-    expect(storedRows(t.lab)).toBe(0)
+    expect(await storedRows(t.lab)).toBe(0)
     expect(formula(watcher.doc)).toBe('Eg*2')
     // The sync step 2 the reader got back carries the document without its change.
     const answer = received(viewer).find((f) => f.type === 'sync-step2') as { payload: Uint8Array }
@@ -190,7 +190,7 @@ describe('collab: readers on the wire', () => {
     expect(editor.provider.awareness.getStates().has(8001)).toBe(false)
     expect(editor.closes).toEqual([])
     ;(cellsOf(editor.doc).get(2).get('source') as Y.Text).insert(0, '2*')
-    await until(() => storedRows(t.lab) === 1, 'the editor to go on')
+    await until(async () => await storedRows(t.lab) === 1, 'the editor to go on')
   })
 })
 
@@ -220,7 +220,7 @@ describe('collab: the size limit', () => {
     const padText = () => cellsOf(watcher.doc).toArray().find((m) => m.get('id') === 'pad')?.get('text')
     await until(() => padText() instanceof Y.Text, 'the padded update at the watcher', 15_000)
     expect((padText() as Y.Text).length).toBeGreaterThan(MAX_PAYLOAD - 128)
-    expect(storedRows(t.lab)).toBe(1)
+    expect(await storedRows(t.lab)).toBe(1)
     expect(editor.isOpen()).toBe(true)
   })
 
@@ -232,9 +232,9 @@ describe('collab: the size limit', () => {
     const closed = await editor.closed
     expect(closed.code).toBe(CLOSE.tooBig)
     expect(t.server.collab.stats().counters.oversizeFrames).toBe(1)
-    expect(storedRows(t.lab)).toBe(0)
+    expect(await storedRows(t.lab)).toBe(0)
     ;(cellsOf(watcher.doc).get(2).get('source') as Y.Text).insert(0, '2*')
-    await until(() => storedRows(t.lab) === 1, 'the watcher edit stored')
+    await until(async () => await storedRows(t.lab) === 1, 'the watcher edit stored')
     expect(watcher.closes).toEqual([])
   })
 
@@ -258,7 +258,7 @@ describe('collab: a writer over its rate limit', () => {
     await watcher.synced()
     const editor = await t.raw('editor')
     // One local document typing 40 keystrokes, each sent as its own update the moment it is made.
-    const local = loadDocument(t.lab.handle.db, t.lab.sheetId)
+    const local = await loadDocument(t.lab.handle.db, t.lab.sheetId)
     const frames: Uint8Array[] = []
     local.on('update', (u: Uint8Array) => frames.push(syncFrame(2, u)))
     const text = cellsOf(local).get(2).get('source') as Y.Text
@@ -272,8 +272,8 @@ describe('collab: a writer over its rate limit', () => {
     expect(accepted).toBeGreaterThanOrEqual(20)
     expect(accepted).toBeLessThanOrEqual(21)
     expect(formula(watcher.doc)).toBe('Eg*2' + 'abcdefghijklmnopqrstuvwxyzabcdefghijklmn'.slice(0, accepted))
-    expect(storedRows(t.lab)).toBe(accepted)
-    expect(formula(loadDocument(t.lab.handle.db, t.lab.sheetId))).toBe(formula(watcher.doc))
+    expect(await storedRows(t.lab)).toBe(accepted)
+    expect(formula(await loadDocument(t.lab.handle.db, t.lab.sheetId))).toBe(formula(watcher.doc))
     expect(watcher.closes).toEqual([])
   })
 })
@@ -320,11 +320,11 @@ describe('collab: deeply nested values in a writer’s update', () => {
     const closed = await editor.closed
     expect(closed.code).toBe(CLOSE.malformed)
     expect(closed.reason).toMatch(/nested more than 64 levels/)
-    expect(storedRows(t.lab)).toBe(0)
+    expect(await storedRows(t.lab)).toBe(0)
     // The document still encodes: an edit is stored, compacted when idle, and a newcomer syncs it.
     ;(cellsOf(watcher.doc).get(2).get('source') as Y.Text).insert(0, '2*')
-    await until(() => storedRows(t.lab) === 1, 'the edit stored')
-    await until(() => storedRows(t.lab) === 0, 'the idle compaction')
+    await until(async () => await storedRows(t.lab) === 1, 'the edit stored')
+    await until(async () => await storedRows(t.lab) === 0, 'the idle compaction')
     const late = t.connect('viewer')
     await late.synced()
     expect(formula(late.doc)).toBe('2*Eg*2')
@@ -334,7 +334,7 @@ describe('collab: deeply nested values in a writer’s update', () => {
   it('accepts a spectrum cell’s columns (a few levels of objects over long arrays)', async () => {
     const watcher = t.connect('editor2')
     await watcher.synced()
-    const local = loadDocument(t.lab.handle.db, t.lab.sheetId)
+    const local = await loadDocument(t.lab.handle.db, t.lab.sheetId)
     const before = Y.encodeStateVector(local)
     const cell = new Y.Map<unknown>()
     cell.set('id', 'cs')
@@ -368,7 +368,7 @@ describe('collab: a failing fan-out to other instances', () => {
     busDown = true
     viewer.ws.send(awarenessFrame([{ clientId: 4100, clock: 1, state: { cell: 'cx' } }]))
     ;(cellsOf(editor.doc).get(2).get('source') as Y.Text).insert(0, '2*')
-    await until(() => storedRows(t.lab) === 1, 'the edit to be stored')
+    await until(async () => await storedRows(t.lab) === 1, 'the edit to be stored')
     await until(() => (cellsOf(watcher.doc).get(2).get('source') as Y.Text).toString().startsWith('2*'), 'the edit at the other editor')
     const stats = t.server.collab.stats()
     expect(stats.counters.busFailures).toBeGreaterThanOrEqual(2)
@@ -401,7 +401,7 @@ describe('collab: a failure while handling one message', () => {
     expect(t.server.collab.stats().counters.unexpectedFailures).toBe(1)
     expect(t.server.collab.stats().connections).toBe(1)
     ;(cellsOf(editor.doc).get(2).get('source') as Y.Text).insert(0, '2*')
-    await until(() => storedRows(t.lab) === 1, 'the editor to go on')
+    await until(async () => await storedRows(t.lab) === 1, 'the editor to go on')
     expect(editor.closes).toEqual([])
   })
 })

@@ -2,7 +2,7 @@
 import { describe, expect, it } from 'vitest'
 import { eq } from 'drizzle-orm'
 import { call, cookieFrom, createTestUser, makeTestApp, sessionCookie, signIn, signUp } from '../utils/server'
-import { passwordResets, pendingSignups, users } from '../../server/db/schema'
+import { passwordResets, pendingSignups, users } from '../../server/db/tables'
 import { SESSION_COOKIE } from '../../server/services/sessions'
 
 /** Waits until the clock has moved to the next whole second (session tokens carry their issue time in seconds). */
@@ -12,11 +12,11 @@ async function nextSecond(): Promise<void> {
 
 describe('POST /api/auth/sign-up', () => {
   it('mails a confirmation link and creates the account only when it is opened', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const res = await call(t).post('/api/auth/sign-up', { email: ' Ada@Example.ORG ', name: 'Ada Quell', password: 'ten chars!!' })
     expect(res.status).toBe(201)
     expect(res.headers['set-cookie']).toBeUndefined()
-    expect(t.db.select().from(users).all()).toHaveLength(0)
+    expect(await t.db.select().from(users)).toHaveLength(0)
     const mail = t.mailer.to('ada@example.org')[0]
     expect(mail.subject).toBe('Confirm your Penumbra account')
     expect(mail.text).toContain('http://penumbra.test/confirm/')
@@ -32,7 +32,7 @@ describe('POST /api/auth/sign-up', () => {
   })
 
   it('says in its reply that the mailed link comes first; sign-in works once it is opened, and keeps working', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const body = { email: 'ines@okafor-lab.example', name: 'Ines Okafor', password: 'absorber film B' }
     const res = await call(t).post('/api/auth/sign-up', body)
     expect(res.status).toBe(201)
@@ -53,7 +53,7 @@ describe('POST /api/auth/sign-up', () => {
   })
 
   it('gives the same answer for an address that already has an account, and mails its owner instead', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const fresh = await call(t).post('/api/auth/sign-up', { email: 'new@example.org', name: 'A', password: 'long enough one' })
     await createTestUser(t, { email: 'taken@example.org', name: 'Taken' })
     const taken = await call(t).post('/api/auth/sign-up', { email: 'taken@example.org', name: 'B', password: 'long enough one' })
@@ -61,11 +61,11 @@ describe('POST /api/auth/sign-up', () => {
     expect(Object.keys(taken.body)).toEqual(Object.keys(fresh.body))
     expect(taken.body.message.replace('taken@example.org', 'X')).toBe(fresh.body.message.replace('new@example.org', 'X'))
     expect(t.mailer.to('taken@example.org')[0].subject).toBe('You already have a Penumbra account')
-    expect(t.db.select().from(pendingSignups).all().map((p) => p.email)).toEqual(['new@example.org'])
+    expect((await t.db.select().from(pendingSignups)).map((p) => p.email)).toEqual(['new@example.org'])
   })
 
   it('answers 400 naming each field for a short password and a bad address', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const res = await call(t).post('/api/auth/sign-up', { email: 'not-an-address', name: '', password: 'ninechars' })
     expect(res.status).toBe(400)
     expect(res.body.issues).toEqual([
@@ -77,16 +77,16 @@ describe('POST /api/auth/sign-up', () => {
   })
 
   it('POST /api/auth/confirm answers 410 for an expired link and 404 for an unknown one', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     await call(t).post('/api/auth/sign-up', { email: 'late@example.org', name: 'Late', password: 'long enough one' })
     const token = t.mailer.tokenFor('late@example.org', '/confirm/')
-    t.db.update(pendingSignups).set({ expiresAt: Date.now() - 1 }).run()
+    await t.db.update(pendingSignups).set({ expiresAt: Date.now() - 1 })
     expect((await call(t).post('/api/auth/confirm', { token, password: 'whatever it was' })).status).toBe(410)
     expect((await call(t).post('/api/auth/confirm', { token: 'x'.repeat(43), password: 'whatever it was' })).status).toBe(404)
   })
 
   it('POST /api/auth/confirm needs the password chosen at sign-up: a stranger\'s sign-up cannot be finished by the address\'s owner clicking the link', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     // someone signs up with another person's address and a password of their own choosing
     await call(t).post('/api/auth/sign-up', { email: 'victim@example.org', name: 'Not Me', password: 'attacker chosen pw' })
     const token = t.mailer.tokenFor('victim@example.org', '/confirm/')
@@ -95,7 +95,7 @@ describe('POST /api/auth/sign-up', () => {
     expect(clicked.status).toBe(403)
     expect(clicked.body.error).toMatch(/not the password chosen when signing up/)
     expect(clicked.headers['set-cookie']).toBeUndefined()
-    expect(t.db.select().from(users).all()).toHaveLength(0)
+    expect(await t.db.select().from(users)).toHaveLength(0)
     expect((await call(t).post('/api/auth/confirm', { token })).status).toBe(400)
     // a wrong password does not spend the link: the person who did sign up can still finish
     const right = await call(t).post('/api/auth/confirm', { token, password: 'attacker chosen pw' })
@@ -103,9 +103,9 @@ describe('POST /api/auth/sign-up', () => {
   })
 
   it('stores an argon2id hash, never the password', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     await signUp(t, { email: 'hash@example.org', name: 'H', password: 'my secret passphrase' })
-    const row = t.db.select().from(users).where(eq(users.email, 'hash@example.org')).get()!
+    const [row] = await t.db.select().from(users).where(eq(users.email, 'hash@example.org'))
     expect(row.passwordHash.startsWith('$argon2id$')).toBe(true)
     expect(row.passwordHash).not.toContain('my secret passphrase')
   })
@@ -113,7 +113,7 @@ describe('POST /api/auth/sign-up', () => {
 
 describe('POST /api/auth/sign-in', () => {
   it('sets an httpOnly, SameSite=Lax session cookie with an expiry', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const u = await createTestUser(t, { email: 'mira@lab.example' })
     const res = await call(t).post('/api/auth/sign-in', { email: 'MIRA@lab.example', password: u.password })
     expect(res.status).toBe(200)
@@ -127,7 +127,7 @@ describe('POST /api/auth/sign-in', () => {
   })
 
   it('answers the same 401 for a wrong password and an unknown address', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const u = await createTestUser(t)
     const wrong = await call(t).post('/api/auth/sign-in', { email: u.email, password: 'not the password' })
     const unknown = await call(t).post('/api/auth/sign-in', { email: 'nobody@lab.example', password: 'not the password' })
@@ -140,7 +140,7 @@ describe('POST /api/auth/sign-in', () => {
 
 describe('session tokens on GET /api/auth/me', () => {
   it('answers 200 { user: null } to a visitor without a session cookie, and 401 on routes that need a session', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const res = await call(t).get('/api/auth/me')
     expect(res.status).toBe(200)
     expect(res.body).toEqual({ user: null })
@@ -149,7 +149,7 @@ describe('session tokens on GET /api/auth/me', () => {
   })
 
   it('answers 401 for an expired token', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const u = await createTestUser(t)
     const res = await call(t, await sessionCookie(t, u.id, { ttlSeconds: -5 })).get('/api/auth/me')
     expect(res.status).toBe(401)
@@ -157,7 +157,7 @@ describe('session tokens on GET /api/auth/me', () => {
   })
 
   it('answers 401 for a tampered token (payload changed, signature kept)', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const u = await createTestUser(t)
     const other = await createTestUser(t)
     const [name, token] = u.cookie.split('=')
@@ -169,7 +169,7 @@ describe('session tokens on GET /api/auth/me', () => {
   })
 
   it('answers 401 for an unsigned token (alg "none") and for one from another issuer', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const u = await createTestUser(t)
     const b64 = (o: object) => Buffer.from(JSON.stringify(o)).toString('base64url')
     const claims = { sub: u.id, jti: 'j', iss: 'penumbra', iat: Math.floor(Date.now() / 1000), exp: Math.floor(Date.now() / 1000) + 3600 }
@@ -181,30 +181,30 @@ describe('session tokens on GET /api/auth/me', () => {
   })
 
   it('answers 401 for a token signed with another secret', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const u = await createTestUser(t)
     const cookie = await sessionCookie(t, u.id, { secret: new TextEncoder().encode('some-other-secret-of-forty-characters!!') })
     expect((await call(t, cookie).get('/api/auth/me')).status).toBe(401)
   })
 
   it('answers 401 for garbage in the cookie', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const res = await call(t, `${SESSION_COOKIE}=not-a-token`).get('/api/auth/me')
     expect(res.status).toBe(401)
     expect(res.body.error).toBe('Your session is not valid. Sign in again.')
   })
 
   it('answers 401 for the token of a deleted user', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const u = await createTestUser(t)
-    t.db.delete(users).where(eq(users.id, u.id)).run()
+    await t.db.delete(users).where(eq(users.id, u.id))
     const res = await call(t, u.cookie).get('/api/auth/me')
     expect(res.status).toBe(401)
     expect(res.body.error).toBe('Your account no longer exists.')
   })
 
   it('answers 401 for a session after POST /api/auth/sign-out revoked it', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const u = await createTestUser(t)
     const cookie = await signIn(t, u.email, u.password)
     expect((await call(t, cookie).get('/api/auth/me')).status).toBe(200)
@@ -221,7 +221,7 @@ describe('session tokens on GET /api/auth/me', () => {
 
 describe('password reset', () => {
   it('POST /api/auth/reset-request answers 202 with the same message whether or not the address has an account', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const u = await createTestUser(t, { email: 'known@lab.example' })
     const known = await call(t).post('/api/auth/reset-request', { email: u.email })
     const unknown = await call(t).post('/api/auth/reset-request', { email: 'unknown@lab.example' })
@@ -232,7 +232,7 @@ describe('password reset', () => {
   })
 
   it('POST /api/auth/reset sets the new password once, and ends older sessions', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const u = await createTestUser(t)
     const oldCookie = await signIn(t, u.email, u.password)
     await call(t).post('/api/auth/reset-request', { email: u.email })
@@ -252,12 +252,12 @@ describe('password reset', () => {
   })
 
   it('POST /api/auth/reset answers 410 for an expired link, 404 for an unknown one, 400 for a short password', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const u = await createTestUser(t)
     await call(t).post('/api/auth/reset-request', { email: u.email })
     const token = t.mailer.tokenFor(u.email, '/reset/')
     expect((await call(t).post('/api/auth/reset', { token, password: 'short' })).body.issues).toEqual([{ path: 'password', message: 'must be at least 10 characters' }])
-    t.db.update(passwordResets).set({ expiresAt: Date.now() - 1 }).run()
+    await t.db.update(passwordResets).set({ expiresAt: Date.now() - 1 })
     const expired = await call(t).post('/api/auth/reset', { token, password: 'the new password' })
     expect(expired.status).toBe(410)
     expect(expired.body.error).toMatch(/expired/)
@@ -265,7 +265,7 @@ describe('password reset', () => {
   })
 
   it('using one reset link spends the other open links of that user', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const u = await createTestUser(t)
     await call(t).post('/api/auth/reset-request', { email: u.email })
     const first = t.mailer.tokenFor(u.email, '/reset/')
@@ -279,14 +279,14 @@ describe('password reset', () => {
 
 describe('profile', () => {
   it('PATCH /api/auth/me renames the user', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const u = await createTestUser(t)
     const res = await call(t, u.cookie).patch('/api/auth/me', { name: '  Mira H.  ' })
     expect(res.body.user.name).toBe('Mira H.')
   })
 
   it('POST /api/auth/password answers 403 for a wrong current password and keeps the caller signed in on success', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const u = await createTestUser(t)
     const wrong = await call(t, u.cookie).post('/api/auth/password', { currentPassword: 'nope', newPassword: 'a new long password' })
     expect(wrong.status).toBe(403)
@@ -301,17 +301,17 @@ describe('profile', () => {
 describe('pruneExpired', () => {
   it('pruneExpired(db) drops revoked sessions past expiry and links a day past theirs, and keeps the rest', async () => {
     const { pruneExpired } = await import('../../server/services/housekeeping')
-    const { sessionsRevoked } = await import('../../server/db/schema')
-    const t = makeTestApp()
+    const { sessionsRevoked } = await import('../../server/db/tables')
+    const t = await makeTestApp()
     const u = await createTestUser(t)
     const now = Date.now()
-    t.db.insert(sessionsRevoked).values([{ jti: 'old', expiresAt: Math.floor(now / 1000) - 10 }, { jti: 'live', expiresAt: Math.floor(now / 1000) + 3600 }]).run()
-    t.db.insert(passwordResets).values([
+    await t.db.insert(sessionsRevoked).values([{ jti: 'old', expiresAt: Math.floor(now / 1000) - 10 }, { jti: 'live', expiresAt: Math.floor(now / 1000) + 3600 }])
+    await t.db.insert(passwordResets).values([
       { id: 'a', userId: u.id, tokenHash: 'ha', createdAt: now, expiresAt: now - 2 * 24 * 3600 * 1000 },
       { id: 'b', userId: u.id, tokenHash: 'hb', createdAt: now, expiresAt: now - 1000 },
-    ]).run()
-    expect(pruneExpired(t.db, now)).toEqual({ sessions: 1, signups: 0, resets: 1 })
-    expect(t.db.select().from(sessionsRevoked).all().map((r) => r.jti)).toEqual(['live'])
-    expect(t.db.select().from(passwordResets).all().map((r) => r.id)).toEqual(['b'])
+    ])
+    expect(await pruneExpired(t.db, now)).toEqual({ sessions: 1, signups: 0, resets: 1 })
+    expect((await t.db.select().from(sessionsRevoked)).map((r) => r.jti)).toEqual(['live'])
+    expect((await t.db.select().from(passwordResets)).map((r) => r.id)).toEqual(['b'])
   })
 })

@@ -16,7 +16,7 @@ let lab: SeededLab
 const routes: AppRoute[] = []
 
 beforeAll(async () => {
-  t = makeTestApp({ config: { maxBodyBytes: MAX_BODY } })
+  t = await makeTestApp({ config: { maxBodyBytes: MAX_BODY } })
   lab = await seedLab(t)
   routes.push(...appRoutes(t.app))
 })

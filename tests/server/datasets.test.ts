@@ -3,7 +3,7 @@
 import { afterEach, beforeEach, describe, expect, it } from 'vitest'
 import { count } from 'drizzle-orm'
 import { call, makeTestApp, seedLab, type SeededLab, type TestApp } from '../utils/server'
-import { datasets } from '../../server/db/schema'
+import { datasets } from '../../server/db/tables'
 import { loadSheetFile } from '../../server/services/documents'
 import { clearDatasetCache } from '../../server/services/datasets'
 
@@ -13,12 +13,12 @@ let t: TestApp
 let lab: SeededLab
 
 beforeEach(async () => {
-  t = makeTestApp()
+  t = await makeTestApp()
   lab = await seedLab(t)
 })
 afterEach(() => t.close())
 
-const storedCount = () => t.db.select({ n: count() }).from(datasets).get()!.n
+const storedCount = async () => (await t.db.select({ n: count() }).from(datasets))[0].n
 const post = (path: string, text: string, options?: object, name = 'film B.csv') => {
   const r = call(t, lab.users.editor.cookie).post(path).attach('file', Buffer.from(text), name)
   return options ? r.field('options', JSON.stringify(options)) : r
@@ -34,7 +34,7 @@ describe('POST /api/sheets/:sheetId/datasets/preview', () => {
     expect(res.body.rows[0]).toEqual([420, 81, 10])
     expect(res.body.warnings.join(' ')).toMatch(/not in order; the rows were sorted/)
     expect(res.body.name).toBe('film_B')
-    expect(storedCount()).toBe(0)
+    expect(await storedCount()).toBe(0)
   })
 
   it('reports a mapping problem with the option that would get past it', async () => {
@@ -69,7 +69,7 @@ describe('POST /api/sheets/:sheetId/datasets', () => {
     expect(res.status).toBe(400)
     expect(res.body.error).toBe('Line 4, column 2: "x" is not a number (column T). The numbers start on line 2; text is allowed only above them.')
     expect(res.body.issues).toEqual([{ path: 'line 4, column 2', message: '"x" is not a number (column T)' }])
-    expect(storedCount()).toBe(0)
+    expect(await storedCount()).toBe(0)
   })
 
   it('answers 400 with the offer for empty cells, and 201 once the rows may be dropped', async () => {
@@ -99,7 +99,7 @@ describe('POST /api/sheets/:sheetId/datasets', () => {
   })
 
   it('answers 413 with the limit in words for a file over the size limit', async () => {
-    const small = makeTestApp({ config: { maxBodyBytes: 64 * 1024 } })
+    const small = await makeTestApp({ config: { maxBodyBytes: 64 * 1024 } })
     try {
       const l = await seedLab(small)
       const big = `nm,T\n${Array.from({ length: 8000 }, (_, i) => `${400 + i * 0.01},${i % 100}`).join('\n')}\n`
@@ -107,7 +107,7 @@ describe('POST /api/sheets/:sheetId/datasets', () => {
       expect(res.status).toBe(413)
       expect(res.body.error).toBe('The uploaded file is larger than 64 KB, the most this server accepts.')
     } finally {
-      small.close()
+      await small.close()
     }
   })
 })
@@ -137,8 +137,8 @@ describe('sheet files with inline spectra', () => {
   it('POST /api/labs/:labId/sheets stores the columns as a dataset; the document keeps only metadata and the id', async () => {
     const res = await call(t, lab.users.editor.cookie).post(`/api/labs/${lab.labId}/sheets`, SHEET_WITH_SPECTRUM)
     expect(res.status).toBe(201)
-    expect(storedCount()).toBe(1)
-    const cell = loadSheetFile(t.db, res.body.id).cells[0] as { datasetId?: string; columns: Record<string, { values?: unknown; count?: number; min?: number; max?: number }> }
+    expect(await storedCount()).toBe(1)
+    const cell = (await loadSheetFile(t.db, res.body.id)).cells[0] as { datasetId?: string; columns: Record<string, { values?: unknown; count?: number; min?: number; max?: number }> }
     expect(cell.datasetId).toMatch(/^ds_/)
     expect(cell.columns.T).toEqual({ unit: '%', quantity: 'T', count: 3, min: 80, max: 81 })
     expect(cell.columns.wavelength.values).toBeUndefined()
@@ -156,7 +156,7 @@ describe('sheet files with inline spectra', () => {
 
   it('GET /api/sheets/:sheetId/cells/:cellId/csv writes a spectrum\'s columns and a formula on its grid, units in the header', async () => {
     const created = await call(t, lab.users.editor.cookie).post(`/api/labs/${lab.labId}/sheets`, SHEET_WITH_SPECTRUM)
-    const cells = loadSheetFile(t.db, created.body.id).cells
+    const cells = (await loadSheetFile(t.db, created.body.id)).cells
     const spectrum = await call(t, lab.users.viewer.cookie).get(`/api/sheets/${created.body.id}/cells/${cells[0].id}/csv`)
     expect(spectrum.status).toBe(200)
     expect(spectrum.headers['content-type']).toMatch(/^text\/csv/)

@@ -1,4 +1,5 @@
 import { describe, it, expect, afterEach } from 'vitest'
+import { ON_POSTGRES, sqliteOnly } from '../utils/db'
 import { mkdtempSync, rmSync, statSync } from 'node:fs'
 import os from 'node:os'
 import path from 'node:path'
@@ -7,7 +8,7 @@ import { startCheckpoints } from '../../server/db/checkpoints'
 import { createSqliteStore } from '../../server/collab/store'
 
 // SQLite's `synchronous` pragma: 1 = NORMAL, 2 = FULL (sqlite.org/pragma.html#pragma_synchronous).
-describe('openDb(file, options)', () => {
+describe.skipIf(ON_POSTGRES)(sqliteOnly('openDb(file, options)'), () => {
   const dirs: string[] = []
   const file = () => {
     const dir = mkdtempSync(path.join(os.tmpdir(), 'penumbra-db-'))

@@ -7,7 +7,7 @@ import { execFileSync } from 'node:child_process'
 import { readdirSync, readFileSync } from 'node:fs'
 import path from 'node:path'
 import request from 'supertest'
-import { call, makeTestApp, seedLab, type SeededLab } from '../utils/server'
+import { call, makeTestApp, seedLab, type SeededLab, type TestApp } from '../utils/server'
 import { SheetEvaluator } from '../../server/services/evaluation'
 
 const ROOT = path.resolve(__dirname, '../..')
@@ -20,22 +20,24 @@ function slowSheet(cells = 60): string {
   return JSON.stringify({ format: 'penumbra.sheet', version: 1, title: 'A slow sheet', cells: list })
 }
 
-function post(t: ReturnType<typeof makeTestApp>, cookie: string, body: string, type = 'application/json') {
+function post(t: TestApp, cookie: string, body: string, type = 'application/json') {
   return request(t.app).post('/api/evaluate').set('Cookie', cookie).set('Content-Type', type).send(body)
 }
 
 describe('POST /api/evaluate', () => {
-  const t = makeTestApp({ config: { evaluate: { maxBytes: 64 * 1024, maxResultBytes: 256 * 1024, budgetMs: 600 } } })
-  const roomy = makeTestApp()
+  let t: TestApp
+  let roomy: TestApp
   let lab: SeededLab
   let roomyLab: SeededLab
   beforeAll(async () => {
+    t = await makeTestApp({ config: { evaluate: { maxBytes: 64 * 1024, maxResultBytes: 256 * 1024, budgetMs: 600 } } })
+    roomy = await makeTestApp()
     lab = await seedLab(t)
     roomyLab = await seedLab(roomy)
   })
-  afterAll(() => {
-    t.close()
-    roomy.close()
+  afterAll(async () => {
+    await t.close()
+    await roomy.close()
   })
 
   it.each(readdirSync(EXAMPLES).filter((f) => f.endsWith('.penumbra.json')))('answers exactly what the command-line evaluator prints for examples/%s', async (name) => {

@@ -20,7 +20,7 @@ describe('GET /dev/mail.json from elsewhere', () => {
   const remote = '203.0.113.7'
 
   it('answers 403 to a request from another machine that is not signed in (JSON and the page)', async () => {
-    const t = makeTestApp({ config: { trustProxy: 1 } })
+    const t = await makeTestApp({ config: { trustProxy: 1 } })
     await createTestUser(t, { email: 'someone@lab.example' })
     for (const path of ['/dev/mail.json', '/dev/mail']) {
       const res = await request(t.app).get(path).set('X-Forwarded-For', remote)
@@ -30,7 +30,7 @@ describe('GET /dev/mail.json from elsewhere', () => {
   })
 
   it('shows a signed-in person from another machine only the mail sent to their own address', async () => {
-    const t = makeTestApp({ config: { trustProxy: 1 } })
+    const t = await makeTestApp({ config: { trustProxy: 1 } })
     const a = await createTestUser(t, { email: 'ana@lab.example' })
     await createTestUser(t, { email: 'bo@lab.example' })
     await call(t).post('/api/auth/reset-request', { email: 'ana@lab.example' })
@@ -45,7 +45,7 @@ describe('GET /dev/mail.json from elsewhere', () => {
   })
 
   it('answers a request from this machine in full', async () => {
-    const t = makeTestApp({ config: { trustProxy: 1 } })
+    const t = await makeTestApp({ config: { trustProxy: 1 } })
     const res = await request(t.app).get('/dev/mail.json').set('X-Forwarded-For', '127.0.0.1')
     expect(res.status).toBe(200)
   })

@@ -1,11 +1,11 @@
 /** Labs, members and invitations over the API: roles, the last owner, mailed invitations and their edge cases. */
 import { describe, expect, it } from 'vitest'
 import { call, cookieFrom, createTestUser, makeTestApp, seedLab } from '../utils/server'
-import { invitations } from '../../server/db/schema'
+import { invitations } from '../../server/db/tables'
 
 describe('POST /api/labs', () => {
   it('creates a lab whose creator is its owner, listed by GET /api/labs', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const u = await createTestUser(t)
     const res = await call(t, u.cookie).post('/api/labs', { name: '  Optics Group  ' })
     expect(res.status).toBe(201)
@@ -17,7 +17,7 @@ describe('POST /api/labs', () => {
   })
 
   it('answers 400 saying what is wrong with a name of the wrong type', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const u = await createTestUser(t)
     const res = await call(t, u.cookie).post('/api/labs', { name: 42 })
     expect(res.status).toBe(400)
@@ -25,7 +25,7 @@ describe('POST /api/labs', () => {
   })
 
   it('answers 400 with the field for an empty name', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const u = await createTestUser(t)
     const res = await call(t, u.cookie).post('/api/labs', { name: '   ' })
     expect(res.status).toBe(400)
@@ -35,7 +35,7 @@ describe('POST /api/labs', () => {
 
 describe('GET /api/labs/:labId/members', () => {
   it('lists members owners first, with the caller role in GET /api/labs/:labId', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const res = await call(t, lab.users.viewer.cookie).get(`/api/labs/${lab.labId}/members`)
     expect(res.body.members.map((m: { role: string }) => m.role)).toEqual(['owner', 'editor', 'reviewer', 'viewer', 'viewer'])
@@ -45,7 +45,7 @@ describe('GET /api/labs/:labId/members', () => {
 
 describe('PATCH /api/labs/:labId/members/:userId', () => {
   it('changes a role, which takes effect on the next request, and tells the live layer', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     expect((await call(t, lab.users.viewer.cookie).post(`/api/labs/${lab.labId}/sheets`, { title: 'x' })).status).toBe(403)
     const res = await call(t, lab.users.owner.cookie).patch(`/api/labs/${lab.labId}/members/${lab.users.viewer.id}`, { role: 'editor' })
@@ -56,7 +56,7 @@ describe('PATCH /api/labs/:labId/members/:userId', () => {
   })
 
   it('answers 409 when demoting the only owner, and allows it once there is a second owner', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const owner = lab.users.owner
     const demote = await call(t, owner.cookie).patch(`/api/labs/${lab.labId}/members/${owner.id}`, { role: 'editor' })
@@ -69,7 +69,7 @@ describe('PATCH /api/labs/:labId/members/:userId', () => {
   })
 
   it('answers 404 for someone who is not a member and 400 for an unknown role', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     expect((await call(t, lab.users.owner.cookie).patch(`/api/labs/${lab.labId}/members/${lab.users.outsider.id}`, { role: 'editor' })).status).toBe(404)
     const bad = await call(t, lab.users.owner.cookie).patch(`/api/labs/${lab.labId}/members/${lab.users.viewer.id}`, { role: 'admin' })
@@ -80,7 +80,7 @@ describe('PATCH /api/labs/:labId/members/:userId', () => {
 
 describe('DELETE /api/labs/:labId/members/:userId', () => {
   it('removes a member, who then gets 404 for the lab, and tells the live layer', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     expect((await call(t, lab.users.owner.cookie).del(`/api/labs/${lab.labId}/members/${lab.users.editor.id}`)).status).toBe(204)
     expect(t.hookCalls).toEqual([{ hook: 'membershipChanged', args: [lab.labId, lab.users.editor.id] }])
@@ -89,7 +89,7 @@ describe('DELETE /api/labs/:labId/members/:userId', () => {
   })
 
   it('lets the only owner leave only after naming another owner', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const owner = lab.users.owner
     expect((await call(t, owner.cookie).del(`/api/labs/${lab.labId}/members/${owner.id}`)).status).toBe(409)
@@ -101,7 +101,7 @@ describe('DELETE /api/labs/:labId/members/:userId', () => {
 
 describe('invitations', () => {
   it('POST /api/labs/:labId/invitations mails an accept link with the lab, the role and the expiry', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t, 'Halvorsen Thin-Film Lab')
     const res = await call(t, lab.users.owner.cookie).post(`/api/labs/${lab.labId}/invitations`, { email: 'Postdoc@Elsewhere.example', role: 'editor' })
     expect(res.status).toBe(201)
@@ -117,7 +117,7 @@ describe('invitations', () => {
   })
 
   it('a new person accepts with a name and password, is signed in, and has the role', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     await call(t, lab.users.owner.cookie).post(`/api/labs/${lab.labId}/invitations`, { email: 'new@elsewhere.example', role: 'reviewer' })
     const token = t.mailer.tokenFor('new@elsewhere.example', '/invitations/')
@@ -136,7 +136,7 @@ describe('invitations', () => {
   })
 
   it('an existing account accepts while signed in; without signing in it answers 409', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const guest = lab.users.outsider
     await call(t, lab.users.owner.cookie).post(`/api/labs/${lab.labId}/invitations`, { email: guest.email, role: 'viewer' })
@@ -151,7 +151,7 @@ describe('invitations', () => {
   })
 
   it('accepting with an account of another address answers 403 asking to sign in with the invited one; no role is given', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     await call(t, lab.users.owner.cookie).post(`/api/labs/${lab.labId}/invitations`, { email: 'Invited@Elsewhere.example', role: 'editor' })
     const token = t.mailer.tokenFor('invited@elsewhere.example', '/invitations/')
@@ -169,7 +169,7 @@ describe('invitations', () => {
   })
 
   it('a link works once: the second accept answers 410', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const invited = await createTestUser(t, { email: 'once@elsewhere.example' })
     await call(t, lab.users.owner.cookie).post(`/api/labs/${lab.labId}/invitations`, { email: 'once@elsewhere.example', role: 'viewer' })
@@ -183,11 +183,11 @@ describe('invitations', () => {
   })
 
   it('an expired link answers 410 and grants nothing', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     await call(t, lab.users.owner.cookie).post(`/api/labs/${lab.labId}/invitations`, { email: 'late@elsewhere.example', role: 'editor' })
     const token = t.mailer.tokenFor('late@elsewhere.example', '/invitations/')
-    t.db.update(invitations).set({ expiresAt: Date.now() - 1 }).run()
+    await t.db.update(invitations).set({ expiresAt: Date.now() - 1 })
     const res = await call(t, lab.users.outsider.cookie).post(`/api/invitations/${token}/accept`, {})
     expect(res.status).toBe(410)
     expect(res.body.error).toMatch(/expired/)
@@ -196,7 +196,7 @@ describe('invitations', () => {
   })
 
   it('a withdrawn or replaced invitation answers 404', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const owner = lab.users.owner.cookie
     const first = await call(t, owner).post(`/api/labs/${lab.labId}/invitations`, { email: 'twice@elsewhere.example', role: 'viewer' })
@@ -212,7 +212,7 @@ describe('invitations', () => {
   })
 
   it('POST /api/labs/:labId/invitations answers alike for an address with an account and one without, and mails the same words', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const owner = lab.users.owner.cookie
     const known = await call(t, owner).post(`/api/labs/${lab.labId}/invitations`, { email: lab.users.outsider.email, role: 'viewer' })
@@ -224,7 +224,7 @@ describe('invitations', () => {
   })
 
   it('inviting a current member answers 409', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const res = await call(t, lab.users.owner.cookie).post(`/api/labs/${lab.labId}/invitations`, { email: lab.users.editor.email, role: 'viewer' })
     expect(res.status).toBe(409)

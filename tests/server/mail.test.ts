@@ -3,8 +3,8 @@ import { afterEach, describe, expect, it } from 'vitest'
 import request from 'supertest'
 import { createApp } from '../../server/app'
 import { defaultConfig } from '../../server/config'
-import { openDb } from '../../server/db/client'
-import { mails } from '../../server/db/schema'
+import { openTestDb } from '../utils/db'
+import { mails } from '../../server/db/tables'
 import { createDevMailer, type Mailer } from '../../server/mail/mailer'
 import { decodeEncodedWords, decodeQuotedPrintable, linksIn } from '../../server/mail/mime'
 import { call, createTestUser, makeTestApp, seedLab, TEST_ARGON2 } from '../utils/server'
@@ -15,9 +15,9 @@ afterEach(async () => {
   await Promise.all(open.splice(0).map((m) => m.close()))
 })
 
-async function waitFor<T>(get: () => T | undefined, what: string): Promise<T> {
+async function waitFor<T>(get: () => T | undefined | Promise<T | undefined>, what: string): Promise<T> {
   for (let i = 0; i < 200; i++) {
-    const v = get()
+    const v = await get()
     if (v !== undefined) return v
     await new Promise((r) => setTimeout(r, 10))
   }
@@ -61,7 +61,7 @@ describe('mime helpers', () => {
 
 describe('GET /dev/mail and /dev/mail.json', () => {
   it('list an invitation that went through real SMTP, with its accept link, which works', async () => {
-    const handle = openDb(':memory:')
+    const handle = await openTestDb()
     const mailer = await createDevMailer('Penumbra <no-reply@penumbra.localhost>')
     open.push(mailer)
     const config = defaultConfig({ publicUrl: 'http://penumbra.test', argon2: TEST_ARGON2 })
@@ -87,18 +87,18 @@ describe('GET /dev/mail and /dev/mail.json', () => {
     expect(accepted.status).toBe(200)
     expect(accepted.body.role).toBe('editor')
     // the log records the send
-    await waitFor(() => handle.db.select().from(mails).all().find((r) => r.sentAt != null), 'sentAt to be recorded')
-    handle.close()
+    await waitFor(async () => (await handle.db.select().from(mails)).find((r) => r.sentAt != null), 'sentAt to be recorded')
+    await handle.close()
   }, 20000)
 })
 
 describe('the outgoing mail log', () => {
   it('records every mail, and a transport failure without failing the request', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const u = await createTestUser(t)
     t.mailer.failWith = 'connection refused'
     expect((await call(t).post('/api/auth/reset-request', { email: u.email })).status).toBe(202)
-    const row = await waitFor(() => t.db.select().from(mails).all().find((r) => r.error != null), 'the error to be recorded')
+    const row = await waitFor(async () => (await t.db.select().from(mails)).find((r) => r.error != null), 'the error to be recorded')
     expect(row).toMatchObject({ to: u.email, kind: 'password-reset', subject: 'Choose a new Penumbra password', error: 'connection refused', sentAt: null })
     expect(row.text).toContain('/reset/')
     expect(row.html).toContain('<!doctype html>')

@@ -11,12 +11,16 @@ import path from 'node:path'
 import WebSocket from 'ws'
 import { DEMO_ACCOUNTS, EXAMPLES_DIR, readExamples } from '../../server/db/seed'
 import { CSRF_HEADER } from '../../shared/schema/api'
+import { emptyPgDatabase, ON_POSTGRES } from '../utils/db'
 
 const ROOT = path.resolve(__dirname, '../..')
 const dataDir = mkdtempSync(path.join(tmpdir(), 'penumbra-process-'))
 const npmDataDir = mkdtempSync(path.join(tmpdir(), 'penumbra-process-npm-'))
 const children: ChildProcess[] = []
 const exampleCount = readExamples(EXAMPLES_DIR, () => {}).length
+
+/** Under DATABASE_URL the server processes get an empty PostgreSQL database of their own, which they migrate and seed. */
+const databaseUrl = ON_POSTGRES ? await emptyPgDatabase() : null
 
 afterAll(() => {
   for (const c of children) if (c.exitCode === null && c.signalCode === null) c.kill('SIGKILL')
@@ -35,7 +39,7 @@ function start(via: 'node' | 'npm' = 'node', dir = dataDir): Promise<Started> {
   const [command, args] = via === 'node' ? [process.execPath, ['--import', 'tsx', 'server/index.ts']] : ['npm', ['run', '--silent', 'serve']]
   const child = spawn(command, args, {
     cwd: ROOT,
-    env: { ...process.env, DATA_DIR: dir, PORT: '0', NODE_ENV: 'development', PENUMBRA_SECRET: '' },
+    env: { ...process.env, DATA_DIR: dir, PORT: '0', NODE_ENV: 'development', PENUMBRA_SECRET: '', ...(databaseUrl ? { DATABASE_URL: databaseUrl } : {}) },
     stdio: ['ignore', 'pipe', 'pipe'],
   })
   children.push(child)
@@ -70,7 +74,8 @@ describe('server/index.ts as a process', () => {
     const s = await start()
     expect(s.output()).toContain(`Seeded the demo lab with ${exampleCount} sheet(s).`)
     for (const a of DEMO_ACCOUNTS) expect(s.output()).toMatch(new RegExp(`${a.role}\\s+${a.name}\\s+${a.email.replace(/\./g, '\\.')}\\s+${a.password}`))
-    expect(existsSync(path.join(dataDir, 'penumbra.sqlite'))).toBe(true)
+    // SQLite in DATA_DIR, unless DATABASE_URL names PostgreSQL
+    expect(existsSync(path.join(dataDir, 'penumbra.sqlite'))).toBe(!ON_POSTGRES)
     expect(statSync(path.join(dataDir, 'session-secret')).mode & 0o077).toBe(0)
 
     const health = await fetch(`${s.url}/api/health`)

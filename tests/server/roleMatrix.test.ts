@@ -99,25 +99,25 @@ const ROUTES: { route: string; send: Send; expect: Expect }[] = [
 ]
 
 async function context(caller: Caller): Promise<Ctx> {
-  const t = makeTestApp()
+  const t = await makeTestApp()
   const lab = await seedLab(t)
-  requestReset(t.deps, lab.users.viewer.email)
+  await requestReset(t.deps, lab.users.viewer.email)
   const resetToken = t.mailer.tokenFor(lab.users.viewer.email, '/reset/')
   await requestSignUp(t.deps, { email: 'pending@elsewhere.example', name: 'Pending Person', password: 'pending person password' })
   const confirmToken = t.mailer.tokenFor('pending@elsewhere.example', '/confirm/')
   // the outsider is invited (so accepting as them joins); anonymous accepts by creating that address's account
   const invitedEmail = caller === 'anonymous' ? 'brand-new@elsewhere.example' : caller === 'outsider' ? lab.users.outsider.email : 'member-invited@elsewhere.example'
-  const invitation = createInvitation(t.deps, labById(t.deps, lab.labId)!, lab.users.owner, invitedEmail, 'viewer')
+  const invitation = await createInvitation(t.deps, (await labById(t.deps, lab.labId))!, lab.users.owner, invitedEmail, 'viewer')
   const invitationToken = t.mailer.tokenFor(invitedEmail, '/invitations/')
-  const datasetId = storeDataset(t.db, {
+  const datasetId = await storeDataset(t.db, {
     labId: lab.labId, sheetId: lab.editorSheetId, name: 'filmB', uploadedBy: lab.users.editor.id,
     columns: [{ name: 'wavelength', quantity: 'wavelength', unit: 'nm', values: [400, 410] }, { name: 'T', quantity: 'T', unit: '%', values: [80, 81] }],
   })
-  const csvSheet = createSheet(t.deps, lab.labId, lab.users.editor.id, {
+  const csvSheet = await createSheet(t.deps, lab.labId, lab.users.editor.id, {
     format: 'penumbra.sheet', version: 1, title: 'Film B',
     cells: [{ kind: 'spectrum', name: 'filmB', columns: { wavelength: { unit: 'nm', values: [400, 410] }, T: { unit: '%', values: [80, 81] } } }],
   })
-  const csvCellId = loadSheetFile(t.db, csvSheet.id).cells[0].id
+  const csvCellId = (await loadSheetFile(t.db, csvSheet.id)).cells[0].id
   return { t, lab, caller, resetToken, confirmToken, invitationToken, invitationId: invitation.id, datasetId, csvSheetId: csvSheet.id, csvCellId }
 }
 
@@ -132,7 +132,7 @@ describe('role matrix', () => {
             expect({ status: res.status, body: res.body }).toMatchObject({ status: row.expect[i] })
             if (res.status >= 400) expect(typeof (res.body as { error?: unknown }).error).toBe('string')
           } finally {
-            c.t.close()
+            await c.t.close()
           }
         })
       })
@@ -142,11 +142,11 @@ describe('role matrix', () => {
 
 describe('GET /dev/mail.json', () => {
   it('answers 404 in production', async () => {
-    const t = makeTestApp({ config: { production: true } })
+    const t = await makeTestApp({ config: { production: true } })
     const res = await call(t).get('/dev/mail.json')
     expect(res.status).toBe(404)
     expect(res.body.error).toMatch(/nothing at/)
-    t.close()
+    await t.close()
   })
 })
 
@@ -193,17 +193,17 @@ function as(c: SnapCtx) {
 }
 
 async function snapContext(caller: GuestCaller): Promise<SnapCtx> {
-  const t = makeTestApp()
+  const t = await makeTestApp()
   const lab = await seedLab(t)
-  const sheet = createSheet(t.deps, lab.labId, lab.users.editor.id, MATRIX_SHEET as never)
-  const { sheet: row } = sheetAccess(t.db, sheet.id, lab.users.editor.id)
+  const sheet = await createSheet(t.deps, lab.labId, lab.users.editor.id, MATRIX_SHEET as never)
+  const { sheet: row } = await sheetAccess(t.db, sheet.id, lab.users.editor.id)
   const a = await freezeSnapshot(t.deps, row!, lab.users.editor.id, 'first')
   const b = await freezeSnapshot(t.deps, row!, lab.users.editor.id, 'second')
-  const review = createReview(t.deps, a, lab.users.editor.id, [lab.users.reviewer.id, lab.users.owner.id], 'please look at the edge')
-  const comment = createComment(t.deps, row!, lab.users.reviewer.id, { cellId: 'grid-E', text: 'why 13 points?', snapshotId: a.id })
-  const link = createGuestLink(t.deps, a, lab.users.owner.id, { expiresInDays: 7, note: 'for the referee' })
-  const revoked = createGuestLink(t.deps, a, lab.users.owner.id, { expiresInDays: 7, note: 'old' })
-  revokeGuestLink(t.db, guestLinkById(t.db, revoked.id)!)
+  const review = await createReview(t.deps, a, lab.users.editor.id, [lab.users.reviewer.id, lab.users.owner.id], 'please look at the edge')
+  const comment = await createComment(t.deps, row!, lab.users.reviewer.id, { cellId: 'grid-E', text: 'why 13 points?', snapshotId: a.id })
+  const link = await createGuestLink(t.deps, a, lab.users.owner.id, { expiresInDays: 7, note: 'for the referee' })
+  const revoked = await createGuestLink(t.deps, a, lab.users.owner.id, { expiresInDays: 7, note: 'old' })
+  await revokeGuestLink(t.db, (await guestLinkById(t.db, revoked.id))!)
   const tokenOf = (url: string) => decodeURIComponent(new URL(url).pathname.split('/').pop()!)
   return { t, lab, caller, sheetId: sheet.id, a: a.id, b: b.id, reviewId: review.id, commentId: comment.id, linkId: link.id, token: tokenOf(link.url), revokedToken: tokenOf(revoked.url) }
 }
@@ -255,7 +255,7 @@ describe('role matrix: snapshots, reviews, comments, guest links', () => {
             expect({ status: res.status, body: res.body }).toMatchObject({ status: row.expect[i] })
             if (res.status >= 400) expect(typeof (res.body as { error?: unknown }).error).toBe('string')
           } finally {
-            c.t.close()
+            await c.t.close()
           }
         })
       })

@@ -1,11 +1,11 @@
 /** Cross-cutting guards: the CSRF rule, helmet headers, rate limits, the error shape and the JSON 404. */
 import { describe, expect, it } from 'vitest'
 import request from 'supertest'
-import { call, createTestUser, makeTestApp, seedLab } from '../utils/server'
+import { call, createTestUser, makeTestApp, seedLab, type TestApp } from '../utils/server'
 
 describe('state-changing requests without a JSON body or the X-Penumbra-Request header', () => {
   it('POST /api/labs as a cross-site form (urlencoded) answers 403 and creates nothing', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const u = await createTestUser(t)
     const res = await request(t.app).post('/api/labs').set('Cookie', u.cookie).type('form').send('name=Evil')
     expect(res.status).toBe(403)
@@ -14,21 +14,21 @@ describe('state-changing requests without a JSON body or the X-Penumbra-Request 
   })
 
   it('DELETE /api/sheets/:sheetId without the header answers 403; with it, 204', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     expect((await request(t.app).delete(`/api/sheets/${lab.ownerSheetId}`).set('Cookie', lab.users.owner.cookie)).status).toBe(403)
     expect((await call(t, lab.users.owner.cookie).del(`/api/sheets/${lab.ownerSheetId}`)).status).toBe(204)
   })
 
   it('POST /api/auth/sign-out as a text/plain form answers 403 and keeps the session', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const u = await createTestUser(t)
     expect((await request(t.app).post('/api/auth/sign-out').set('Cookie', u.cookie).set('Content-Type', 'text/plain').send('x')).status).toBe(403)
     expect((await call(t, u.cookie).get('/api/auth/me')).status).toBe(200)
   })
 
   it('a JSON body alone is enough (no header needed)', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const u = await createTestUser(t)
     const res = await request(t.app).post('/api/labs').set('Cookie', u.cookie).set('Content-Type', 'application/json').send('{"name":"Lab"}')
     expect(res.status).toBe(201)
@@ -37,7 +37,7 @@ describe('state-changing requests without a JSON body or the X-Penumbra-Request 
 
 describe('headers', () => {
   it('GET /api/health carries helmet headers and no x-powered-by', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const res = await request(t.app).get('/api/health')
     expect(res.body).toEqual({ ok: true, version: expect.any(String) })
     expect(res.headers['x-content-type-options']).toBe('nosniff')
@@ -61,7 +61,7 @@ describe('content security policy', () => {
   }
 
   it('GET / and GET /api/health keep connect-src to the app itself, so no page can post or upload elsewhere', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     for (const path of ['/api/health', '/sign-in']) {
       const res = await request(t.app).get(path)
       const csp = directives(String(res.headers['content-security-policy'] ?? ''))
@@ -80,7 +80,7 @@ describe('content security policy', () => {
 
 describe('errors', () => {
   it('an unknown API route answers a JSON 404', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const res = await request(t.app).get('/api/nothing/here')
     expect(res.status).toBe(404)
     expect(res.body).toEqual({ error: 'There is nothing at GET /nothing/here.' })
@@ -88,7 +88,7 @@ describe('errors', () => {
   })
 
   it('an upload in the wrong form field answers 400 naming the field, and a non-UTF-8 charset 415', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const wrongField = await request(t.app)
       .post(`/api/labs/${lab.labId}/sheets`)
@@ -106,7 +106,7 @@ describe('errors', () => {
   })
 
   it('a JSON body over the limit answers 413 naming the limit, and creates nothing', async () => {
-    const t = makeTestApp({ config: { maxBodyBytes: 4096 } })
+    const t = await makeTestApp({ config: { maxBodyBytes: 4096 } })
     const u = await createTestUser(t)
     const res = await call(t, u.cookie).post('/api/labs', { name: 'x'.repeat(5000) })
     expect(res.status).toBe(413)
@@ -115,7 +115,7 @@ describe('errors', () => {
   })
 
   it('malformed JSON answers 400 with an issue at the root', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const u = await createTestUser(t)
     const res = await request(t.app).post('/api/labs').set('Cookie', u.cookie).set('Content-Type', 'application/json').send('{"name": "Optics",}')
     expect(res.status).toBe(400)
@@ -123,7 +123,7 @@ describe('errors', () => {
   })
 
   it('a JSON array body where an object is expected answers 400 with the root path', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const u = await createTestUser(t)
     const res = await call(t, u.cookie).post('/api/labs', [1, 2])
     expect(res.status).toBe(400)
@@ -135,7 +135,7 @@ describe('rate limits', () => {
   const tight = { windowMs: 60_000, limit: 3 }
 
   it('POST /api/auth/sign-in answers 429 after too many failures, even for the right password', async () => {
-    const t = makeTestApp({ config: { limits: { signIn: tight, mail: tight, token: tight } } })
+    const t = await makeTestApp({ config: { limits: { signIn: tight, mail: tight, token: tight } } })
     const u = await createTestUser(t)
     for (let i = 0; i < 3; i++) expect((await call(t).post('/api/auth/sign-in', { email: u.email, password: 'wrong password' })).status).toBe(401)
     const blocked = await call(t).post('/api/auth/sign-in', { email: u.email, password: u.password })
@@ -145,13 +145,13 @@ describe('rate limits', () => {
   })
 
   it('POST /api/auth/sign-in does not count successful sign-ins', async () => {
-    const t = makeTestApp({ config: { limits: { signIn: tight, mail: tight, token: tight } } })
+    const t = await makeTestApp({ config: { limits: { signIn: tight, mail: tight, token: tight } } })
     const u = await createTestUser(t)
     for (let i = 0; i < 6; i++) expect((await call(t).post('/api/auth/sign-in', { email: u.email, password: u.password })).status).toBe(200)
   })
 
   it('POST /api/auth/reset-request answers 429 after the limit and sends no more mail', async () => {
-    const t = makeTestApp({ config: { limits: { signIn: tight, mail: tight, token: tight } } })
+    const t = await makeTestApp({ config: { limits: { signIn: tight, mail: tight, token: tight } } })
     const u = await createTestUser(t)
     for (let i = 0; i < 3; i++) expect((await call(t).post('/api/auth/reset-request', { email: u.email })).status).toBe(202)
     expect((await call(t).post('/api/auth/reset-request', { email: u.email })).status).toBe(429)
@@ -160,14 +160,14 @@ describe('rate limits', () => {
   })
 
   it('POST /api/auth/reset answers 429 after too many wrong tokens', async () => {
-    const t = makeTestApp({ config: { limits: { signIn: tight, mail: tight, token: tight } } })
+    const t = await makeTestApp({ config: { limits: { signIn: tight, mail: tight, token: tight } } })
     for (let i = 0; i < 3; i++) expect((await call(t).post('/api/auth/reset', { token: `${'z'.repeat(42)}${i}`, password: 'the new password' })).status).toBe(404)
     expect((await call(t).post('/api/auth/reset', { token: 'z'.repeat(43), password: 'the new password' })).status).toBe(429)
   })
 })
 
 describe('the session cookie', () => {
-  async function signInCookie(t: ReturnType<typeof makeTestApp>, headers: Record<string, string> = {}): Promise<string> {
+  async function signInCookie(t: TestApp, headers: Record<string, string> = {}): Promise<string> {
     const u = await createTestUser(t)
     const res = await call(t).post('/api/auth/sign-in', { email: u.email, password: u.password }).set(headers)
     expect(res.status).toBe(200)
@@ -175,14 +175,14 @@ describe('the session cookie', () => {
   }
 
   it('POST /api/auth/sign-in sets it httpOnly and SameSite=Lax, without Secure over plain http in development', async () => {
-    const set = await signInCookie(makeTestApp())
+    const set = await signInCookie(await makeTestApp())
     expect(set).toMatch(/; HttpOnly/)
     expect(set).toMatch(/; SameSite=Lax/)
     expect(set).not.toMatch(/; Secure/)
   })
 
   it('POST /api/auth/sign-in marks it Secure when the app is public over https, with HSTS and upgrade-insecure-requests', async () => {
-    const t = makeTestApp({ config: { cookieSecure: true, production: true, publicUrl: 'https://penumbra.halvorsen-lab.example' } })
+    const t = await makeTestApp({ config: { cookieSecure: true, production: true, publicUrl: 'https://penumbra.halvorsen-lab.example' } })
     const set = await signInCookie(t)
     expect(set).toMatch(/; Secure/)
     expect(set).toMatch(/; HttpOnly/)
@@ -192,14 +192,14 @@ describe('the session cookie', () => {
   })
 
   it('POST /api/auth/sign-in marks it Secure behind a trusted TLS proxy, and not for a forwarded header nobody trusts', async () => {
-    const proxied = await signInCookie(makeTestApp({ config: { trustProxy: 1 } }), { 'X-Forwarded-Proto': 'https' })
+    const proxied = await signInCookie(await makeTestApp({ config: { trustProxy: 1 } }), { 'X-Forwarded-Proto': 'https' })
     expect(proxied).toMatch(/; Secure/)
-    const untrusted = await signInCookie(makeTestApp(), { 'X-Forwarded-Proto': 'https' })
+    const untrusted = await signInCookie(await makeTestApp(), { 'X-Forwarded-Proto': 'https' })
     expect(untrusted).not.toMatch(/; Secure/)
   })
 
   it('POST /api/auth/sign-out clears it with the same flags', async () => {
-    const t = makeTestApp({ config: { cookieSecure: true } })
+    const t = await makeTestApp({ config: { cookieSecure: true } })
     const u = await createTestUser(t)
     const res = await call(t, u.cookie).post('/api/auth/sign-out')
     expect(res.status).toBe(204)

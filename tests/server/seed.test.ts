@@ -10,11 +10,11 @@ import { call, makeTestApp, signIn, TEST_ARGON2 } from '../utils/server'
 
 describe('seedDemo', () => {
   it('creates the fictional lab with the four demo sign-ins in their roles and one sheet per example', async () => {
-    const t = makeTestApp()
-    expect(isEmpty(t.db)).toBe(true)
+    const t = await makeTestApp()
+    expect(await isEmpty(t.db)).toBe(true)
     const examples = readExamples(EXAMPLES_DIR, () => {})
     const result = await seedDemo({ db: t.db, config: { argon2: TEST_ARGON2 } })
-    expect(isEmpty(t.db)).toBe(false)
+    expect(await isEmpty(t.db)).toBe(false)
     expect(DEMO_ACCOUNTS.map((a) => [a.role, a.name, a.email, a.password])).toEqual([
       ['owner', 'Mira Halvorsen', 'mira@halvorsen-lab.example', 'demo-owner-2026'],
       ['editor', 'Tomás Reyes', 'tomas@halvorsen-lab.example', 'demo-editor-2026'],
@@ -28,7 +28,7 @@ describe('seedDemo', () => {
     }
     expect(result.sheets.map((s) => s.title)).toEqual(examples.map((e) => e.sheet.title))
     expect(result.sheets.length).toBeGreaterThan(0)
-    for (const [i, s] of result.sheets.entries()) expect(loadSheetFile(t.db, s.id).cells.length).toBe(examples[i].sheet.cells.length)
+    for (const [i, s] of result.sheets.entries()) expect((await loadSheetFile(t.db, s.id)).cells.length).toBe(examples[i].sheet.cells.length)
   })
 
   it('skips an invalid example with a warning naming the problem, and warns when there are none', async () => {
@@ -36,7 +36,7 @@ describe('seedDemo', () => {
     try {
       writeFileSync(path.join(dir, 'broken.penumbra.json'), JSON.stringify({ format: 'penumbra.sheet', version: 1, title: 'B', cells: [{ kind: 'parameter', name: 'x' }] }))
       const warn = vi.fn()
-      const t = makeTestApp()
+      const t = await makeTestApp()
       const result = await seedDemo({ db: t.db, config: { argon2: TEST_ARGON2 } }, { examplesDir: dir, warn })
       expect(result.sheets).toEqual([])
       expect(warn).toHaveBeenCalledWith('demo seed: skipping examples/broken.penumbra.json: cells[0].value required')
@@ -61,7 +61,7 @@ describe('serving the built client', () => {
       mkdirSync(path.join(dir, 'assets'))
       writeFileSync(path.join(dir, 'index.html'), '<!doctype html><title>Penumbra</title><div id="app"></div>')
       writeFileSync(path.join(dir, 'assets', 'main-abc123.js'), 'console.log(1)')
-      const t = makeTestApp({ config: { clientDir: dir } })
+      const t = await makeTestApp({ config: { clientDir: dir } })
       const asset = await request(t.app).get('/assets/main-abc123.js')
       expect(asset.status).toBe(200)
       expect(asset.headers['cache-control']).toBe('public, max-age=31536000, immutable')
@@ -85,7 +85,7 @@ describe('seedDemo with the server secret', () => {
   it('seeds two snapshots of the band-edge sheet, reviews in each state, a comment thread and a live guest link', async () => {
     const { seedDemo: seed } = await import('../../server/db/seed')
     const { demoGuestUrl } = await import('../../server/db/seedSnapshots')
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const result = await seed({ db: t.db, config: { ...t.config, argon2: TEST_ARGON2 } }, { secret: t.secret })
     expect(result.review).toBeDefined()
     const owner = await signIn(t, DEMO_ACCOUNTS[0].email, DEMO_ACCOUNTS[0].password)
@@ -102,7 +102,7 @@ describe('seedDemo with the server secret', () => {
     const thread = (await call(t, owner).get(`/api/sheets/${bandEdge.id}/comments`)).body.comments
     expect(thread).toHaveLength(2)
     expect(thread[1].parentId).toBe(thread[0].id)
-    const url = demoGuestUrl(t.db, t.secret, t.config)
+    const url = await demoGuestUrl(t.db, t.secret, t.config)
     expect(url).toBe(result.review!.guestUrl)
     const shown = await call(t).get(`/api/guest/${url!.split('/').pop()}`)
     expect(shown.status).toBe(200)

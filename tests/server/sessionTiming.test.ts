@@ -5,12 +5,12 @@ import { describe, expect, it } from 'vitest'
 import { eq } from 'drizzle-orm'
 import { SignJWT } from 'jose'
 import { call, cookieFrom, createTestUser, makeTestApp, signIn } from '../utils/server'
-import { users } from '../../server/db/schema'
+import { users } from '../../server/db/tables'
 import { SESSION_COOKIE } from '../../server/services/sessions'
 
 describe('sessions ended by a password change or reset', () => {
   it('ends a session signed in a moment before POST /api/auth/password, in the same second', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const u = await createTestUser(t)
     const mine = await signIn(t, u.email, u.password)
     const theirs = await signIn(t, u.email, u.password)
@@ -24,7 +24,7 @@ describe('sessions ended by a password change or reset', () => {
   })
 
   it('ends a session signed in a moment before POST /api/auth/reset, in the same second', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const u = await createTestUser(t)
     const before = await signIn(t, u.email, u.password)
     expect((await call(t).post('/api/auth/reset-request', { email: u.email })).status).toBe(202)
@@ -35,10 +35,10 @@ describe('sessions ended by a password change or reset', () => {
   })
 
   it('reads a reset time stored in seconds by an older build, and a token without the millisecond claim by its iat', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const u = await createTestUser(t)
     const nowS = Math.floor(Date.now() / 1000)
-    t.db.update(users).set({ sessionsValidFrom: nowS }).where(eq(users.id, u.id)).run()
+    await t.db.update(users).set({ sessionsValidFrom: nowS }).where(eq(users.id, u.id))
     const old = (iat: number) => new SignJWT({}).setProtectedHeader({ alg: 'HS256' }).setSubject(u.id).setJti(`j${iat}`).setIssuer('penumbra').setIssuedAt(iat).setExpirationTime(nowS + 3600).sign(t.secret)
     expect((await call(t, `${SESSION_COOKIE}=${await old(nowS - 5)}`).get('/api/auth/me')).status).toBe(401)
     expect((await call(t, `${SESSION_COOKIE}=${await old(nowS)}`).get('/api/auth/me')).status).toBe(200)

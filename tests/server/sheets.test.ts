@@ -4,7 +4,9 @@ import { readFileSync } from 'node:fs'
 import path from 'node:path'
 import request from 'supertest'
 import { call, makeTestApp, seedLab } from '../utils/server'
+import { eq } from 'drizzle-orm'
 import { loadSheetFile } from '../../server/services/documents'
+import { sheetStates, sheetUpdates } from '../../server/db/tables'
 import { CSRF_HEADER } from '../../shared/schema/api'
 import { parseSheetFileText } from '../../shared/schema/sheet'
 
@@ -23,25 +25,25 @@ const FILE = {
 
 describe('POST /api/labs/:labId/sheets', () => {
   it('creates a blank sheet from {title}, listed with its author and times', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const res = await call(t, lab.users.editor.cookie).post(`/api/labs/${lab.labId}/sheets`, { title: 'Thickness study' })
     expect(res.status).toBe(201)
     expect(res.headers.location).toBe(`/api/sheets/${res.body.id}`)
     expect(res.body).toMatchObject({ title: 'Thickness study', labId: lab.labId, labName: lab.labName, role: 'editor', createdBy: lab.users.editor.id, authorName: 'The editor', canDelete: true })
-    expect(loadSheetFile(t.db, res.body.id).cells).toEqual([])
+    expect((await loadSheetFile(t.db, res.body.id)).cells).toEqual([])
     const list = await call(t, lab.users.viewer.cookie).get(`/api/labs/${lab.labId}/sheets`)
     expect(list.body.sheets[0]).toMatchObject({ id: res.body.id, title: 'Thickness study', authorName: 'The editor' })
     expect(list.body.sheets).toHaveLength(3)
   })
 
   it('imports a sheet file: cells keep their ids, the others get one, and the document holds them', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const res = await call(t, lab.users.owner.cookie).post(`/api/labs/${lab.labId}/sheets`, FILE)
     expect(res.status).toBe(201)
     expect(res.body.title).toBe('Edge model of film B')
-    const stored = loadSheetFile(t.db, res.body.id)
+    const stored = await loadSheetFile(t.db, res.body.id)
     expect(stored.cells.map((c) => c.kind)).toEqual(['parameter', 'formula', 'note'])
     expect(stored.cells[0].id).toBe('keep-me')
     expect(new Set(stored.cells.map((c) => c.id)).size).toBe(3)
@@ -49,7 +51,7 @@ describe('POST /api/labs/:labId/sheets', () => {
   })
 
   it('imports {title, file} with the title overriding the file’s', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const res = await call(t, lab.users.owner.cookie).post(`/api/labs/${lab.labId}/sheets`, { title: 'Copy of film B', file: FILE })
     expect(res.status).toBe(201)
@@ -57,7 +59,7 @@ describe('POST /api/labs/:labId/sheets', () => {
   })
 
   it('imports an uploaded file (multipart, field "file")', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const res = await request(t.app)
       .post(`/api/labs/${lab.labId}/sheets`)
@@ -71,7 +73,7 @@ describe('POST /api/labs/:labId/sheets', () => {
   })
 
   it('answers 400 naming every problem of a sheet file by its JSON path', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const broken = {
       format: 'penumbra.sheet',
@@ -95,7 +97,7 @@ describe('POST /api/labs/:labId/sheets', () => {
   })
 
   it('answers 400 naming a duplicate cell name and id by path', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const dup = { ...FILE, cells: [...FILE.cells, { id: 'keep-me', kind: 'parameter', name: 'Eg', value: 1 }] }
     const res = await call(t, lab.users.owner.cookie).post(`/api/labs/${lab.labId}/sheets`, dup)
@@ -107,7 +109,7 @@ describe('POST /api/labs/:labId/sheets', () => {
   })
 
   it('answers 400 with "cells[1].source: required" for a formula cell without a source', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const res = await call(t, lab.users.editor.cookie).post(`/api/labs/${lab.labId}/sheets`, {
       format: 'penumbra.sheet', version: 1, title: 'No source',
@@ -118,7 +120,7 @@ describe('POST /api/labs/:labId/sheets', () => {
   })
 
   it('answers 400 naming a cell without a kind, and plain words for a wrong type or a too-small number', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const res = await call(t, lab.users.owner.cookie).post(`/api/labs/${lab.labId}/sheets`, {
       format: 'penumbra.sheet', version: 1, title: 'Odd cells',
@@ -134,7 +136,7 @@ describe('POST /api/labs/:labId/sheets', () => {
   })
 
   it('answers 400 naming duplicate names even when other cells have problems too, in cell order', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const res = await call(t, lab.users.owner.cookie).post(`/api/labs/${lab.labId}/sheets`, {
       format: 'penumbra.sheet', version: 1, title: 'Two of a name',
@@ -156,7 +158,7 @@ describe('POST /api/labs/:labId/sheets', () => {
   })
 
   it('answers 400 for an uploaded file that is not JSON, and for a wrong format or version', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const notJson = await request(t.app)
       .post(`/api/labs/${lab.labId}/sheets`)
@@ -172,7 +174,7 @@ describe('POST /api/labs/:labId/sheets', () => {
   })
 
   it('answers 400 for a malformed JSON body and 413 for one over the limit', async () => {
-    const t = makeTestApp({ config: { maxBodyBytes: 2048 } })
+    const t = await makeTestApp({ config: { maxBodyBytes: 2048 } })
     const lab = await seedLab(t)
     const malformed = await request(t.app).post(`/api/labs/${lab.labId}/sheets`).set('Cookie', lab.users.owner.cookie).set('Content-Type', 'application/json').send('{"title": ')
     expect(malformed.status).toBe(400)
@@ -192,7 +194,7 @@ describe('POST /api/labs/:labId/sheets', () => {
 
 describe('GET /api/sheets/:sheetId/file', () => {
   it('exports the sheet file as a download that imports back to the same cells', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const created = await call(t, lab.users.owner.cookie).post(`/api/labs/${lab.labId}/sheets`, FILE)
     await call(t, lab.users.owner.cookie).patch(`/api/sheets/${created.body.id}`, { title: 'Film B: edge/model' })
@@ -207,11 +209,11 @@ describe('GET /api/sheets/:sheetId/file', () => {
     // and back in: the same cells, ids included
     const again = await call(t, lab.users.owner.cookie).post(`/api/labs/${lab.labId}/sheets`, exported)
     expect(again.status).toBe(201)
-    expect(loadSheetFile(t.db, again.body.id).cells).toEqual(exported.cells)
+    expect((await loadSheetFile(t.db, again.body.id)).cells).toEqual(exported.cells)
   })
 
   it('names the download <title>.penumbra.json, with an ASCII fallback and the exact title in UTF-8', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const cases: [string, string][] = [
       ['Film H-17 (annealed): band-edge model', `attachment; filename="Film H-17 (annealed): band-edge model.penumbra.json"; filename*=UTF-8''Film%20H-17%20%28annealed%29%3A%20band-edge%20model.penumbra.json`],
@@ -226,7 +228,7 @@ describe('GET /api/sheets/:sheetId/file', () => {
   })
 
   it('exports the demo example unchanged apart from ids', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const source = JSON.parse(readFileSync(EXAMPLE, 'utf8'))
     const created = await call(t, lab.users.owner.cookie).post(`/api/labs/${lab.labId}/sheets`, source)
@@ -237,7 +239,7 @@ describe('GET /api/sheets/:sheetId/file', () => {
 
 describe('PATCH /api/sheets/:sheetId and DELETE /api/sheets/:sheetId', () => {
   it('renames, with 400 naming the field for an empty title', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const res = await call(t, lab.users.editor.cookie).patch(`/api/sheets/${lab.ownerSheetId}`, { title: 'Renamed' })
     expect(res.status).toBe(200)
@@ -247,20 +249,20 @@ describe('PATCH /api/sheets/:sheetId and DELETE /api/sheets/:sheetId', () => {
   })
 
   it('deletes the sheet and its document, and tells the live layer', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const forbidden = await call(t, lab.users.editor.cookie).del(`/api/sheets/${lab.ownerSheetId}`)
     expect(forbidden.body.error).toBe('Editors may delete only the sheets they made.')
     expect((await call(t, lab.users.editor.cookie).del(`/api/sheets/${lab.editorSheetId}`)).status).toBe(204)
     expect(t.hookCalls).toEqual([{ hook: 'sheetDeleted', args: [lab.editorSheetId] }])
     expect((await call(t, lab.users.owner.cookie).get(`/api/sheets/${lab.editorSheetId}`)).status).toBe(404)
-    expect(t.handle.sqlite.prepare('select count(*) as n from sheet_states where sheet_id = ?').get(lab.editorSheetId)).toEqual({ n: 0 })
+    expect(await t.db.select().from(sheetStates).where(eq(sheetStates.sheetId, lab.editorSheetId))).toEqual([])
   })
 })
 
 describe('POST /api/evaluate', () => {
   it('answers the engine’s result object, one result per cell in order', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const res = await call(t, lab.users.viewer.cookie).post('/api/evaluate', FILE)
     expect(res.status).toBe(200)
@@ -270,7 +272,7 @@ describe('POST /api/evaluate', () => {
   })
 
   it('answers 400 with issues for an invalid sheet file', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const res = await call(t, lab.users.viewer.cookie).post('/api/evaluate', { format: 'penumbra.sheet', version: 1, title: 'x', cells: [{ kind: 'parameter', name: 'a' }] })
     expect(res.status).toBe(400)
@@ -280,10 +282,11 @@ describe('POST /api/evaluate', () => {
 
 describe('GET /api/labs/:labId/sheets', () => {
   it('orders by the last change, including live document updates stored by the collaboration layer', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const later = Date.now() + 60_000
-    t.handle.sqlite.prepare('insert into sheet_updates (sheet_id, seq, "update", user_id, created_at) values (@s, coalesce((select max(seq) from sheet_updates where sheet_id = @s), (select upto_seq from sheet_states where sheet_id = @s), 0) + 1, @u, @by, @at)').run({ s: lab.editorSheetId, u: Buffer.from([0, 0]), by: lab.users.editor.id, at: later })
+    // the sheet's first stored update (its state covers none yet), as the collaboration layer appends it
+    await t.db.insert(sheetUpdates).values({ sheetId: lab.editorSheetId, seq: 1, update: Buffer.from([0, 0]), userId: lab.users.editor.id, createdAt: later })
     const list = (await call(t, lab.users.viewer.cookie).get(`/api/labs/${lab.labId}/sheets`)).body.sheets
     expect(list.map((s: { id: string }) => s.id)).toEqual([lab.editorSheetId, lab.ownerSheetId])
     expect(list[0].updatedAt).toBe(later)

@@ -13,7 +13,7 @@ import { seedDocument, loadSheetFile } from '../../server/services/documents'
 import { createGuestLink } from '../../server/services/guestLinks'
 import { closeSharedEvaluator } from '../../server/services/evaluation'
 import { snapshotById } from '../../server/services/snapshots'
-import { snapshots } from '../../server/db/schema'
+import { datasets, snapshots } from '../../server/db/tables'
 import { SESSION_COOKIE } from '../../server/services/sessions'
 import { commentSchema, compareReply, guestSnapshotReply, reviewQueueReply, reviewSchema } from '../../shared/schema/api'
 import type { SheetFile } from '../../shared/schema/sheet'
@@ -32,19 +32,19 @@ const FILE: SheetFile = {
   ],
 }
 
-async function setup(): Promise<{ t: TestApp; lab: SeededLab; sheetId: string; freeze: (who: 'editor' | 'owner', message: string) => Promise<string>; edit: (f: (cells: Record<string, unknown>[]) => void) => void }> {
-  const t = makeTestApp()
+async function setup(): Promise<{ t: TestApp; lab: SeededLab; sheetId: string; freeze: (who: 'editor' | 'owner', message: string) => Promise<string>; edit: (f: (cells: Record<string, unknown>[]) => void) => Promise<void> }> {
+  const t = await makeTestApp()
   const lab = await seedLab(t)
-  const sheetId = createSheet(t.deps, lab.labId, lab.users.editor.id, FILE).id
+  const sheetId = (await createSheet(t.deps, lab.labId, lab.users.editor.id, FILE)).id
   const freeze = async (who: 'editor' | 'owner', message: string) => {
     const res = await call(t, lab.users[who].cookie).post(`/api/sheets/${sheetId}/snapshots`, { message })
     if (res.status !== 201) throw new Error(`freeze: ${res.status} ${JSON.stringify(res.body)}`)
     return res.body.id as string
   }
-  const edit = (f: (cells: Record<string, unknown>[]) => void) => {
-    const file = loadSheetFile(t.db, sheetId) as SheetFile & { cells: Record<string, unknown>[] }
+  const edit = async (f: (cells: Record<string, unknown>[]) => void) => {
+    const file = (await loadSheetFile(t.db, sheetId)) as SheetFile & { cells: Record<string, unknown>[] }
     f(file.cells)
-    seedDocument(t.db, sheetId, file as SheetFile)
+    await seedDocument(t.db, sheetId, file as SheetFile)
   }
   return { t, lab, sheetId, freeze, edit }
 }
@@ -53,7 +53,7 @@ describe('GET /api/snapshots/:a/compare/:b', () => {
   it('lists the changed parameter and the results that moved between two snapshots, and against the live sheet', async () => {
     const { t, lab, freeze, edit } = await setup()
     const a = await freeze('editor', 'before')
-    edit((cells) => {
+    await edit((cells) => {
       cells.find((c) => c.name === 'Eg')!.value = 1.52
     })
     const b = await freeze('editor', 'after')
@@ -65,7 +65,7 @@ describe('GET /api/snapshots/:a/compare/:b', () => {
     expect(diff.results.map((r) => r.name)).toEqual(['Eg', 'lambda_g'])
     // λg = hc/Eg, so the relative change is 1.48/1.52 − 1 (exact up to rounding)
     expect(diff.results[1].change).toBeCloseTo(1.48 / 1.52 - 1, 12)
-    edit((cells) => {
+    await edit((cells) => {
       cells.push({ id: 'f-new', kind: 'formula', name: 'depth', source: '1/(1e4/cm)', unit: 'um' })
     })
     const live = compareReply.parse((await call(t, lab.users.viewer.cookie).get(`/api/snapshots/${b}/compare/live`)).body)
@@ -73,18 +73,18 @@ describe('GET /api/snapshots/:a/compare/:b', () => {
     expect(live.added).toEqual(['depth'])
     expect(live.parameters).toEqual([])
     expect(live.results).toEqual([])
-    t.close()
+    await t.close()
   })
 
   it('answers 404 for a snapshot of a lab the caller is not in', async () => {
     const { t, lab, freeze } = await setup()
     const a = await freeze('editor', 'mine')
     const other = await seedLab(t, 'Other Lab')
-    const otherSheet = createSheet(t.deps, other.labId, other.users.editor.id, FILE).id
+    const otherSheet = (await createSheet(t.deps, other.labId, other.users.editor.id, FILE)).id
     const made = await call(t, other.users.editor.cookie).post(`/api/sheets/${otherSheet}/snapshots`, { message: 'theirs' })
     const res = await call(t, lab.users.owner.cookie).get(`/api/snapshots/${a}/compare/${made.body.id}`)
     expect(res.status).toBe(404)
-    t.close()
+    await t.close()
   })
 })
 
@@ -92,20 +92,20 @@ describe('snapshot immutability', () => {
   it('no route changes a snapshot: there is no update path, and reviews, comments, links, restore and live edits leave its row as it was', async () => {
     const { t, lab, sheetId, freeze, edit } = await setup()
     const id = await freeze('editor', 'frozen')
-    const row = () => t.db.select().from(snapshots).where(eq(snapshots.id, id)).get()!
-    const before = row()
+    const row = async () => (await t.db.select().from(snapshots).where(eq(snapshots.id, id)))[0]
+    const before = await row()
     const owner = call(t, lab.users.owner.cookie)
     for (const res of [await owner.patch(`/api/snapshots/${id}`, { message: 'changed' }), await owner.post(`/api/snapshots/${id}`, { message: 'changed' })]) expect(res.status).toBe(404)
     expect((await owner.post(`/api/snapshots/${id}/reviews`, { reviewerIds: [lab.users.reviewer.id], note: 'n' })).status).toBe(201)
     expect((await owner.post(`/api/sheets/${sheetId}/comments`, { cellId: 'f-lam', text: 'hm', snapshotId: id })).status).toBe(201)
     expect((await owner.post(`/api/snapshots/${id}/guest-links`, { expiresInDays: 3, note: '' })).status).toBe(201)
     expect((await owner.post(`/api/snapshots/${id}/restore`, { into: 'new' })).status).toBe(201)
-    edit((cells) => {
+    await edit((cells) => {
       cells.find((c) => c.name === 'Eg')!.value = 1.6
     })
     await freeze('owner', 'later')
-    expect(row()).toEqual(before)
-    t.close()
+    expect(await row()).toEqual(before)
+    await t.close()
   })
 })
 
@@ -120,8 +120,8 @@ describe('DELETE /api/snapshots/:snapshotId', () => {
     expect(refused.body.error).toBe('A guest link still shows this snapshot. Revoke it first, then delete the snapshot.')
     expect((await owner.del(`/api/guest-links/${link.body.id}`)).status).toBe(204)
     expect((await owner.del(`/api/snapshots/${id}`)).status).toBe(204)
-    expect(snapshotById(t.db, id)).toBeUndefined()
-    t.close()
+    expect(await snapshotById(t.db, id)).toBeUndefined()
+    await t.close()
   })
 })
 
@@ -141,7 +141,7 @@ describe('GET /api/snapshots/:snapshotId/cells/:cellId/csv', () => {
     const none = await call(t, lab.users.viewer.cookie).get(`/api/snapshots/${id}/cells/n-1/csv`)
     expect(none.status).toBe(422)
     expect((await call(t, lab.users.viewer.cookie).get(`/api/snapshots/${id}/cells/no-such-cell/csv`)).status).toBe(404)
-    t.close()
+    await t.close()
   })
 })
 
@@ -149,15 +149,15 @@ describe('POST /api/snapshots/:snapshotId/restore', () => {
   it('makes a new sheet in the lab from the snapshot, its cells as they were frozen', async () => {
     const { t, lab, freeze, edit } = await setup()
     const id = await freeze('editor', 'good state')
-    edit((cells) => {
+    await edit((cells) => {
       cells.find((c) => c.name === 'Eg')!.value = 1.9
     })
     const res = await call(t, lab.users.editor.cookie).post(`/api/snapshots/${id}/restore`, { into: 'new', title: 'Film B edge, as approved' })
     expect(res.status).toBe(201)
     expect(res.body).toMatchObject({ title: 'Film B edge, as approved', labId: lab.labId })
-    const restored = loadSheetFile(t.db, res.body.id)
+    const restored = await loadSheetFile(t.db, res.body.id)
     expect(restored.cells.find((c) => c.kind === 'parameter')).toMatchObject({ name: 'Eg', value: 1.48 })
-    t.close()
+    await t.close()
   })
 })
 
@@ -184,27 +184,27 @@ describe('GET /api/guest/:token', () => {
     // the token is no session: snapshot B, the lab, its sheets and its datasets stay closed
     for (const path of [`/api/snapshots/${b}`, `/api/snapshots/${a}`, `/api/labs/${lab.labId}`, `/api/labs/${lab.labId}/sheets`, `/api/sheets/${sheetId}/file`])
       expect((await call(t).get(path).set('Authorization', `Bearer ${token}`)).status).toBe(401)
-    t.close()
+    await t.close()
   })
 
   it('a guest link to one snapshot of a sheet with a stored spectrum cannot read that dataset', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const { readFileSync } = await import('node:fs')
     const { parseSheetFileText } = await import('../../shared/schema/sheet')
     const parsed = parseSheetFileText(readFileSync(new URL('../../examples/edge-model.penumbra.json', import.meta.url), 'utf8'))
     if (!parsed.ok) throw new Error('example')
-    const sheetId = createSheet(t.deps, lab.labId, lab.users.editor.id, parsed.value).id
+    const sheetId = (await createSheet(t.deps, lab.labId, lab.users.editor.id, parsed.value)).id
     const snap = await call(t, lab.users.editor.cookie).post(`/api/sheets/${sheetId}/snapshots`, { message: 'x' })
     const link = await call(t, lab.users.editor.cookie).post(`/api/snapshots/${snap.body.id}/guest-links`, { expiresInDays: 1 })
     const token = link.body.url.split('/').pop()
     const shown = (await call(t).get(`/api/guest/${token}`)).body
     // the guest's file carries the numbers inline and no dataset id; the stored dataset is still behind the lab's roles
     expect(shown.file.cells.find((c: { name?: string }) => c.name === 'filmH17').datasetId).toBeUndefined()
-    const datasetId = (t.handle.sqlite.prepare('SELECT id FROM datasets LIMIT 1').get() as { id: string }).id
+    const [{ id: datasetId }] = await t.db.select({ id: datasets.id }).from(datasets).limit(1)
     expect((await call(t).get(`/api/datasets/${datasetId}`).set('Authorization', `Bearer ${token}`)).status).toBe(401)
     expect((await call(t, lab.users.viewer.cookie).get(`/api/datasets/${datasetId}`)).status).toBe(200)
-    t.close()
+    await t.close()
   })
 
   it('counts each view of a guest link', async () => {
@@ -220,14 +220,14 @@ describe('GET /api/guest/:token', () => {
     const page = await call(t).get(`/guest/${token}`)
     expect(page.headers['x-robots-tag']).toContain('noindex')
     expect(page.headers['referrer-policy']).toBe('no-referrer')
-    t.close()
+    await t.close()
   })
 
   it('answers 410 with a plain sentence for an expired link and for a revoked one', async () => {
     const { t, lab, freeze } = await setup()
     const id = await freeze('editor', 'shared')
-    const snap = snapshotById(t.db, id)!
-    const expired = createGuestLink(t.deps, snap, lab.users.owner.id, { expiresInDays: 1, note: '', now: Date.now() - 2 * 86_400_000 })
+    const snap = (await snapshotById(t.db, id))!
+    const expired = await createGuestLink(t.deps, snap, lab.users.owner.id, { expiresInDays: 1, note: '', now: Date.now() - 2 * 86_400_000 })
     const res = await call(t).get(`/api/guest/${expired.url.split('/').pop()}`)
     expect(res.status).toBe(410)
     expect(res.body.error).toMatch(/^This guest link expired on .+\. Ask the lab that shared it for a new one\.$/)
@@ -238,13 +238,13 @@ describe('GET /api/guest/:token', () => {
     const revoked = await call(t).get(`/api/guest/${token}`)
     expect(revoked.status).toBe(410)
     expect(revoked.body.error).toBe('This guest link was revoked by the lab that shared it. Ask them for a new one.')
-    t.close()
+    await t.close()
   })
 
   it('GET /api/guest/:token/cells/:cellId/csv writes a cell of that snapshot only, counts no view, and answers 410 once the link is expired or revoked', async () => {
     const { t, lab, freeze, edit } = await setup()
     const a = await freeze('editor', 'shared')
-    edit((cells) => {
+    await edit((cells) => {
       cells.push({ id: 'f-later', kind: 'formula', name: 'later', source: 'grid(1*eV, 2*eV, 5)', unit: 'eV' })
     })
     const b = await freeze('editor', 'not shared')
@@ -262,7 +262,7 @@ describe('GET /api/guest/:token', () => {
     expect((await call(t).get(`/api/guest/${token}/cells/f-later/csv`)).status).toBe(404)
     // downloads are not page views
     expect((await call(t, lab.users.viewer.cookie).get(`/api/snapshots/${a}/guest-links`)).body.links[0].viewCount).toBe(0)
-    const expired = createGuestLink(t.deps, snapshotById(t.db, a)!, lab.users.owner.id, { expiresInDays: 1, note: '', now: Date.now() - 2 * 86_400_000 })
+    const expired = await createGuestLink(t.deps, (await snapshotById(t.db, a))!, lab.users.owner.id, { expiresInDays: 1, note: '', now: Date.now() - 2 * 86_400_000 })
     const old = await call(t).get(`/api/guest/${expired.url.split('/').pop()}/cells/f-E/csv`)
     expect(old.status).toBe(410)
     expect(old.body.error).toMatch(/^This guest link expired on /)
@@ -270,7 +270,7 @@ describe('GET /api/guest/:token', () => {
     const revoked = await call(t).get(`/api/guest/${token}/cells/f-E/csv`)
     expect(revoked.status).toBe(410)
     expect(revoked.body.error).toBe('This guest link was revoked by the lab that shared it. Ask them for a new one.')
-    t.close()
+    await t.close()
   })
 
   it('refuses an expiry outside 1 to 90 days with 400 naming the field', async () => {
@@ -281,7 +281,7 @@ describe('GET /api/guest/:token', () => {
       expect(res.status).toBe(400)
       expect(res.body.issues[0].path).toBe('expiresInDays')
     }
-    t.close()
+    await t.close()
   })
 })
 
@@ -318,7 +318,7 @@ describe('reviews', () => {
     expect(mine.requested.map((r) => r.id)).toEqual([review.id])
     const timeline = await call(t, lab.users.viewer.cookie).get(`/api/snapshots/${id}`)
     expect(timeline.body.reviewState).toBe('approved')
-    t.close()
+    await t.close()
   })
 
   it('a decision does not carry over to a newer snapshot of the same sheet', async () => {
@@ -326,7 +326,7 @@ describe('reviews', () => {
     const a = await freeze('editor', 'first')
     const r = await call(t, lab.users.editor.cookie).post(`/api/snapshots/${a}/reviews`, { reviewerIds: [lab.users.reviewer.id] })
     await call(t, lab.users.reviewer.cookie).patch(`/api/reviews/${r.body.id}`, { decision: 'approved', note: 'ok' })
-    edit((cells) => {
+    await edit((cells) => {
       cells.find((c) => c.name === 'Eg')!.value = 1.5
     })
     const b = await freeze('editor', 'edited after approval')
@@ -335,7 +335,7 @@ describe('reviews', () => {
     const asked = await call(t, lab.users.editor.cookie).post(`/api/snapshots/${b}/reviews`, { reviewerIds: [lab.users.reviewer.id] })
     expect(asked.body.state).toBe('open')
     expect(asked.body.decisions).toEqual([expect.objectContaining({ reviewerId: lab.users.reviewer.id, decision: null })])
-    t.close()
+    await t.close()
   })
 
   it('refuses to ask an editor or a viewer (400 naming the entry), and answers 403 for someone not asked', async () => {
@@ -348,7 +348,7 @@ describe('reviews', () => {
     const notAsked = await call(t, lab.users.owner.cookie).patch(`/api/reviews/${r.body.id}`, { decision: 'approved' })
     expect(notAsked.status).toBe(403)
     expect(notAsked.body.error).toBe('You were not asked to review this snapshot.')
-    t.close()
+    await t.close()
   })
 })
 
@@ -379,7 +379,7 @@ describe('comments', () => {
     expect((await call(t, lab.users.viewer.cookie).get(`/api/sheets/${sheetId}/comments?snapshotId=${snap}`)).body.comments).toHaveLength(2)
     const wrongCell = await call(t, lab.users.owner.cookie).post(`/api/sheets/${sheetId}/comments`, { cellId: 'no-such-cell', text: 'x', snapshotId: snap })
     expect(wrongCell.status).toBe(400)
-    t.close()
+    await t.close()
   })
 
   it('GET …/comments/events streams each new comment to the others on the sheet', async () => {
@@ -401,7 +401,7 @@ describe('comments', () => {
     expect(commentSchema.parse(JSON.parse(event.split('\ndata: ')[1])).text).toBe('Seen live?')
     req.destroy()
     await new Promise<void>((resolve) => server.close(() => resolve()))
-    t.close()
+    await t.close()
   })
 
   it('GET …/comments/events answers 401 without a session', async () => {
@@ -409,6 +409,6 @@ describe('comments', () => {
     const res = await call(t).get(`/api/sheets/${sheetId}/comments/events`)
     expect(res.status).toBe(401)
     void SESSION_COOKIE
-    t.close()
+    await t.close()
   })
 })

@@ -19,13 +19,13 @@ export async function labWithEdgeSheet(t: TestApp): Promise<{ lab: SeededLab; sh
   const lab = await seedLab(t)
   const parsed = parseSheetFileText(readFileSync(EXAMPLE, 'utf8'))
   if (!parsed.ok) throw new Error('the example does not parse')
-  const sheet = createSheet(t.deps, lab.labId, lab.users.editor.id, parsed.value)
+  const sheet = await createSheet(t.deps, lab.labId, lab.users.editor.id, parsed.value)
   return { lab, sheetId: sheet.id, sheet }
 }
 
 describe('POST /api/sheets/:sheetId/snapshots', () => {
   it('freezes the live sheet with its file, results, engine version and the sha256 of the canonical file', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const { lab, sheetId } = await labWithEdgeSheet(t)
     const res = await call(t, lab.users.editor.cookie).post(`/api/sheets/${sheetId}/snapshots`, { message: 'after the 450 °C anneal' })
     expect(res.status).toBe(201)
@@ -39,16 +39,16 @@ describe('POST /api/sheets/:sheetId/snapshots', () => {
     expect(spectrum.datasetId).toBeUndefined()
     expect(spectrum.columns.wavelength.values).toHaveLength(161)
     expect(detail.results.cells.find((c) => c.name === 'tauc_m')).toMatchObject({ status: 'ok' })
-    t.close()
+    await t.close()
   })
 
   it('answers 400 naming the field for an empty message', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const { lab, sheetId } = await labWithEdgeSheet(t)
     const res = await call(t, lab.users.editor.cookie).post(`/api/sheets/${sheetId}/snapshots`, { message: ' ' })
     expect(res.status).toBe(400)
     expect(res.body.issues[0]).toMatchObject({ path: 'message' })
-    t.close()
+    await t.close()
   })
 })
 
@@ -67,7 +67,7 @@ describe('freezeSnapshot(deps, sheet, userId, message, { evaluator })', () => {
   }
 
   it('reuses the result computed for the same document state, and evaluates again after an edit, storing the same text either way', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const { lab, sheet } = await labWithEdgeSheet(t)
     const evaluator = countingEvaluator()
     const first = await freezeSnapshot(t.deps, sheet, lab.users.editor.id, 'first', { evaluator })
@@ -86,11 +86,11 @@ describe('freezeSnapshot(deps, sheet, userId, message, { evaluator })', () => {
     const other = countingEvaluator()
     await freezeSnapshot(t.deps, sheet, lab.users.editor.id, 'other evaluator', { evaluator: other })
     expect(other.asked).toHaveLength(1)
-    t.close()
+    await t.close()
   })
 
   it('does not reuse a result in which a cell ran out of its time budget', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const { lab, sheet } = await labWithEdgeSheet(t)
     let calls = 0
     const slow: Evaluator = {
@@ -107,13 +107,13 @@ describe('freezeSnapshot(deps, sheet, userId, message, { evaluator })', () => {
     await freezeSnapshot(t.deps, sheet, lab.users.editor.id, 'slow', { evaluator: slow })
     await freezeSnapshot(t.deps, sheet, lab.users.editor.id, 'slow again', { evaluator: slow })
     expect(calls).toBe(2)
-    t.close()
+    await t.close()
   })
 })
 
 describe('GET /api/sheets/:sheetId/snapshots', () => {
   it('lists the snapshots newest first', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const { lab, sheetId } = await labWithEdgeSheet(t)
     const first = await call(t, lab.users.editor.cookie).post(`/api/sheets/${sheetId}/snapshots`, { message: 'first' })
     const second = await call(t, lab.users.owner.cookie).post(`/api/sheets/${sheetId}/snapshots`, { message: 'second' })
@@ -121,6 +121,6 @@ describe('GET /api/sheets/:sheetId/snapshots', () => {
     expect(list.snapshots.map((s) => s.id)).toEqual([second.body.id, first.body.id])
     // the same document frozen twice has the same hash
     expect(second.body.hash).toBe(first.body.hash)
-    t.close()
+    await t.close()
   })
 })

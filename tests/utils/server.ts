@@ -6,8 +6,9 @@ import request from 'supertest'
 import type { Express } from 'express'
 import { createApp } from '../../server/app'
 import { defaultConfig, type AppConfig } from '../../server/config'
-import { openDb, type Db, type DbHandle } from '../../server/db/client'
-import { labs, memberships, users, type Role } from '../../server/db/schema'
+import type { AnyDbHandle, Db } from '../../server/db/client'
+import { openTestDb } from './db'
+import { labs, memberships, users, type Role } from '../../server/db/tables'
 import type { Mailer, OutgoingMail } from '../../server/mail/mailer'
 import { hashPassword } from '../../server/services/passwords'
 import { SESSION_COOKIE, signSession } from '../../server/services/sessions'
@@ -68,14 +69,14 @@ export interface HookCall {
 export interface TestApp {
   app: Express
   db: Db
-  handle: DbHandle
+  handle: AnyDbHandle
   secret: Uint8Array
   mailer: FakeMailer
   config: AppConfig
   deps: AppDeps
   /** Every hook call, in order. */
   hookCalls: HookCall[]
-  close(): void
+  close(): void | Promise<void>
 }
 
 /** Cheap argon2 settings for tests (production uses OWASP's minimum). */
@@ -83,8 +84,9 @@ export const TEST_ARGON2 = { memoryCost: 1024, timeCost: 1 }
 /** Limits high enough that only the rate-limit tests meet them. */
 const TEST_LIMITS = { windowMs: 60_000, limit: 10_000 }
 
-export function makeTestApp(options: { config?: Partial<AppConfig>; secret?: Uint8Array } = {}): TestApp {
-  const handle = openDb(':memory:')
+/** An app over a fresh database (SQLite in memory; a new PostgreSQL database under DATABASE_URL). */
+export async function makeTestApp(options: { config?: Partial<AppConfig>; secret?: Uint8Array } = {}): Promise<TestApp> {
+  const handle = await openTestDb()
   const mailer = fakeMailer()
   const config = defaultConfig({
     publicUrl: 'http://penumbra.test',
@@ -122,7 +124,7 @@ export async function createTestUser(t: Pick<TestApp, 'db' | 'secret'>, o: { ema
   const id = newId()
   const email = (o.email ?? `user-${id.slice(0, 8)}@lab.example`).toLowerCase()
   const name = o.name ?? `User ${id.slice(0, 4)}`
-  t.db.insert(users).values({ id, email, name, passwordHash: await passwordHash, createdAt: Date.now() }).run()
+  await t.db.insert(users).values({ id, email, name, passwordHash: await passwordHash, createdAt: Date.now() })
   return { id, email, name, password: TEST_PASSWORD, cookie: await sessionCookie(t, id) }
 }
 
@@ -199,11 +201,11 @@ export async function seedLab(t: Pick<TestApp, 'db' | 'secret' | 'deps'>, labNam
   const extra = await createTestUser(t, { name: 'Second viewer' })
   const labId = newId()
   const now = Date.now()
-  t.db.insert(labs).values({ id: labId, name: labName, createdBy: made.owner.id, createdAt: now }).run()
-  for (const r of roles) t.db.insert(memberships).values({ labId, userId: made[r].id, role: r, createdAt: now }).run()
-  t.db.insert(memberships).values({ labId, userId: extra.id, role: 'viewer', createdAt: now }).run()
-  const editorSheet = createSheet(t.deps, labId, made.editor.id, blankSheetFile('Editor sheet'))
-  const ownerSheet = createSheet(t.deps, labId, made.owner.id, blankSheetFile('Owner sheet'))
+  await t.db.insert(labs).values({ id: labId, name: labName, createdBy: made.owner.id, createdAt: now })
+  for (const r of roles) await t.db.insert(memberships).values({ labId, userId: made[r].id, role: r, createdAt: now })
+  await t.db.insert(memberships).values({ labId, userId: extra.id, role: 'viewer', createdAt: now })
+  const editorSheet = await createSheet(t.deps, labId, made.editor.id, blankSheetFile('Editor sheet'))
+  const ownerSheet = await createSheet(t.deps, labId, made.owner.id, blankSheetFile('Owner sheet'))
   return {
     labId,
     labName,

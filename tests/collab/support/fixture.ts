@@ -7,12 +7,13 @@ import http from 'node:http'
 import { randomUUID } from 'node:crypto'
 import type { AddressInfo } from 'node:net'
 import WebSocket from 'ws'
-import { and, eq } from 'drizzle-orm'
+import { and, count, eq } from 'drizzle-orm'
 import * as decoding from 'lib0/decoding'
 import * as Y from 'yjs'
 import { WebsocketProvider } from 'y-websocket'
-import { openDb, type DbHandle } from '../../../server/db/client'
-import { labs, memberships, sheets, users, type Role } from '../../../server/db/schema'
+import { isPostgres, type AnyDbHandle } from '../../../server/db/client'
+import { openTestDb } from '../../utils/db'
+import { labs, memberships, sheets, sheetUpdates, users, type Role } from '../../../server/db/tables'
 import { SESSION_COOKIE, signSession } from '../../../server/services/sessions'
 import { seedDocument } from '../../../server/services/documents'
 import { createCollab, type Collab, type CollabOptions } from '../../../server/collab/index'
@@ -44,19 +45,23 @@ export const DEMO_SHEET: SheetFile = {
 }
 
 export interface Lab {
-  handle: DbHandle
+  /** SQLite (a file or in memory), or a fresh PostgreSQL database under DATABASE_URL. */
+  handle: AnyDbHandle
   labId: string
   sheetId: string
   userIds: Record<Person, string>
   tokens: Record<Person, string>
   /** Adds another sheet to the lab (seeded from a sheet file). */
-  addSheet(file?: SheetFile): string
-  setRole(person: Person, role: Role | null): void
+  addSheet(file?: SheetFile): Promise<string>
+  setRole(person: Person, role: Role | null): Promise<void>
 }
 
-/** A database (file or ':memory:') holding one lab with every role, one seeded sheet, and a session per person. */
+/**
+ * A database (file or ':memory:'; under DATABASE_URL a fresh PostgreSQL database) holding one lab with every role,
+ * one seeded sheet, and a session per person.
+ */
 export async function createLab(file = ':memory:', seed: SheetFile = DEMO_SHEET): Promise<Lab> {
-  const handle = openDb(file)
+  const handle = await openTestDb(file)
   const { db } = handle
   const now = Date.now()
   const userIds = {} as Record<Person, string>
@@ -64,23 +69,23 @@ export async function createLab(file = ':memory:', seed: SheetFile = DEMO_SHEET)
   for (const [key, p] of Object.entries(PEOPLE) as [Person, (typeof PEOPLE)[Person]][]) {
     const id = randomUUID()
     userIds[key] = id
-    db.insert(users).values({ id, email: p.email, name: p.name, passwordHash: 'not-used-by-these-tests', createdAt: now }).run()
+    await db.insert(users).values({ id, email: p.email, name: p.name, passwordHash: 'not-used-by-these-tests', createdAt: now })
     tokens[key] = (await signSession(SECRET, id)).token
   }
   const labId = randomUUID()
-  db.insert(labs).values({ id: labId, name: 'Halvorsen Thin-Film Lab', createdBy: userIds.owner, createdAt: now }).run()
+  await db.insert(labs).values({ id: labId, name: 'Halvorsen Thin-Film Lab', createdBy: userIds.owner, createdAt: now })
   for (const [key, p] of Object.entries(PEOPLE) as [Person, (typeof PEOPLE)[Person]][])
-    if (p.role) db.insert(memberships).values({ labId, userId: userIds[key], role: p.role, createdAt: now }).run()
-  const addSheet = (sheetFile: SheetFile = seed) => {
+    if (p.role) await db.insert(memberships).values({ labId, userId: userIds[key], role: p.role, createdAt: now })
+  const addSheet = async (sheetFile: SheetFile = seed) => {
     const id = randomUUID()
-    db.insert(sheets).values({ id, labId, title: sheetFile.title, createdBy: userIds.owner, createdAt: now, updatedAt: now }).run()
-    seedDocument(db, id, sheetFile)
+    await db.insert(sheets).values({ id, labId, title: sheetFile.title, createdBy: userIds.owner, createdAt: now, updatedAt: now })
+    await seedDocument(db, id, sheetFile)
     return id
   }
-  const sheetId = addSheet(seed)
-  const setRole = (person: Person, role: Role | null) => {
-    db.delete(memberships).where(andMembership(labId, userIds[person])).run()
-    if (role) db.insert(memberships).values({ labId, userId: userIds[person], role, createdAt: now }).run()
+  const sheetId = await addSheet(seed)
+  const setRole = async (person: Person, role: Role | null) => {
+    await db.delete(memberships).where(andMembership(labId, userIds[person]))
+    if (role) await db.insert(memberships).values({ labId, userId: userIds[person], role, createdAt: now })
   }
   return { handle, labId, sheetId, userIds, tokens, addSheet, setRole }
 }
@@ -190,9 +195,9 @@ function readDenied(decoder: decoding.Decoder): string {
 }
 
 /** Waits until `check()` is true (polling), or fails with `what` after `ms`. */
-export async function until(check: () => boolean, what: string, ms = 5000): Promise<void> {
+export async function until(check: () => boolean | Promise<boolean>, what: string, ms = 5000): Promise<void> {
   const start = Date.now()
-  while (!check()) {
+  while (!(await check())) {
     if (Date.now() - start > ms) throw new Error(`timed out waiting for ${what}`)
     await new Promise((r) => setTimeout(r, 5))
   }
@@ -251,6 +256,12 @@ export async function roundTrip(raw: RawClient): Promise<void> {
 }
 
 /** Rows in the update log of one sheet. */
-export function storedRows(lab: Lab, sheetId = lab.sheetId): number {
-  return (lab.handle.sqlite.prepare('SELECT count(*) AS n FROM sheet_updates WHERE sheet_id = ?').get(sheetId) as { n: number }).n
+export async function storedRows(lab: Lab, sheetId = lab.sheetId): Promise<number> {
+  return (await lab.handle.db.select({ n: count() }).from(sheetUpdates).where(eq(sheetUpdates.sheetId, sheetId)))[0].n
+}
+
+/** The SQLite connection of a lab's database, for tests about SQLite itself (they skip under PostgreSQL). */
+export function sqliteOf(lab: Lab) {
+  if (lab.handle.dialect !== 'sqlite' || isPostgres(lab.handle.db)) throw new Error('this test needs the SQLite database')
+  return lab.handle.sqlite
 }

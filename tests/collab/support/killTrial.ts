@@ -114,7 +114,7 @@ export async function killTrial(options: KillTrialOptions = {}): Promise<KillTri
     const check = openDb(dbFile)
     let stored: Y.Doc
     try {
-      stored = loadDocument(check.db, lab.sheetId)
+      stored = await loadDocument(check.db, lab.sheetId)
     } finally {
       check.close()
     }
@@ -151,7 +151,7 @@ export async function killTrial(options: KillTrialOptions = {}): Promise<KillTri
     for (const c of clients) c.destroy()
     for (const child of children) if (child.exitCode === null && child.signalCode === null) child.kill('SIGKILL')
     await Promise.all(children.map(exited))
-    lab.handle.close()
+    await lab.handle.close()
     rmSync(dir, { recursive: true, force: true })
   }
 }

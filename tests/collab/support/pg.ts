@@ -1,18 +1,15 @@
 /**
- * A scratch PostgreSQL database for the collaboration store's tests, made on the server at DATABASE_URL and dropped
- * afterwards, migrated from drizzle/pg like a server's.
+ * A fresh PostgreSQL database for the collaboration store's tests (tests/utils/db.ts `freshPgDb`: migrated, dropped
+ * afterwards), with more pools on it for the other app instances and a way to add sheets.
  */
-import { randomBytes } from 'node:crypto'
 import pg from 'pg'
-import { migratePgDatabase } from '../../../server/db/client'
+import type { PgHandle } from '../../../server/db/client'
+import { freshPgDb } from '../../utils/db'
 
-export const DATABASE_URL = process.env.DATABASE_URL ?? ''
 /** Why the PostgreSQL tests are skipped, or null when they run. */
-export const PG_SKIP = DATABASE_URL ? null : 'DATABASE_URL is not set: no PostgreSQL server to test the shared store against'
+export const PG_SKIP = process.env.DATABASE_URL ? null : 'DATABASE_URL is not set: no PostgreSQL server to test the shared store against'
 
 export interface ScratchDatabase {
-  name: string
-  url: string
   pool: pg.Pool
   /** Another pool on the database (a second app instance), ended by `drop()`. */
   openPool(): pg.Pool
@@ -21,32 +18,19 @@ export interface ScratchDatabase {
   drop(): Promise<void>
 }
 
-/** A fresh, migrated database (name prefix from PENUMBRA_TEST_DB_PREFIX, default `penumbra_test_`). */
 export async function scratchDatabase(): Promise<ScratchDatabase> {
-  const name = `${process.env.PENUMBRA_TEST_DB_PREFIX ?? 'penumbra_test_'}${randomBytes(6).toString('hex')}`
-  const admin = new pg.Client({ connectionString: DATABASE_URL })
-  await admin.connect()
-  try {
-    await admin.query(`CREATE DATABASE ${name}`)
-  } finally {
-    await admin.end()
-  }
-  const url = new URL(DATABASE_URL)
-  url.pathname = `/${name}`
-  const pools: pg.Pool[] = []
-  const openPool = () => {
-    const pool = new pg.Pool({ connectionString: url.toString(), max: 4 })
-    pools.push(pool)
-    return pool
-  }
-  const pool = openPool()
-  await migratePgDatabase(pool)
+  const handle = (await freshPgDb()) as PgHandle
+  const { pool } = handle
+  const url = (pool as unknown as { options: { connectionString: string } }).options.connectionString
+  const others: pg.Pool[] = []
   let owned = false
   return {
-    name,
-    url: url.toString(),
     pool,
-    openPool,
+    openPool() {
+      const other = new pg.Pool({ connectionString: url, max: 4 })
+      others.push(other)
+      return other
+    },
     async addSheet(sheetId) {
       const now = Date.now()
       if (!owned) {
@@ -57,14 +41,8 @@ export async function scratchDatabase(): Promise<ScratchDatabase> {
       await pool.query(`INSERT INTO sheets (id, lab_id, title, created_by, created_at, updated_at) VALUES ($1, 'lab', 'Edge model of film B', 'owner', $2, $2)`, [sheetId, now])
     },
     async drop() {
-      await Promise.all(pools.map((p) => p.end()))
-      const again = new pg.Client({ connectionString: DATABASE_URL })
-      await again.connect()
-      try {
-        await again.query(`DROP DATABASE IF EXISTS ${name} WITH (FORCE)`)
-      } finally {
-        await again.end()
-      }
+      await Promise.all(others.splice(0).map((p) => p.end()))
+      await handle.close()
     },
   }
 }

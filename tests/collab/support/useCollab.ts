@@ -63,7 +63,7 @@ export function useCollab(options: CollabHookOptions = {}): CollabHook {
     for (const s of servers.splice(0).reverse()) await s.close()
     if (server) await server.close()
     server = null
-    lab?.handle.close()
+    await lab?.handle.close()
     lab = null
   })
 

@@ -59,7 +59,7 @@ describe('the exported live document', () => {
 
 describe('the routes and the command line', () => {
   it('POST /api/evaluate answers 400 naming cells[5].window', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const res = await call(t, lab.users.viewer.cookie).post('/api/evaluate', withFit({ window: [1.2, 1.6] }))
     expect(res.status).toBe(400)
@@ -67,7 +67,7 @@ describe('the routes and the command line', () => {
   })
 
   it('POST /api/labs/:labId/sheets (import) answers 400 naming the field', async () => {
-    const t = makeTestApp()
+    const t = await makeTestApp()
     const lab = await seedLab(t)
     const res = await call(t, lab.users.owner.cookie).post(`/api/labs/${lab.labId}/sheets`, withFit({ window: [1.2, 1.6] }))
     expect(res.status).toBe(400)
