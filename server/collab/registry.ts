@@ -29,10 +29,10 @@ import { encodeAwarenessEntries, encodeAwarenessMessage, encodeSyncStep1, encode
  * hole keeps the log short under constant typing (the state may hold later rows too: applying them again on load
  * changes nothing). One instance alone always holds them all.
  */
-function knownPrefix(entry: DocEntry): number[] {
-  const sorted = entry.seqs.slice().sort((a, b) => a - b)
+function knownPrefix(uptoSeq: number, seqs: readonly number[]): number[] {
+  const sorted = seqs.filter((s) => s > uptoSeq).sort((a, b) => a - b)
   let n = 0
-  while (n < sorted.length && sorted[n] === entry.uptoSeq + n + 1) n++
+  while (n < sorted.length && sorted[n] === uptoSeq + n + 1) n++
   return n === sorted.length ? sorted : sorted.slice(0, n)
 }
 
@@ -99,6 +99,8 @@ export interface DocEntry {
   unloading: boolean
   /** A compaction of an asynchronous store is waiting or in flight. */
   compacting: boolean
+  /** Callers waiting for the compaction the next flush is to run right after its commit (asynchronous stores). */
+  compactWanted: ((compacted: boolean) => void)[] | null
 }
 
 /** A sheet whose document is being loaded: the bus events heard for it meanwhile, applied once it is in memory. */
@@ -113,6 +115,20 @@ type SheetEvent = Extract<BusEvent, { type: 'update' | 'awareness' }>
 interface QueuedRow {
   entry: DocEntry
   row: PendingRow
+  /** Its seq once an asynchronous commit stored it. */
+  seq?: number
+}
+
+/**
+ * A document's state taken when an asynchronous commit began: it holds exactly the rows known then and the rows of
+ * that commit, so it may cover them once the commit has succeeded, however much was typed meanwhile.
+ */
+interface Snapshot {
+  entry: DocEntry
+  state: Uint8Array
+  known: number[]
+  rows: QueuedRow[]
+  waiters: ((compacted: boolean) => void)[]
 }
 /** A frame for one peer, or for every peer of the document but one (`except`, the sender of a relayed update). */
 type QueuedSend = { entry: DocEntry; frame: Uint8Array } & ({ peer: RegistryPeer } | { peer: null; except: unknown })
@@ -142,6 +158,8 @@ export class DocumentRegistry {
   /** Work that waits for the store work in flight, run in order once it settles. */
   private waiting: (() => void)[] = []
   private flushWaiting = false
+  /** The store has answered with a Promise at least once. */
+  private asyncStore = false
   private readonly unsubscribe: () => void
   private closed = false
   readonly counters: RegistryCounters = {
@@ -227,6 +245,7 @@ export class DocumentRegistry {
       gapTimer: null,
       unloading: false,
       compacting: false,
+      compactWanted: null,
     }
     doc.on('update', (update: Uint8Array, origin: unknown) => this.onDocUpdate(entry, update, origin))
     awareness.on('update', (changes: { added: number[]; updated: number[]; removed: number[] }, origin: unknown) =>
@@ -394,14 +413,58 @@ export class DocumentRegistry {
     if (rows.length > 0 || sends.length > 0) this.counters.flushes++
     const stored = this.commit(rows)
     if (isPromise(stored)) {
-      this.hold(stored.then((entries) => this.delivered(entries, sends)))
+      this.asyncStore = true
+      // Still the same turn of the event loop: the documents hold exactly the stored rows and this commit's.
+      const snapshots = this.snapshots(rows)
+      this.hold(stored.then((entries) => this.delivered(entries, sends, snapshots)))
       return
     }
     this.delivered(stored, sends)
   }
 
+  /** The documents of an asynchronous commit that are to be compacted right after it. */
+  private snapshots(rows: QueuedRow[]): Snapshot[] {
+    const byEntry = new Map<DocEntry, QueuedRow[]>()
+    for (const r of rows) {
+      const list = byEntry.get(r.entry)
+      if (list) list.push(r)
+      else byEntry.set(r.entry, [r])
+    }
+    const out: Snapshot[] = []
+    const now = Date.now()
+    for (const [entry, batch] of byEntry) {
+      const waiters = entry.compactWanted
+      entry.compactWanted = null
+      const grown = entry.seqs.length + batch.length >= this.options.compactEvery && now >= entry.compactAfter
+      if (entry.broken || entry.compacting || (!waiters && !grown)) {
+        for (const w of waiters ?? []) w(false)
+        continue
+      }
+      out.push({ entry, state: Y.encodeStateAsUpdate(entry.doc), known: entry.seqs.slice(), rows: batch, waiters: waiters ?? [] })
+    }
+    return out
+  }
+
+  /** Compacts each snapshot over the rows known when it was taken and the rows its commit stored. */
+  private compactSnapshots(snapshots: Snapshot[]): Promise<void> | void {
+    const runs: Promise<unknown>[] = []
+    for (const snap of snapshots) {
+      const { entry } = snap
+      const stored = snap.rows.filter((r) => r.seq !== undefined).map((r) => r.seq!)
+      const covered = entry.broken || this.entries.get(entry.sheetId) !== entry ? [] : knownPrefix(entry.uptoSeq, [...snap.known, ...stored])
+      if (covered.length === 0 || covered.length * 2 < snap.known.length + stored.length) {
+        for (const w of snap.waiters) w(false)
+        continue
+      }
+      const done = this.runCompaction(entry, snap.state, covered)
+      if (isPromise(done)) runs.push(done.then((ok) => snap.waiters.forEach((w) => w(ok))))
+      else for (const w of snap.waiters) w(done)
+    }
+    if (runs.length > 0) return Promise.all(runs).then(() => {})
+  }
+
   /** After a commit: sends the frames queued with it, then compacts what has grown. */
-  private delivered(stored: Set<DocEntry>, sends: QueuedSend[]): void {
+  private delivered(stored: Set<DocEntry>, sends: QueuedSend[], snapshots?: Snapshot[]): Promise<void> | void {
     for (const send of sends) {
       const { entry, frame, peer } = send
       if (entry.broken) continue
@@ -417,6 +480,12 @@ export class DocumentRegistry {
         this.counters.messagesRelayed++
       }
     }
+    if (snapshots) {
+      // An asynchronous commit: documents it wrote to are compacted from their snapshots, as part of this store work.
+      for (const entry of this.entries.values())
+        if (entry.seqs.length >= this.options.compactEvery && !stored.has(entry)) void this.compact(entry)
+      return this.compactSnapshots(snapshots)
+    }
     for (const entry of stored) if (entry.seqs.length >= this.options.compactEvery) this.compact(entry)
     for (const entry of this.entries.values())
       if (entry.seqs.length >= this.options.compactEvery && !stored.has(entry)) this.compact(entry)
@@ -429,33 +498,46 @@ export class DocumentRegistry {
    */
   compact(entry: DocEntry): boolean | Promise<boolean> {
     if (entry.broken || entry.compacting || entry.seqs.length === 0 || Date.now() < entry.compactAfter) return false
+    const pending = this.rows.some((r) => r.entry === entry)
+    // Rows typed and not yet stored: with an asynchronous store the next commit takes them and snapshots the document.
+    if (pending && (this.busy || this.asyncStore)) return this.compactWithNextFlush(entry)
     if (this.busy) return this.compactLater(entry)
-    if (this.rows.some((r) => r.entry === entry)) {
+    if (pending) {
       this.flush()
       if (this.busy) return this.compactLater(entry)
       if (entry.broken || entry.seqs.length === 0) return false
     }
     if (this.entries.get(entry.sheetId) !== entry) return false
-    const covered = knownPrefix(entry)
+    const covered = knownPrefix(entry.uptoSeq, entry.seqs)
     // Most rows known here lie beyond a hole (another instance's rows not heard of yet): wait for it to fill.
     if (covered.length * 2 < entry.seqs.length) return false
-    const state = Y.encodeStateAsUpdate(entry.doc)
+    const done = this.runCompaction(entry, Y.encodeStateAsUpdate(entry.doc), covered)
+    if (isPromise(done)) this.hold(done)
+    return done
+  }
+
+  private runCompaction(entry: DocEntry, state: Uint8Array, covered: number[]): boolean | Promise<boolean> {
     let outcome
     try {
       outcome = this.options.store.compact(entry.sheetId, state, entry.uptoSeq, covered)
     } catch (err) {
       return this.compactFailed(entry, err)
     }
-    if (isPromise(outcome)) {
-      entry.compacting = true
-      const done = outcome.then(
+    if (!isPromise(outcome)) return this.compacted(entry, outcome)
+    entry.compacting = true
+    return outcome
+      .then(
         (o) => this.compacted(entry, o),
         (err: unknown) => this.compactFailed(entry, err),
       )
-      this.hold(done)
-      return done.finally(() => (entry.compacting = false))
-    }
-    return this.compacted(entry, outcome)
+      .finally(() => (entry.compacting = false))
+  }
+
+  private compactWithNextFlush(entry: DocEntry): Promise<boolean> {
+    return new Promise<boolean>((resolve) => {
+      ;(entry.compactWanted ??= []).push(resolve)
+      this.flush()
+    })
   }
 
   private compactLater(entry: DocEntry): Promise<boolean> {
@@ -673,6 +755,7 @@ export class DocumentRegistry {
     if (seqs && isPromise(seqs))
       return seqs.then(
         (s) => {
+          live.forEach((r, i) => (r.seq = s[i]))
           this.recordStored(live, s, stored)
           return stored
         },
@@ -700,8 +783,10 @@ export class DocumentRegistry {
       }
       if (isPromise(batchSeqs))
         waits.push(
-          batchSeqs.then(
-            (s) => this.recordStored(batch, s, stored),
+          batchSeqs.then((s) => {
+            batch.forEach((r, i) => (r.seq = s[i]))
+            this.recordStored(batch, s, stored)
+          },
             (err: unknown) => this.storeFailed(batch, err),
           ),
         )

@@ -25,6 +25,9 @@ const ROWS_PER_INSERT = 200
 export function createPgStore(pool: Pool): CollabStore {
   async function inTransaction<T>(work: (client: PoolClient) => Promise<T>): Promise<T> {
     const client = await pool.connect()
+    // A connection lost while checked out reports here as well as failing the query: the query's error is the one used.
+    const onError = () => {}
+    client.on('error', onError)
     try {
       await client.query('BEGIN')
       const out = await work(client)
@@ -34,6 +37,7 @@ export function createPgStore(pool: Pool): CollabStore {
       await client.query('ROLLBACK').catch(() => {})
       throw err
     } finally {
+      client.off('error', onError)
       client.release()
     }
   }

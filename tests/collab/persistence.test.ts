@@ -5,7 +5,7 @@ import { eq } from 'drizzle-orm'
 import { sheets, sheetUpdates } from '../../server/db/tables'
 import * as Y from 'yjs'
 import { cellsOf, docToSheetFile, sheetFileToDoc } from '../../shared/doc/sheetDoc'
-import { loadDocument, storedUpdates } from '../../server/services/documents'
+import { loadDocument, readStoredUpdates } from '../../server/services/documents'
 import { CLOSE, createMemoryBus } from '../../server/collab/index'
 import { buildDocument } from '../../server/collab/store'
 import { DEMO_SHEET, storedRows, until } from './support/fixture'
@@ -54,7 +54,7 @@ describe('collab: update log', () => {
     expect(stats.counters.compactions).toBeGreaterThanOrEqual(5)
     // Never the whole history in the log: bounded by the compaction threshold plus one flush's batch.
     expect(maxRows).toBeLessThan(1000)
-    const stored = storedUpdates(t.lab.handle.db, t.lab.sheetId)
+    const stored = await readStoredUpdates(t.lab.handle.db, t.lab.sheetId)
     expect(stored.uptoSeq).toBeGreaterThan(0)
     expect(stored.updates.length).toBeLessThan(500)
 

@@ -43,7 +43,7 @@ describe('collab: a session that ends', () => {
       },
     })
     const hash = await hashPassword(config, PASSWORD)
-    t.lab.handle.db.update(users).set({ passwordHash: hash }).where(eq(users.id, t.lab.userIds.editor)).run()
+    await t.lab.handle.db.update(users).set({ passwordHash: hash }).where(eq(users.id, t.lab.userIds.editor))
     const post = (person: Person | null, path: string, body?: object) => {
       const r = request(app).post(path).set(CSRF_HEADER, '1')
       return (person ? r.set('Cookie', `${SESSION_COOKIE}=${t.lab.tokens[person]}`) : r).send(body)

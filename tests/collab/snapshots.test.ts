@@ -44,8 +44,8 @@ describe('snapshots of a sheet being edited live', () => {
     await until(() => source(reviewer.doc).toString() === '3*Eg*2', 'the edit to reach the reviewer')
     const made = await as('editor').post(`/api/sheets/${t.lab.sheetId}/snapshots`, { message: 'tripled' })
     expect(made.status).toBe(201)
-    const row = () => t.lab.handle.db.select().from(snapshots).where(eq(snapshots.id, made.body.id)).get()!
-    const before = row()
+    const row = async () => (await t.lab.handle.db.select().from(snapshots).where(eq(snapshots.id, made.body.id)))[0]
+    const before = await row()
     expect(JSON.parse(before.file).cells.find((c: { name?: string }) => c.name === 'x').source).toBe('3*Eg*2')
     const x = JSON.parse(before.results).cells.find((c: { name?: string }) => c.name === 'x')
     expect(x.value).toBeCloseTo(1.48 * 6, 12)
@@ -54,7 +54,7 @@ describe('snapshots of a sheet being edited live', () => {
     source(reviewer.doc).insert(0, '7*')
     await until(() => reviewer.denied.length === 1, 'the reviewer’s update to be refused')
     await until(() => source(reviewer.doc).toString().startsWith('7*Eg*2') || source(editor.doc).toString() === 'Eg*2', 'the editor’s edit')
-    const after = row()
+    const after = await row()
     expect(after).toEqual(before)
     const detail = await as('viewer').get(`/api/snapshots/${made.body.id}`)
     expect(detail.body.hash).toBe(before.hash)
