@@ -122,6 +122,27 @@ describe('collab: a store that answers later', () => {
     expect(docToSheetFile(stored)).toEqual(docToSheetFile(a.doc))
   })
 
+  it('compacts while people type faster than the store answers: from the state taken as each commit began', async () => {
+    const slow = slowStore(t.lab, () => 4)
+    await t.start({ hooks: { store: slow.store }, compactEvery: 10, idleCompactMs: 60_000, sweepMs: 10 })
+    const a = t.connect('editor')
+    const b = t.connect('editor2')
+    await Promise.all([a.synced(), b.synced()])
+    let whileTyping = 0
+    for (let i = 0; i < 150; i++) {
+      formula(a.doc).insert(formula(a.doc).length, 'a')
+      formula(b.doc).insert(0, 'b')
+      await new Promise((r) => setTimeout(r, 1))
+      whileTyping = t.server.collab.stats().counters.compactions
+    }
+    // Every commit ended with more rows already waiting; compaction did not wait for a pause that never came.
+    expect(whileTyping).toBeGreaterThanOrEqual(3)
+    await until(() => formula(b.doc).toString() === formula(a.doc).toString() && formula(a.doc).length === 304, 'both edits at both')
+    expect(slow.maxInFlight()).toBe(1)
+    await t.server.close()
+    expect(docToSheetFile(await loadDocument(t.lab.handle.db, t.lab.sheetId))).toEqual(docToSheetFile(a.doc))
+  })
+
   it('relays nothing of a refused store: the sheet’s connections close to resync and the edit is nowhere', async () => {
     const slow = slowStore(t.lab)
     await t.start({ hooks: { store: slow.store } })
