@@ -99,6 +99,8 @@ export interface DocEntry {
   unloading: boolean
   /** A compaction of an asynchronous store is waiting or in flight. */
   compacting: boolean
+  /** Presence client ids announced through other instances: no peer here may take them over. */
+  remote: Set<number>
   /** Callers waiting for the compaction the next flush is to run right after its commit (asynchronous stores). */
   compactWanted: ((compacted: boolean) => void)[] | null
 }
@@ -246,6 +248,7 @@ export class DocumentRegistry {
       unloading: false,
       compacting: false,
       compactWanted: null,
+      remote: new Set(),
     }
     doc.on('update', (update: Uint8Array, origin: unknown) => this.onDocUpdate(entry, update, origin))
     awareness.on('update', (changes: { added: number[]; updated: number[]; removed: number[] }, origin: unknown) =>
@@ -319,7 +322,7 @@ export class DocumentRegistry {
         continue
       }
       const known = entry.awareness.meta.get(e.clientId)
-      const claim = controlled.size === 0 && e.state !== null && !this.controlledByOther(entry, peer, e.clientId)
+      const claim = controlled.size === 0 && e.state !== null && !this.controlledByOther(entry, peer, e.clientId) && !entry.remote.has(e.clientId)
       if (known && known.clock >= e.clock) {
         // A reconnecting client announces its state at the clock it had, which the removal on its old connection's
         // close went past: lift it above the known clock (the client adopts the echoed clock), or it would stay
@@ -720,6 +723,8 @@ export class DocumentRegistry {
   private onAwarenessUpdate(entry: DocEntry, changes: { added: number[]; updated: number[]; removed: number[] }, origin: unknown): void {
     const clients = [...changes.added, ...changes.updated, ...changes.removed]
     if (clients.length === 0) return
+    if (origin === BUS_ORIGIN) for (const id of [...changes.added, ...changes.updated]) entry.remote.add(id)
+    for (const id of changes.removed) entry.remote.delete(id)
     const frame = encodeAwarenessMessage(entry.awareness, clients)
     // Everyone, the sender included: a reader's own echo is what keeps its otherwise silent link alive.
     this.sends.push({ entry, frame, peer: null, except: null })

@@ -7,6 +7,7 @@ import { cellsOf, docToSheetFile } from '../../shared/doc/sheetDoc'
 import { loadDocument } from '../../server/services/documents'
 import { createMemoryBus, type CollabBus } from '../../server/collab/index'
 import { storedRows, until } from './support/fixture'
+import { awarenessFrame } from './support/frames'
 import { useCollab } from './support/useCollab'
 
 function text(doc: Y.Doc): Y.Text {
@@ -82,5 +83,22 @@ describe('collab: two instances sharing one log', () => {
     await until(() => formula(b.doc) === 'Eg*2 lost heard', 'both edits at b')
     expect(two.collab.stats().counters.catchUps).toBe(1)
     expect(two.collab.stats().sheets[0]).toMatchObject({ rowsSinceCompaction: 2 })
+  })
+
+  it('a peer on one instance cannot take over the presence of a person on the other', async () => {
+    const bus = createMemoryBus()
+    const one = await t.start({ bus, instanceId: 'one' })
+    const two = await t.another({ bus, instanceId: 'two' })
+    const a = t.connect('editor', { server: one })
+    const b = t.connect('editor2', { server: two })
+    await Promise.all([a.synced(), b.synced()])
+    a.provider.awareness.setLocalStateField('cell', 'cx')
+    await until(() => b.provider.awareness.getStates().get(a.doc.clientID)?.cell === 'cx', 'a’s presence at b')
+    // Someone on instance two announces a's client id with a later clock.
+    const raw = await t.raw('viewer', { server: two })
+    raw.ws.send(awarenessFrame([{ clientId: a.doc.clientID, clock: 1_000, state: { cell: 'cEg' } }]))
+    await until(() => two.collab.stats().counters.awarenessRefused === 1, 'the claim to be refused')
+    expect(b.provider.awareness.getStates().get(a.doc.clientID)?.cell).toBe('cx')
+    expect(a.provider.awareness.getStates().get(a.doc.clientID)?.cell).toBe('cx')
   })
 })
