@@ -19,17 +19,15 @@ import os from 'node:os'
 import path from 'node:path'
 import { fileURLToPath } from 'node:url'
 import { randomUUID } from 'node:crypto'
-import WebSocket, { WebSocketServer } from 'ws'
+import { WebSocketServer } from 'ws'
 import * as Y from 'yjs'
-import * as encoding from 'lib0/encoding'
 import { openDb } from '../../server/db/client'
 import { labs, memberships, sheets, users } from '../../server/db/schema'
-import { SESSION_COOKIE, signSession } from '../../server/services/sessions'
+import { signSession } from '../../server/services/sessions'
 import { seedDocument } from '../../server/services/documents'
 import { createCollab } from '../../server/collab/index'
-import { cellsOf } from '../../shared/doc/sheetDoc'
 import { printBench, printTarget } from '../harness'
-import type { SheetFile } from '../../shared/schema/sheet'
+import { percentile, seededRandom, typeRound, typingSheet } from '../typing'
 
 const EDITORS = 50
 const UPDATES_PER_EDITOR = 30
@@ -62,15 +60,6 @@ export interface LatencyReport {
   targetMet: boolean
 }
 
-function sheetFile(): SheetFile {
-  return {
-    format: 'penumbra.sheet',
-    version: 1,
-    title: 'Fifty-hand edge model',
-    cells: Array.from({ length: EDITORS }, (_, i) => ({ id: `f${i}`, kind: 'formula' as const, name: `x${i}`, source: `${i}*eV`, unit: 'eV' })),
-  }
-}
-
 /** Median time of one single-row commit with WAL and synchronous FULL on this disk (200 commits): the fsync floor. */
 function commitMs(file: string): number {
   const probe = openDb(file, { durability: 'FULL' })
@@ -91,30 +80,6 @@ function commitMs(file: string): number {
 }
 
 /** mulberry32: a small seeded generator, so every run types on the same schedule. */
-function seededRandom(seed: number): () => number {
-  let a = seed >>> 0
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0
-    let t = a
-    t = Math.imul(t ^ (t >>> 15), t | 1)
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
-  }
-}
-
-function percentile(sorted: Float64Array, p: number): number {
-  if (sorted.length === 0) return NaN
-  return sorted[Math.min(sorted.length - 1, Math.max(0, Math.ceil((p / 100) * sorted.length) - 1))]
-}
-
-function updateFrame(update: Uint8Array): Uint8Array {
-  const e = encoding.createEncoder()
-  encoding.writeVarUint(e, 0)
-  encoding.writeVarUint(e, 2)
-  encoding.writeVarUint8Array(e, update)
-  return encoding.toUint8Array(e)
-}
-
 // ---------------------------------------------------------------------------------------------- child servers ---
 
 async function runChildServer(kind: string): Promise<void> {
@@ -203,31 +168,6 @@ async function stopChild(child: ChildProcess): Promise<void> {
 
 // ---------------------------------------------------------------------------------------------------- editors ---
 
-interface Editor {
-  ws: WebSocket
-  doc: Y.Doc
-  text: Y.Text
-}
-
-async function openEditors(port: number, sheetId: string, tokens: string[], seed: Uint8Array, onFrame: (who: number, data: Buffer) => void): Promise<Editor[]> {
-  return Promise.all(
-    tokens.map(
-      (token, i) =>
-        new Promise<Editor>((resolve, reject) => {
-          const ws = new WebSocket(`ws://127.0.0.1:${port}/collab/${sheetId}`, { headers: { Cookie: `${SESSION_COOKIE}=${token}` } })
-          const doc = new Y.Doc()
-          Y.applyUpdate(doc, seed)
-          const text = cellsOf(doc).get(i).get('source') as Y.Text
-          ws.on('message', (data: Buffer) => onFrame(i, data))
-          ws.once('open', () => resolve({ ws, doc, text }))
-          ws.once('error', reject)
-        }),
-    ),
-  )
-}
-
-const MARKER = /k(\d+)-(\d+);/g
-
 type Kind = 'real' | 'bare' | 'real-full'
 
 interface Round {
@@ -238,47 +178,9 @@ interface Round {
 
 async function runRound(kind: Kind, env: Record<string, string>, sheetId: string, tokens: string[], seed: Uint8Array, offsets: readonly number[]): Promise<Round> {
   const { child, port, cpuMs } = await startChild(kind, env)
-  const sent = new Map<string, number>()
-  const latencies: number[] = []
-  let received = 0
-  const onFrame = (who: number, data: Buffer) => {
-    if (data[0] !== 0 || data[1] !== 2) return
-    const now = performance.now()
-    const text = data.toString('latin1')
-    for (const m of text.matchAll(MARKER)) {
-      if (Number(m[1]) === who) continue
-      const t0 = sent.get(`${m[1]}-${m[2]}`)
-      if (t0 === undefined) continue
-      received++
-      if (Number(m[2]) >= WARMUP_UPDATES) latencies.push(now - t0)
-    }
-  }
-  const editors = await openEditors(port, sheetId, tokens, seed, onFrame)
-  await new Promise((r) => setTimeout(r, 300))
-  await Promise.all(
-    editors.map(
-      (editor, i) =>
-        new Promise<void>((resolve) => {
-          let seq = 0
-          editor.doc.on('update', (update: Uint8Array) => editor.ws.send(updateFrame(update)))
-          const tick = () => {
-            const marker = `k${i}-${seq};`
-            sent.set(`${i}-${seq}`, performance.now())
-            editor.text.insert(editor.text.length, marker)
-            seq++
-            if (seq < UPDATES_PER_EDITOR) setTimeout(tick, INTERVAL_MS)
-            else resolve()
-          }
-          setTimeout(tick, offsets[i])
-        }),
-    ),
-  )
-  const expected = EDITORS * UPDATES_PER_EDITOR * (EDITORS - 1)
-  const deadline = Date.now() + 15_000
-  while (received < expected && Date.now() < deadline) await new Promise((r) => setTimeout(r, 20))
-  for (const e of editors) e.ws.terminate()
+  const round = await typeRound({ portOf: () => port, sheetId, tokens, seed, offsets, updatesPerEditor: UPDATES_PER_EDITOR, intervalMs: INTERVAL_MS, warmupUpdates: WARMUP_UPDATES })
   await stopChild(child)
-  return { latencies, missing: expected - received, cpuMs: await cpuMs }
+  return { ...round, cpuMs: await cpuMs }
 }
 
 function summarise(rounds: Round[]): LatencySummary {
@@ -298,7 +200,7 @@ export default async function collabLatency(): Promise<LatencyReport> {
   try {
     const dbFile = path.join(dir, 'bench.db')
     const seedFile = path.join(dir, 'seed.bin')
-    const file = sheetFile()
+    const file = typingSheet(EDITORS)
     const handle = openDb(dbFile)
     const now = Date.now()
     const secret = Buffer.from(SECRET_HEX, 'hex')
