@@ -7,12 +7,14 @@
  */
 import http from 'node:http'
 import path from 'node:path'
-import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs'
-import { randomBytes } from 'node:crypto'
+import { existsSync, mkdirSync } from 'node:fs'
 import { fileURLToPath, pathToFileURL } from 'node:url'
 import type { AddressInfo } from 'node:net'
 import type { Duplex } from 'node:stream'
 import { createApp } from './app'
+import { loadSecret } from './secret'
+
+export { loadSecret }
 import { defaultConfig, type AppConfig } from './config'
 import { openDb, openPgDb, type AnyDbHandle } from './db/client'
 import { dialectFromUrl } from './db/dialect'
@@ -70,18 +72,6 @@ export interface RunningServer {
   close(): Promise<void>
 }
 
-/** PENUMBRA_SECRET, or a random secret generated once and kept in DATA_DIR/session-secret. */
-export function loadSecret(dataDir: string, fromEnv: string | undefined, warn: (m: string) => void): Uint8Array {
-  if (fromEnv) {
-    if (fromEnv.length < 32) warn('PENUMBRA_SECRET is shorter than 32 characters; use a long random value.')
-    return new TextEncoder().encode(fromEnv)
-  }
-  const file = path.join(dataDir, 'session-secret')
-  if (!existsSync(file)) writeFileSync(file, randomBytes(32).toString('base64url') + '\n', { mode: 0o600, flag: 'wx' })
-  const text = readFileSync(file, 'utf8').trim()
-  if (text.length < 32) throw new Error(`${file} holds a secret that is too short; delete it to generate a new one.`)
-  return new TextEncoder().encode(text)
-}
 
 function parseTrustProxy(value: string | undefined): AppConfig['trustProxy'] {
   if (!value) return false

@@ -11,5 +11,12 @@ export function dialectFromUrl(url: string | undefined): Dialect {
   throw new Error(`DATABASE_URL must be a PostgreSQL address (postgres://user@host:port/database) or unset for SQLite; got "${value.split(':')[0]}:…"`)
 }
 
-/** The process's dialect. */
-export const DIALECT: Dialect = dialectFromUrl(globalThis.process?.env?.DATABASE_URL)
+/** The process's dialect; a DATABASE_URL naming another database stops the process with the reason. */
+export const DIALECT: Dialect = (() => {
+  try {
+    return dialectFromUrl(globalThis.process?.env?.DATABASE_URL)
+  } catch (err) {
+    console.error(`Penumbra could not start: ${(err as Error).message}`)
+    process.exit(1)
+  }
+})()

@@ -121,7 +121,7 @@ if (process.argv[1] && import.meta.url === pathToFileURL(path.resolve(process.ar
   const where = handle.dialect === 'pg' ? 'PostgreSQL (DATABASE_URL)' : dataDir
   if (!(await isEmpty(handle.db))) console.log(`The database in ${where} already has accounts; nothing seeded.`)
   else {
-    const { loadSecret } = await import('../index')
+    const { loadSecret } = await import('../secret')
     const { closeSharedEvaluator } = await import('../services/evaluation')
     const secret = loadSecret(dataDir, process.env.PENUMBRA_SECRET, (m) => console.warn(m))
     const result = await seedDemo({ db: handle.db, config: defaultConfig({ publicUrl: process.env.PUBLIC_URL ?? 'http://localhost:3000' }) }, { secret })

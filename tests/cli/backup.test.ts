@@ -1,7 +1,7 @@
 // `npm run backup`: an online copy of the embedded database, taken while another connection keeps writing, that opens,
 // passes SQLite's integrity check and holds every row committed before the copy began.
 import { afterEach, describe, expect, it } from 'vitest'
-import { spawn, spawnSync } from 'node:child_process'
+import { spawn } from 'node:child_process'
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs'
 import os from 'node:os'
 import path from 'node:path'

@@ -80,7 +80,8 @@ export async function freshPgDb(): Promise<AnyDbHandle> {
   const source = await ensureTemplate()
   const name = `${PREFIX}${process.pid}_${randomBytes(6).toString('hex')}`
   await adminPool().query(`CREATE DATABASE ${name} TEMPLATE ${source}`)
-  const handle = await openPgDb(urlFor(name), { migrate: false, max: 4 })
+  // dropping the database ends any connection still open: not worth a warning here
+  const handle = await openPgDb(urlFor(name), { migrate: false, max: 4, log: () => {} })
   const closePool = handle.close
   let dropped: Promise<void> | null = null
   handle.close = () =>
