@@ -67,51 +67,53 @@ interface Seeder {
   close(): Promise<void>
 }
 
-function pgSeeder(url: string): Seeder {
+/** Plain SQL on either database, with PostgreSQL-style $n placeholders (SQLite gets `?` in the same order). */
+interface Sql {
+  run(text: string, params: unknown[]): Promise<unknown>
+  rows<T>(text: string, params: unknown[]): Promise<T[]>
+  close(): Promise<void>
+}
+
+function pgSql(url: string): Sql {
   const pool = new pg.Pool({ connectionString: url, max: 2 })
+  return {
+    run: (text, params) => pool.query(text, params),
+    rows: async <T,>(text: string, params: unknown[]) => (await pool.query(text, params)).rows as T[],
+    close: () => pool.end(),
+  }
+}
+
+function sqliteSql(file: string): Sql {
+  const db = new Database(file)
+  db.pragma('busy_timeout = 5000')
+  const prepare = (text: string) => db.prepare(text.replace(/\$\d+/g, '?'))
+  return {
+    run: async (text, params) => prepare(text).run(...params),
+    rows: async <T,>(text: string, params: unknown[]) => prepare(text).all(...params) as T[],
+    close: async () => void db.close(),
+  }
+}
+
+function seeder(sql: Sql): Seeder {
   return {
     async addEditors(labId, count) {
       const ids: string[] = []
       const now = Date.now()
       for (let i = 0; i < count; i++) {
         const id = randomUUID()
-        await pool.query('INSERT INTO users (id, email, name, password_hash, created_at) VALUES ($1, $2, $3, $4, $5)', [id, `typist${i}@halvorsen-lab.example`, `Typist ${i}`, 'bench', now])
-        await pool.query('INSERT INTO memberships (lab_id, user_id, role, created_at) VALUES ($1, $2, $3, $4)', [labId, id, 'editor', now])
+        await sql.run('INSERT INTO users (id, email, name, password_hash, created_at) VALUES ($1, $2, $3, $4, $5)', [id, `typist${i}@halvorsen-lab.example`, `Typist ${i}`, 'bench', now])
+        await sql.run('INSERT INTO memberships (lab_id, user_id, role, created_at) VALUES ($1, $2, $3, $4)', [labId, id, 'editor', now])
         ids.push(id)
       }
       return ids
     },
     async state(sheetId) {
       return docState(
-        (await pool.query<{ state: Buffer }>('SELECT state FROM sheet_states WHERE sheet_id = $1', [sheetId])).rows[0]?.state,
-        (await pool.query<{ update: Buffer }>('SELECT "update" FROM sheet_updates WHERE sheet_id = $1 ORDER BY seq', [sheetId])).rows.map((r) => r.update),
+        (await sql.rows<{ state: Buffer }>('SELECT state FROM sheet_states WHERE sheet_id = $1', [sheetId]))[0]?.state,
+        (await sql.rows<{ update: Buffer }>('SELECT "update" FROM sheet_updates WHERE sheet_id = $1 ORDER BY seq', [sheetId])).map((r) => r.update),
       )
     },
-    close: () => pool.end(),
-  }
-}
-
-function sqliteSeeder(file: string): Seeder {
-  const db = new Database(file)
-  db.pragma('busy_timeout = 5000')
-  return {
-    async addEditors(labId, count) {
-      const ids: string[] = []
-      const now = Date.now()
-      for (let i = 0; i < count; i++) {
-        const id = randomUUID()
-        db.prepare('INSERT INTO users (id, email, name, password_hash, created_at) VALUES (?, ?, ?, ?, ?)').run(id, `typist${i}@halvorsen-lab.example`, `Typist ${i}`, 'bench', now)
-        db.prepare('INSERT INTO memberships (lab_id, user_id, role, created_at) VALUES (?, ?, ?, ?)').run(labId, id, 'editor', now)
-        ids.push(id)
-      }
-      return ids
-    },
-    async state(sheetId) {
-      const row = db.prepare('SELECT state FROM sheet_states WHERE sheet_id = ?').get(sheetId) as { state: Buffer } | undefined
-      const rows = db.prepare('SELECT "update" FROM sheet_updates WHERE sheet_id = ? ORDER BY seq').all(sheetId) as { update: Buffer }[]
-      return docState(row?.state, rows.map((r) => r.update))
-    },
-    close: async () => void db.close(),
+    close: () => sql.close(),
   }
 }
 
@@ -173,8 +175,8 @@ export default async function scale(): Promise<void> {
     const options = { databaseUrl: db.url, redisUrl: svc.redisUrl, secret }
     instances.push(await startInstance('bench-a', options))
     instances.push(...(await Promise.all([startInstance('bench-b', options), startInstance('bench-c', options)])))
-    const seeder = pgSeeder(db.url)
-    const setup = await setUp(instances[0], seeder, secret)
+    const pgSeed = seeder(pgSql(db.url))
+    const setup = await setUp(instances[0], pgSeed, secret)
     const one = round(setup, () => instances[0].port)
     const spread = round(setup, (i) => instances[i % 3].port)
     await one()
@@ -190,7 +192,7 @@ export default async function scale(): Promise<void> {
         oneRounds.push(await one())
       }
     }
-    await seeder.close()
+    await pgSeed.close()
     await Promise.all(instances.splice(0).map((i) => i.stop()))
 
     // the embedded default for reference: one instance on SQLite, no Redis
@@ -199,7 +201,7 @@ export default async function scale(): Promise<void> {
     instances.push(lone)
     const sqliteFile = path.join(sqliteDir, 'penumbra.sqlite')
     if (!existsSync(sqliteFile)) throw new Error(`the SQLite instance has no database at ${sqliteFile}`)
-    const sqliteSeed = sqliteSeeder(sqliteFile)
+    const sqliteSeed = seeder(sqliteSql(sqliteFile))
     const sqliteSetup = await setUp(lone, sqliteSeed, secret)
     const sqliteRound = round(sqliteSetup, () => lone.port)
     await sqliteRound()
