@@ -15,6 +15,7 @@ import { CLOSE } from '../../server/collab/index'
 import { cellsOf } from '../../shared/doc/sheetDoc'
 import { CSRF_HEADER } from '../../shared/schema/api'
 import { connectClient, until, upgradeStatus, type Client } from '../collab/support/fixture'
+import { emptyPgDatabase, ON_POSTGRES } from '../utils/db'
 
 const dataDir = mkdtempSync(path.join(tmpdir(), 'penumbra-live-'))
 let server: RunningServer
@@ -56,7 +57,9 @@ function live(sheetId: string, who: string): Client {
 }
 
 beforeAll(async () => {
-  server = await startServer({ DATA_DIR: dataDir, PORT: '0', HOST: '127.0.0.1', NODE_ENV: 'development', PENUMBRA_SECRET: 'live-test-secret-0123456789abcdefghijkl' }, () => {})
+  // under DATABASE_URL the server gets an empty PostgreSQL database of its own, which it migrates and seeds
+  const database = ON_POSTGRES ? { DATABASE_URL: await emptyPgDatabase() } : {}
+  server = await startServer({ DATA_DIR: dataDir, PORT: '0', HOST: '127.0.0.1', NODE_ENV: 'development', PENUMBRA_SECRET: 'live-test-secret-0123456789abcdefghijkl', ...database }, () => {})
   for (const a of DEMO_ACCOUNTS) {
     const res = await fetch(`${server.url}/api/auth/sign-in`, { method: 'POST', headers: { 'Content-Type': 'application/json' }, body: JSON.stringify({ email: a.email, password: a.password }) })
     expect(res.status).toBe(200)
