@@ -8,6 +8,12 @@
 export type BusEvent =
   | { type: 'update'; sheetId: string; update: Uint8Array; seq: number }
   | { type: 'awareness'; sheetId: string; update: Uint8Array }
+  /**
+   * An instance that just read a sheet from the database tells the others how far its stored log reaches: one that
+   * holds the sheet with less catches up. Rows stored by an instance killed before it published them are found so,
+   * even when nobody edits the sheet again.
+   */
+  | { type: 'head'; sheetId: string; seq: number }
   | { type: 'membership'; labId: string; userId: string }
   | { type: 'sheet-deleted'; sheetId: string }
   /** Some of a person's sessions ended (sign-out, password change or reset): every instance checks their sockets now. */

@@ -2,7 +2,8 @@
  * The fan-out between app instances over Redis streams (DESIGN §10), selected by REDIS_URL.
  *
  * - One stream per sheet (`<prefix>sheet:<sheetId>`, trimmed to about `maxLen` entries, expiring after a day without
- *   a publication): stored updates with their seq, and presence (awareness), which is never stored.
+ *   a publication): stored updates with their seq, presence (awareness), which is never stored, and the head seq
+ *   an instance found when it loaded the sheet (so holders catch up on rows whose publication was lost).
  * - One control stream (`<prefix>control`): membership changes, ended sessions, deleted sheets.
  * - Each instance reads, on a connection of its own with a blocking XREAD, the control stream from the moment it
  *   started and the stream of every sheet it holds from the moment it began to load it (`watch`): whatever is
@@ -115,6 +116,11 @@ export function createRedisBus(url: string, options: RedisBusOptions = {}): Redi
     for (let i = 0; i + 1 < fields.length; i += 2) map.set(fields[i].toString(), fields[i + 1])
     if (map.get(F.instance)?.toString() === self) return null
     const type = map.get(F.type)?.toString()
+    if (type === 'head') {
+      const sheetId = sheetOfKey.get(key)
+      const seq = Number(map.get(F.seq)?.toString())
+      return sheetId && Number.isInteger(seq) ? { type: 'head', sheetId, seq } : null
+    }
     const data = map.get(F.data)
     if (!data) return null
     if (key === controlKey) return JSON.parse(data.toString()) as ControlEvent
@@ -202,6 +208,9 @@ export function createRedisBus(url: string, options: RedisBusOptions = {}): Redi
           return
         case 'awareness':
           append(sheetKey(event.sheetId), maxLen, [F.type, 'awareness', F.instance, instanceId, F.data, Buffer.from(event.update)], true)
+          return
+        case 'head':
+          append(sheetKey(event.sheetId), maxLen, [F.type, 'head', F.instance, instanceId, F.seq, String(event.seq)], true)
           return
         default:
           append(controlKey, controlMaxLen, [F.type, event.type, F.instance, instanceId, F.data, JSON.stringify(event)], false)

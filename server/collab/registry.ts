@@ -29,6 +29,13 @@ import { encodeAwarenessEntries, encodeAwarenessMessage, encodeSyncStep1, encode
  * hole keeps the log short under constant typing (the state may hold later rows too: applying them again on load
  * changes nothing). One instance alone always holds them all.
  */
+/** The highest seq a document's copy knows of (its state row's cover or a row above it). */
+function knownHead(entry: { uptoSeq: number; seqs: readonly number[] }): number {
+  let max = entry.uptoSeq
+  for (const seq of entry.seqs) if (seq > max) max = seq
+  return max
+}
+
 function knownPrefix(uptoSeq: number, seqs: readonly number[]): number[] {
   const sorted = seqs.filter((s) => s > uptoSeq).sort((a, b) => a - b)
   let n = 0
@@ -112,7 +119,7 @@ interface Loading {
   /** Deleted while it loaded: the load ends in a refusal instead of a document. */
   dropped: boolean
 }
-type SheetEvent = Extract<BusEvent, { type: 'update' | 'awareness' }>
+type SheetEvent = Extract<BusEvent, { type: 'update' | 'awareness' | 'head' }>
 
 interface QueuedRow {
   entry: DocEntry
@@ -258,6 +265,8 @@ export class DocumentRegistry {
     this.counters.documentsLoaded++
     // A long log (written by an older build, or a crash before compaction) is compacted right after the first flush.
     if (entry.seqs.length >= this.options.compactEvery) this.scheduleFlush()
+    const head = knownHead(entry)
+    if (head > 0) this.publish({ type: 'head', sheetId, seq: head })
     return entry
   }
 
@@ -813,6 +822,8 @@ export class DocumentRegistry {
       stored.add(r.entry)
       this.publish({ type: 'update', sheetId: r.row.sheetId, update: r.row.update, seq: seqs[i] })
     })
+    // a seq of our own above a hole: another instance's rows whose publication has not arrived (or never will)
+    for (const entry of stored) this.watchGap(entry)
     this.counters.rowsStored += rows.length
   }
 
@@ -842,6 +853,11 @@ export class DocumentRegistry {
       awarenessProtocol.applyAwarenessUpdate(entry.awareness, event.update, BUS_ORIGIN)
       return
     }
+    if (event.type === 'head') {
+      // the database holds rows this copy never heard of (their publication was lost): read them now
+      if (event.seq > knownHead(entry)) this.catchUp(entry)
+      return
+    }
     // A row this document already holds (from its load, or heard twice) is skipped. One the state row covers is
     // applied all the same: Yjs ignores what it has, and an instance that adopted another's compaction may lack it.
     if (entry.seqs.includes(event.seq)) return
@@ -854,9 +870,7 @@ export class DocumentRegistry {
 
   /** Seqs known here run without a hole from the state row up. */
   private contiguous(entry: DocEntry): boolean {
-    let max = entry.uptoSeq
-    for (const seq of entry.seqs) if (seq > max) max = seq
-    return max - entry.uptoSeq === entry.seqs.length
+    return knownHead(entry) - entry.uptoSeq === entry.seqs.length
   }
 
   /** A hole that outlasts `gapMs` means a row was stored but its publication never reached us: catch up. */

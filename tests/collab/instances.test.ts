@@ -85,6 +85,37 @@ describe('collab: two instances sharing one log', () => {
     expect(two.collab.stats().sheets[0]).toMatchObject({ rowsSinceCompaction: 2 })
   })
 
+  it('an instance that loads the sheet announces the stored head, so a holder catches up on a lost publication nobody follows', async () => {
+    const inner = createMemoryBus()
+    let lose = 0
+    const bus: CollabBus = {
+      publish(instanceId, event) {
+        if (event.type === 'update' && lose > 0) lose--
+        else inner.publish(instanceId, event)
+      },
+      subscribe: (instanceId, listener) => inner.subscribe(instanceId, listener),
+    }
+    // as if instance one were killed between storing a row and publishing it: no later seq reveals the hole
+    const one = await t.start({ bus, instanceId: 'one', gapMs: 60_000 })
+    const two = await t.another({ bus, instanceId: 'two', gapMs: 60_000 })
+    const a = t.connect('editor', { server: one })
+    const b = t.connect('editor2', { server: two })
+    await Promise.all([a.synced(), b.synced()])
+    lose = 1
+    text(a.doc).insert(4, ' stored, never heard')
+    await until(async () => (await storedRows(t.lab)) === 1, 'the edit stored (its publication lost)')
+    await new Promise((r) => setTimeout(r, 50))
+    expect(formula(b.doc)).toBe('Eg*2')
+    // a third instance opens the sheet (a restarted one, say): it reads the log and announces seq 1
+    const three = await t.another({ bus, instanceId: 'three' })
+    const c = t.connect('viewer', { server: three })
+    await c.synced()
+    expect(formula(c.doc)).toBe('Eg*2 stored, never heard')
+    await until(() => formula(b.doc) === 'Eg*2 stored, never heard', 'the stored edit at b')
+    expect(two.collab.stats().counters.catchUps).toBe(1)
+    expect(one.collab.stats().counters.catchUps).toBe(0)
+  })
+
   it('a peer on one instance cannot take over the presence of a person on the other', async () => {
     const bus = createMemoryBus()
     const one = await t.start({ bus, instanceId: 'one' })

@@ -174,7 +174,10 @@ describe.skipIf(!!skip)('three app instances on one PostgreSQL and one Redis', (
     await until(() => writer.provider.wsconnected && writer.provider.synced, 'the writer to reconnect to the restarted A', 20_000)
     const late = connect(C, sheetId, viewer)
     await late.synced()
-    await until(() => keystrokes(late.doc) === 400 && keystrokes(observer.doc) === 400, 'all 400 keystrokes on B and C', 20_000)
+    await until(() => keystrokes(late.doc) === 400 && keystrokes(observer.doc) === 400, 'all 400 keystrokes on B and C', 20_000).catch((err: Error) => {
+      const counts = `writer ${keystrokes(writer.doc)}, B ${keystrokes(observer.doc)}, C ${keystrokes(late.doc)}`
+      throw new Error(`${err.message} (${counts}); the restarted A printed:\n${A.output()}\nB printed:\n${B.output()}\nC printed:\n${C.output()}`)
+    })
     expect(formulaText(late.doc)).toBe(formulaText(writer.doc))
   }, 120_000)
 
