@@ -7,6 +7,7 @@
  */
 import type { Db, PgDb } from './client'
 import { isPostgres } from './client'
+import { sql } from 'drizzle-orm'
 
 const INSIDE = Symbol('penumbra.transaction')
 type TxDb = Db & { [INSIDE]?: true }
@@ -39,4 +40,14 @@ export async function transact<T>(db: Db, fn: (tx: Db) => Promise<T>): Promise<T
     if (queues.get(client) === mine) queues.delete(client)
     release()
   }
+}
+
+/**
+ * Inside a `transact` callback: holds a lock named `key` until the transaction ends, so checks that read several
+ * rows before writing (a lab keeps at least one owner) cannot interleave with the same check elsewhere. PostgreSQL:
+ * a transaction-level advisory lock (other instances wait for it). SQLite: nothing to do, BEGIN IMMEDIATE already
+ * admits one writer at a time.
+ */
+export async function lockFor(tx: Db, key: string): Promise<void> {
+  if (isPostgres(tx)) await (tx as unknown as PgDb).execute(sql`SELECT pg_advisory_xact_lock(hashtext(${key}))`)
 }

@@ -12,7 +12,7 @@ import { MAIL_LINK_ROUTES, type Invitation, type InvitationPreview } from '../..
 import type { LabRow } from '../types'
 import { createUser, linkTo, userByEmail, userById, type UserRow } from './accounts'
 import { queueMail } from './mail'
-import { transact } from '../db/transact'
+import { lockFor, transact } from '../db/transact'
 import { hashToken, newId, newToken } from './tokens'
 
 type InvitationRow = typeof invitations.$inferSelect
@@ -115,8 +115,15 @@ export async function acceptInvitation(
     ;({ invitation, lab } = await usableInvitation(deps, token))
   }
   await transact(deps.db, async (db) => {
+    await lockFor(db, `lab-members:${lab.id}:${user.id}`)
     if (await isMember({ db }, lab.id, user.id)) throw conflict(`You are already a member of ${lab.name}.`)
-    await db.update(invitations).set({ acceptedAt: Date.now(), acceptedBy: user.id }).where(eq(invitations.id, invitation.id))
+    // taken only if still unused: of two simultaneous accepts (two instances, say) exactly one gets it
+    const taken = await db
+      .update(invitations)
+      .set({ acceptedAt: Date.now(), acceptedBy: user.id })
+      .where(and(eq(invitations.id, invitation.id), isNull(invitations.acceptedAt)))
+      .returning({ id: invitations.id })
+    if (taken.length === 0) throw gone('This invitation has already been used. Ask the lab’s owner for a new one if you need it.')
     await db.insert(memberships).values({ labId: lab.id, userId: user.id, role: invitation.role, createdAt: Date.now() })
   })
   callHook(deps, 'membershipChanged', lab.id, user.id)

@@ -4,7 +4,7 @@ import type { AppDeps } from '../deps'
 import { callHook } from '../deps'
 import { labs, memberships, sheets, users, type Role } from '../db/tables'
 import { conflict, notFound } from '../errors'
-import { transact } from '../db/transact'
+import { lockFor, transact } from '../db/transact'
 import type { Lab, Member } from '../../shared/schema/api'
 import type { LabRow } from '../types'
 import { newId } from './tokens'
@@ -71,6 +71,7 @@ const LAST_OWNER = 'A lab always keeps at least one owner: make another member o
 
 export async function changeRole(deps: AppDeps, labId: string, userId: string, role: Role): Promise<Member> {
   const updated = await transact(deps.db, async (db) => {
+    await lockFor(db, `lab-owners:${labId}`)
     const member = await memberRow({ db }, labId, userId)
     if (!member) throw notFound('That person is not a member of this lab.')
     if (member.role === role) return { member, changed: false }
@@ -85,6 +86,7 @@ export async function changeRole(deps: AppDeps, labId: string, userId: string, r
 /** Removes a member (an owner removing someone, or anyone leaving). */
 export async function removeMember(deps: AppDeps, labId: string, userId: string): Promise<void> {
   await transact(deps.db, async (db) => {
+    await lockFor(db, `lab-owners:${labId}`)
     const member = await memberRow({ db }, labId, userId)
     if (!member) throw notFound('That person is not a member of this lab.')
     if (member.role === 'owner' && (await ownerCount({ db }, labId)) <= 1) throw conflict(LAST_OWNER)
