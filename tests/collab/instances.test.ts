@@ -5,7 +5,7 @@ import { describe, expect, it } from 'vitest'
 import * as Y from 'yjs'
 import { cellsOf, docToSheetFile } from '../../shared/doc/sheetDoc'
 import { loadDocument } from '../../server/services/documents'
-import { createMemoryBus, type CollabBus } from '../../server/collab/index'
+import { createMemoryBus, type BusEvent, type CollabBus } from '../../server/collab/index'
 import { storedRows, until } from './support/fixture'
 import { awarenessFrame } from './support/frames'
 import { useCollab } from './support/useCollab'
@@ -13,6 +13,20 @@ import { useCollab } from './support/useCollab'
 function text(doc: Y.Doc): Y.Text {
   return cellsOf(doc).get(2).get('source') as Y.Text
 }
+/** A bus in memory that drops the next `lose` update publications (lost on the way, or never sent by a killed process). */
+function lossyBus(): CollabBus & { lose: number } {
+  const inner = createMemoryBus()
+  const bus = {
+    lose: 0,
+    publish(instanceId: string, event: BusEvent) {
+      if (event.type === 'update' && bus.lose > 0) bus.lose--
+      else inner.publish(instanceId, event)
+    },
+    subscribe: inner.subscribe,
+  }
+  return bus
+}
+
 const formula = (doc: Y.Doc) => (cellsOf(doc).length > 2 ? text(doc).toString() : '')
 
 describe('collab: two instances sharing one log', () => {
@@ -61,21 +75,13 @@ describe('collab: two instances sharing one log', () => {
   })
 
   it('catches a document up from the database when a publication from the other instance was lost', async () => {
-    const inner = createMemoryBus()
-    let lose = 0
-    const bus: CollabBus = {
-      publish(instanceId, event) {
-        if (event.type === 'update' && lose > 0) lose--
-        else inner.publish(instanceId, event)
-      },
-      subscribe: (instanceId, listener) => inner.subscribe(instanceId, listener),
-    }
+    const bus = lossyBus()
     const one = await t.start({ bus, instanceId: 'one', gapMs: 50 })
     const two = await t.another({ bus, instanceId: 'two', gapMs: 50 })
     const a = t.connect('editor', { server: one })
     const b = t.connect('editor2', { server: two })
     await Promise.all([a.synced(), b.synced()])
-    lose = 1
+    bus.lose = 1
     text(a.doc).insert(4, ' lost')
     await until(async () => (await storedRows(t.lab)) === 1, 'the first edit stored (its publication lost)')
     text(a.doc).insert(text(a.doc).length, ' heard')
@@ -86,22 +92,14 @@ describe('collab: two instances sharing one log', () => {
   })
 
   it('an instance that loads the sheet announces the stored head, so a holder catches up on a lost publication nobody follows', async () => {
-    const inner = createMemoryBus()
-    let lose = 0
-    const bus: CollabBus = {
-      publish(instanceId, event) {
-        if (event.type === 'update' && lose > 0) lose--
-        else inner.publish(instanceId, event)
-      },
-      subscribe: (instanceId, listener) => inner.subscribe(instanceId, listener),
-    }
+    const bus = lossyBus()
     // as if instance one were killed between storing a row and publishing it: no later seq reveals the hole
     const one = await t.start({ bus, instanceId: 'one', gapMs: 60_000 })
     const two = await t.another({ bus, instanceId: 'two', gapMs: 60_000 })
     const a = t.connect('editor', { server: one })
     const b = t.connect('editor2', { server: two })
     await Promise.all([a.synced(), b.synced()])
-    lose = 1
+    bus.lose = 1
     text(a.doc).insert(4, ' stored, never heard')
     await until(async () => (await storedRows(t.lab)) === 1, 'the edit stored (its publication lost)')
     await new Promise((r) => setTimeout(r, 50))

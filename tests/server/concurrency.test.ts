@@ -4,7 +4,7 @@
  * run on separate PostgreSQL connections, where only the locks in the services keep them apart.
  */
 import { describe, expect, it } from 'vitest'
-import { call, createTestUser, makeTestApp, seedLab } from '../utils/server'
+import { call, createTestUser, makeTestApp, seedLab, type SeededLab, type TestApp, type TestUser } from '../utils/server'
 import { changeRole, removeMember } from '../../server/services/labs'
 import { acceptInvitation } from '../../server/services/invitations'
 
@@ -22,20 +22,30 @@ async function outcome(run: Promise<unknown>): Promise<number | 'ok'> {
 
 const TRIALS = 8
 
+/** The lab's owner and a second owner who joined by invitation. */
+async function twoOwners(t: TestApp, lab: SeededLab): Promise<[TestUser, TestUser]> {
+  const a = lab.users.owner
+  const b = await createTestUser(t)
+  await call(t, a.cookie).post(`/api/labs/${lab.labId}/invitations`, { email: b.email, role: 'owner' })
+  expect((await call(t, b.cookie).post(`/api/invitations/${t.mailer.tokenFor(b.email, '/invitations/')}/accept`, {})).status).toBe(200)
+  return [a, b]
+}
+
+async function ownersOf(t: TestApp, lab: SeededLab): Promise<number> {
+  const members = (await call(t, lab.users.viewer.cookie).get(`/api/labs/${lab.labId}/members`)).body.members as { role: string }[]
+  return members.filter((m) => m.role === 'owner').length
+}
+
 describe('simultaneous requests', () => {
   it('two owners demoting each other at once: exactly one succeeds, the lab keeps one owner', async () => {
     const t = await makeTestApp()
     for (let trial = 0; trial < TRIALS; trial++) {
       const lab = await seedLab(t, `Race lab ${trial}`)
-      const a = lab.users.owner
-      const b = await createTestUser(t)
-      await call(t, a.cookie).post(`/api/labs/${lab.labId}/invitations`, { email: b.email, role: 'owner' })
-      expect((await call(t, b.cookie).post(`/api/invitations/${t.mailer.tokenFor(b.email, '/invitations/')}/accept`, {})).status).toBe(200)
+      const [a, b] = await twoOwners(t, lab)
       // both past the route's owner check, so the services meet: the second sees the last owner
       const answers = await Promise.all([outcome(changeRole(t.deps, lab.labId, b.id, 'editor')), outcome(changeRole(t.deps, lab.labId, a.id, 'editor'))])
       expect(answers.sort()).toEqual([409, 'ok'])
-      const members = (await call(t, lab.users.viewer.cookie).get(`/api/labs/${lab.labId}/members`)).body.members as { role: string }[]
-      expect(members.filter((m) => m.role === 'owner')).toHaveLength(1)
+      expect(await ownersOf(t, lab)).toBe(1)
     }
   })
 
@@ -43,14 +53,10 @@ describe('simultaneous requests', () => {
     const t = await makeTestApp()
     for (let trial = 0; trial < TRIALS; trial++) {
       const lab = await seedLab(t, `Leave lab ${trial}`)
-      const a = lab.users.owner
-      const b = await createTestUser(t)
-      await call(t, a.cookie).post(`/api/labs/${lab.labId}/invitations`, { email: b.email, role: 'owner' })
-      expect((await call(t, b.cookie).post(`/api/invitations/${t.mailer.tokenFor(b.email, '/invitations/')}/accept`, {})).status).toBe(200)
+      const [a, b] = await twoOwners(t, lab)
       const answers = await Promise.all([outcome(removeMember(t.deps, lab.labId, a.id)), outcome(removeMember(t.deps, lab.labId, b.id))])
       expect(answers.sort()).toEqual([409, 'ok'])
-      const members = (await call(t, lab.users.viewer.cookie).get(`/api/labs/${lab.labId}/members`)).body.members as { role: string }[]
-      expect(members.filter((m) => m.role === 'owner')).toHaveLength(1)
+      expect(await ownersOf(t, lab)).toBe(1)
     }
   })
 
