@@ -4,6 +4,7 @@
  * publish to its own copy of the document and its own connections. One process uses `createLocalBus()` (publishes
  * to nobody); several processes use the Redis-streams bus (redisBus.ts) with this same interface.
  */
+import type { Comment } from '../../shared/schema/api'
 
 export type BusEvent =
   | { type: 'update'; sheetId: string; update: Uint8Array; seq: number }
@@ -16,8 +17,13 @@ export type BusEvent =
   | { type: 'head'; sheetId: string; seq: number }
   | { type: 'membership'; labId: string; userId: string }
   | { type: 'sheet-deleted'; sheetId: string }
+  /** A comment was created or changed on one instance: the others tell their live comment streams. */
+  | { type: 'comment'; sheetId: string; comment: Comment }
   /** Some of a person's sessions ended (sign-out, password change or reset): every instance checks their sockets now. */
   | { type: 'sessions'; userId: string }
+
+/** Events every instance hears, whichever sheets it holds (the control stream). */
+export type ControlEvent = Extract<BusEvent, { type: 'membership' | 'sheet-deleted' | 'sessions' | 'comment' }>
 
 export interface CollabBus {
   /** Sends an event to every other instance (never back to the publisher). */

@@ -16,6 +16,7 @@ import type * as Y from 'yjs'
 import type { Db } from '../db/client'
 import { userForToken } from '../services/sessions'
 import { roleInLab, sheetAccess } from '../services/access'
+import { deliverComment, relayComments } from '../services/commentEvents'
 import { createAuthenticate, sessionMessage, type Authenticate } from './auth'
 import { createLocalBus, type CollabBus } from './bus'
 import { createRedisBus } from './redisBus'
@@ -120,9 +121,14 @@ export function createCollab(options: CollabOptions): Collab {
     onControl: (event) => {
       if (event.type === 'membership') applyMembership(event.labId, event.userId)
       else if (event.type === 'sessions') recheckUser(event.userId)
+      else if (event.type === 'comment') deliverComment(event.sheetId, event.comment)
       else closeSheet(event.sheetId)
     },
   })
+
+  // comments published in this process go to the other instances' live comment streams (a bus between processes only:
+  // instances sharing one process share its listeners already)
+  const stopCommentRelay = ownBus ? relayComments((sheetId, comment) => bus.publish(instanceId, { type: 'comment', sheetId, comment })) : () => {}
 
   const wss = new WebSocketServer({ noServer: true, maxPayload: options.maxPayload ?? MAX_PAYLOAD, perMessageDeflate: false, clientTracking: false })
 
@@ -258,6 +264,7 @@ export function createCollab(options: CollabOptions): Collab {
       if (closing) return
       closing = true
       clearInterval(sweep)
+      stopCommentRelay()
       // Whatever is queued is stored and sent first, then everyone is told to go, then every document is compacted.
       registry.flush()
       const open = [...connections]

@@ -4,7 +4,7 @@
  * - One stream per sheet (`<prefix>sheet:<sheetId>`, trimmed to about `maxLen` entries, expiring after a day without
  *   a publication): stored updates with their seq, presence (awareness), which is never stored, and the head seq
  *   an instance found when it loaded the sheet (so holders catch up on rows whose publication was lost).
- * - One control stream (`<prefix>control`): membership changes, ended sessions, deleted sheets.
+ * - One control stream (`<prefix>control`): membership changes, ended sessions, deleted sheets, comments.
  * - Each instance reads, on a connection of its own with a blocking XREAD, the control stream from the moment it
  *   started and the stream of every sheet it holds from the moment it began to load it (`watch`): whatever is
  *   published after the database was read arrives, and the registry skips by seq what the load already gave it.
@@ -16,7 +16,7 @@
  */
 import { randomUUID } from 'node:crypto'
 import { Redis } from 'ioredis'
-import type { BusEvent, CollabBus } from './bus'
+import type { BusEvent, CollabBus, ControlEvent } from './bus'
 
 export interface RedisBusOptions {
   /** Prefix of every key (default `penumbra:`); tests use one per run. */
@@ -44,7 +44,6 @@ export interface RedisBus extends CollabBus {
 /** How a stream entry's fields are named: type, instance, seq, data. */
 const F = { type: 't', instance: 'i', seq: 's', data: 'd' } as const
 
-type ControlEvent = Extract<BusEvent, { type: 'membership' | 'sheet-deleted' | 'sessions' }>
 
 export function createRedisBus(url: string, options: RedisBusOptions = {}): RedisBus {
   const prefix = options.prefix ?? 'penumbra:'

@@ -19,7 +19,7 @@
  */
 import * as Y from 'yjs'
 import * as awarenessProtocol from 'y-protocols/awareness'
-import type { CollabBus, BusEvent } from './bus'
+import type { CollabBus, BusEvent, ControlEvent } from './bus'
 import { isPromise, type CollabStore, type CompactOutcome, type LoadedDocument, type MaybePromise, type PendingRow } from './store'
 import { encodeAwarenessEntries, encodeAwarenessMessage, encodeSyncStep1, encodeSyncStep2, encodeUpdateMessage, type AwarenessEntry } from './protocol'
 
@@ -82,7 +82,7 @@ export interface RegistryOptions {
    */
   gapMs?: number
   /** Control events from other instances (membership, deleted sheets) for the transport. */
-  onControl?: (event: Extract<BusEvent, { type: 'membership' | 'sheet-deleted' | 'sessions' }>) => void
+  onControl?: (event: ControlEvent) => void
   log?: (message: string) => void
 }
 
@@ -835,7 +835,7 @@ export class DocumentRegistry {
   }
 
   private onBusEvent(event: BusEvent): void {
-    if (event.type === 'membership' || event.type === 'sheet-deleted' || event.type === 'sessions') {
+    if (event.type === 'membership' || event.type === 'sheet-deleted' || event.type === 'sessions' || event.type === 'comment') {
       this.options.onControl?.(event)
       return
     }

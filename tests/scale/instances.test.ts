@@ -1,6 +1,7 @@
 // Three app processes on one PostgreSQL and one Redis (DESIGN §10): people connected to different instances edit one
 // sheet and converge; a refused update never leaves the instance that refused it; kill -9 of an instance loses
-// nothing it relayed; removing a member disconnects them everywhere. Runs under `npm run test:scale`.
+// nothing it relayed; comments reach live comment streams on every instance; removing a member disconnects them
+// everywhere. Runs under `npm run test:scale`.
 import { randomBytes } from 'node:crypto'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import * as Y from 'yjs'
@@ -8,6 +9,7 @@ import { cellsOf, cellToMap, docToSheetFile } from '../../shared/doc/sheetDoc'
 import type { SheetFile } from '../../shared/schema/sheet'
 import { DEMO_ACCOUNTS } from '../../server/db/seed'
 import { CLOSE } from '../../server/collab/index'
+import { SESSION_COOKIE } from '../../server/services/sessions'
 import { connectClient, rawClient, until, type Client } from '../collab/support/fixture'
 import { syncFrame } from '../collab/support/frames'
 import { scaleSkipReason, scratchDatabase, signIn, startInstance, storedDocument, type Instance, type ScratchDatabase, type Session } from './support/instances'
@@ -180,6 +182,40 @@ describe.skipIf(!!skip)('three app instances on one PostgreSQL and one Redis', (
     })
     expect(formulaText(late.doc)).toBe(formulaText(writer.doc))
   }, 120_000)
+
+  it('a comment posted through one instance reaches live comment streams opened on the others', async () => {
+    const sheetId = await newSheet('Comment trial')
+    // the viewer's live comment stream on C, the owner's on B (server-sent events)
+    const streams = [
+      { on: C, who: viewer },
+      { on: B, who: owner },
+    ].map(({ on, who }) => {
+      const abort = new AbortController()
+      let text = ''
+      const opened = fetch(`${on.url}/api/sheets/${sheetId}/comments/events`, { headers: { cookie: `${SESSION_COOKIE}=${who.token}` }, signal: abort.signal }).then(async (res) => {
+        expect(res.status).toBe(200)
+        const reader = res.body!.getReader()
+        const decoder = new TextDecoder()
+        void (async () => {
+          for (;;) {
+            const { value, done } = await reader.read().catch(() => ({ value: undefined, done: true }))
+            if (done) return
+            text += decoder.decode(value, { stream: true })
+          }
+        })()
+      })
+      return { opened, abort, text: () => text }
+    })
+    await Promise.all(streams.map((s) => s.opened))
+    await until(() => streams.every((s) => s.text().includes('live')), 'both streams to open')
+    const posted = await reviewer.request<{ id: string }>(A, 'POST', `/api/sheets/${sheetId}/comments`, { cellId: 'cEg', text: 'Is 1.52 eV from the Tauc fit or the Urbach edge?' })
+    expect(posted.status).toBe(201)
+    await until(() => streams.every((s) => s.text().includes(posted.body.id)), 'the comment on the streams of B and C', 10_000)
+    const resolved = await owner.request(C, 'PATCH', `/api/comments/${posted.body.id}`, { resolved: true })
+    expect(resolved.status).toBe(200)
+    await until(() => streams.every((s) => /"resolved":true/.test(s.text())), 'the resolution on both streams', 10_000)
+    for (const s of streams) s.abort.abort()
+  }, 60_000)
 
   it('removing a member disconnects them on every instance', async () => {
     const sheetId = await newSheet('Removal trial')
