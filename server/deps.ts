@@ -3,6 +3,7 @@ import type { Db } from './db/client'
 import type { AppConfig } from './config'
 import type { Mailer } from './mail/mailer'
 import type { Evaluator } from './services/evaluation'
+import type { RateLimitStores } from './middleware/rateLimits'
 
 /** Called after the change is stored, so the live collaboration layer can disconnect or downgrade people. */
 export interface AppHooks {
@@ -18,6 +19,8 @@ export interface AppDeps {
   mailer: Mailer
   config: AppConfig
   hooks?: AppHooks
+  /** Where the rate limits count (default: in this process's memory; several instances share Redis). */
+  rateLimitStores?: RateLimitStores
   /** The server's evaluator for freezing and comparing (default: the process's shared worker pool). */
   evaluator?: Evaluator
 }

@@ -25,6 +25,8 @@ import { pruneExpired } from './services/housekeeping'
 import { closeSharedEvaluator } from './services/evaluation'
 import { createCollab, type Collab } from './collab/index'
 import type { AppHooks } from './deps'
+import { Redis } from 'ioredis'
+import { redisRateLimitStores } from './middleware/rateLimits'
 
 const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..')
 
@@ -45,6 +47,8 @@ export interface ServerEnv {
   DATABASE_URL?: string
   /** redis://…: live edits and control events fan out to the other app instances through Redis streams. */
   REDIS_URL?: string
+  /** Prefix of every Redis key of this deployment (default `penumbra:`), so several can share one Redis. */
+  REDIS_PREFIX?: string
 }
 
 /**
@@ -125,6 +129,7 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
   const housekeeping = setInterval(() => void prune(), 3600_000)
   housekeeping.unref()
 
+  const redisPrefix = env.REDIS_PREFIX || 'penumbra:'
   // behind a reverse proxy the browser's Origin is the public address, not the Host the proxy forwards
   const allowedOrigins = env.PUBLIC_URL ? [new URL(env.PUBLIC_URL).origin] : undefined
   const collab = createCollab({
@@ -133,6 +138,7 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
     allowedOrigins,
     // several instances: the fan-out through Redis (the update log follows the database: PostgreSQL or SQLite)
     redisUrl: env.REDIS_URL || undefined,
+    redisPrefix: redisPrefix,
     log: (m) => log(`collab: ${m}`),
   })
   const hooks: AppHooks = {
@@ -140,7 +146,17 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
     sheetDeleted: (sheetId) => collab.sheetDeleted(sheetId),
     sessionsEnded: (userId) => collab.sessionsEnded(userId),
   }
-  const app = createApp({ db: handle.db, secret, mailer, config, hooks })
+  // several instances count rate limits together in Redis; while Redis is away a count fails at once (the request
+  // then passes) rather than waiting in a queue
+  const limitsRedis = env.REDIS_URL ? new Redis(env.REDIS_URL, { maxRetriesPerRequest: 1, enableOfflineQueue: false }) : null
+  let limitsFailing = false
+  limitsRedis?.on('error', (err: Error) => {
+    if (!limitsFailing) warn(`rate limits: Redis is unreachable (${err.message}); requests are not limited until it is back`)
+    limitsFailing = true
+  })
+  limitsRedis?.on('ready', () => (limitsFailing = false))
+  const rateLimitStores = limitsRedis ? redisRateLimitStores(limitsRedis, `${redisPrefix}limit:`) : undefined
+  const app = createApp({ db: handle.db, secret, mailer, config, hooks, rateLimitStores })
   const server = http.createServer(app)
   server.on('upgrade', (req, socket: Duplex, head: Buffer) => {
     if (req.url?.startsWith('/collab/')) {
@@ -170,6 +186,7 @@ export async function startServer(env: ServerEnv = process.env, log: (m: string)
     (closing ??= (async () => {
       clearInterval(housekeeping)
       await collab.close().catch((err: unknown) => warn(`closing collab: ${String(err)}`))
+      await limitsRedis?.quit().catch(() => limitsRedis.disconnect())
       await new Promise<void>((resolve) => {
         server.close(() => resolve())
         // idle keep-alive connections go now; requests still running get a moment to finish

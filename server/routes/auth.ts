@@ -19,9 +19,9 @@ export const SIGN_IN_FAILED = 'E-mail or password is wrong. If you have just sig
 
 export function authRoutes(deps: AppDeps): Router {
   const r = Router()
-  const signInLimit = limiter(deps.config.limits.signIn, 'failed sign-ins from this address', { onlyFailures: true })
-  const mailLimit = limiter(deps.config.limits.mail, 'mail requests from this address')
-  const tokenLimit = limiter(deps.config.limits.token, 'attempts with mailed links from this address', { onlyFailures: true })
+  const signInLimit = limiter(deps.config.limits.signIn, 'failed sign-ins from this address', { onlyFailures: true, store: deps.rateLimitStores?.('sign-in') })
+  const mailLimit = limiter(deps.config.limits.mail, 'mail requests from this address', { store: deps.rateLimitStores?.('mail') })
+  const tokenLimit = limiter(deps.config.limits.token, 'attempts with mailed links from this address', { onlyFailures: true, store: deps.rateLimitStores?.('account-links') })
 
   r.post('/sign-up', mailLimit, async (req, res) => {
     const body = parse(signUpBody, req.body)

@@ -11,7 +11,7 @@ import { acceptInvitationBody, tokenSchema } from '../../shared/schema/api'
 
 export function invitationRoutes(deps: AppDeps): Router {
   const r = Router()
-  const tokenLimit = limiter(deps.config.limits.token, 'attempts with mailed links from this address', { onlyFailures: true })
+  const tokenLimit = limiter(deps.config.limits.token, 'attempts with mailed links from this address', { onlyFailures: true, store: deps.rateLimitStores?.('invitation-links') })
 
   r.get('/:token', tokenLimit, async (req, res) => {
     const token = parse(tokenSchema, req.params.token, 'The invitation link is not valid')

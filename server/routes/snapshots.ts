@@ -226,7 +226,7 @@ export function snapshotRoutes(deps: AppDeps) {
 
   // /api/guest/:token — no session: the token is the proof, and it shows one snapshot only
   const guest = Router()
-  const tokenLimit = limiter(deps.config.limits.token, 'attempts with guest links from this address', { onlyFailures: true })
+  const tokenLimit = limiter(deps.config.limits.token, 'attempts with guest links from this address', { onlyFailures: true, store: deps.rateLimitStores?.('guest-links') })
   guest.use((_req, res, next) => {
     guestHeaders(res)
     next()

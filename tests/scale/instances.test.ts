@@ -10,9 +10,10 @@ import type { SheetFile } from '../../shared/schema/sheet'
 import { DEMO_ACCOUNTS } from '../../server/db/seed'
 import { CLOSE } from '../../server/collab/index'
 import { SESSION_COOKIE } from '../../server/services/sessions'
+import { CSRF_HEADER } from '../../shared/schema/api'
 import { connectClient, rawClient, until, type Client } from '../collab/support/fixture'
 import { syncFrame } from '../collab/support/frames'
-import { scaleSkipReason, scratchDatabase, signIn, startInstance, storedDocument, type Instance, type ScratchDatabase, type Session } from './support/instances'
+import { scaleSkipReason, scratchDatabase, signIn, startInstance, storedDocument, type Instance, type InstanceOptions, type ScratchDatabase, type Session } from './support/instances'
 
 const skip = scaleSkipReason()
 if (skip) console.warn(`tests/scale/instances.test.ts skipped: ${skip}`)
@@ -40,6 +41,7 @@ describe.skipIf(!!skip)('three app instances on one PostgreSQL and one Redis', (
   let A: Instance, B: Instance, C: Instance
   let owner: Session, editor: Session, reviewer: Session, viewer: Session
   let labId: string
+  let options: InstanceOptions
   const clients: Client[] = []
   const connect = (instance: Instance, sheetId: string, who: Session) => {
     const c = connectClient(instance, sheetId, who.token)
@@ -55,7 +57,8 @@ describe.skipIf(!!skip)('three app instances on one PostgreSQL and one Redis', (
 
   beforeAll(async () => {
     db = await scratchDatabase(process.env.DATABASE_URL!)
-    const options = { databaseUrl: db.url, redisUrl: process.env.REDIS_URL!, secret }
+    // Redis keys of this run only (the rate-limit counts would otherwise carry over to the next run)
+    options = { databaseUrl: db.url, redisUrl: process.env.REDIS_URL!, secret, env: { REDIS_PREFIX: `pn-test-${randomBytes(4).toString('hex')}:` } }
     // the first instance migrates the empty database and seeds the demo lab; the others find it in place
     A = await startInstance('a', options)
     instances.push(A)
@@ -171,7 +174,7 @@ describe.skipIf(!!skip)('three app instances on one PostgreSQL and one Redis', (
     expect(keystrokes(observer.doc)).toBeGreaterThanOrEqual(150)
 
     const port = A.port
-    A = await startInstance('a2', { databaseUrl: db.url, redisUrl: process.env.REDIS_URL!, secret, port })
+    A = await startInstance('a2', { ...options, port })
     instances.push(A)
     await until(() => writer.provider.wsconnected && writer.provider.synced, 'the writer to reconnect to the restarted A', 20_000)
     const late = connect(C, sheetId, viewer)
@@ -231,5 +234,36 @@ describe.skipIf(!!skip)('three app instances on one PostgreSQL and one Redis', (
     for (const c of on) c.provider.shouldConnect = false
     const again = await viewer.request(C, 'GET', `/api/sheets/${sheetId}`)
     expect(again.status).toBe(404)
+  }, 60_000)
+  it('an instance whose Redis is away still signs people in (rate limits pass while they cannot count)', async () => {
+    const lonely = await startInstance('no-redis', { ...options, redisUrl: 'redis://127.0.0.1:1' })
+    instances.push(lonely)
+    const attempt = (password: string) =>
+      fetch(`${lonely.url}/api/auth/sign-in`, {
+        method: 'POST',
+        headers: { 'content-type': 'application/json', [CSRF_HEADER]: '1' },
+        body: JSON.stringify({ email: account('editor').email, password }),
+      })
+    expect((await attempt('not the password')).status).toBe(401)
+    expect((await attempt(account('editor').password)).status).toBe(200)
+    expect(lonely.output()).toMatch(/rate limits: Redis is unreachable/)
+    await lonely.stop()
+  }, 60_000)
+
+  // last: it uses up this address's failed sign-ins for the window
+  it('counts failed sign-ins from one address across all instances (rate limits live in Redis)', async () => {
+    const statuses: number[] = []
+    for (let i = 0; i < 4; i++)
+      for (const instance of [A, B, C]) {
+        const res = await fetch(`${instance.url}/api/auth/sign-in`, {
+          method: 'POST',
+          headers: { 'content-type': 'application/json', [CSRF_HEADER]: '1' },
+          body: JSON.stringify({ email: account('viewer').email, password: 'not the password' }),
+        })
+        statuses.push(res.status)
+      }
+    // 10 failures per address and window (config.ts); in-memory counting would have allowed 4 per instance
+    expect(statuses.slice(0, 10).every((s) => s === 401)).toBe(true)
+    expect(statuses.slice(10)).toEqual([429, 429])
   }, 60_000)
 })
