@@ -23,12 +23,6 @@ import type { CollabBus, BusEvent, ControlEvent } from './bus'
 import { isPromise, type CollabStore, type CompactOutcome, type LoadedDocument, type MaybePromise, type PendingRow } from './store'
 import { encodeAwarenessEntries, encodeAwarenessMessage, encodeSyncStep1, encodeSyncStep2, encodeUpdateMessage, type AwarenessEntry } from './protocol'
 
-/**
- * The seqs right above the state row that this instance holds without a hole: what a compaction may cover. With
- * several instances writing, rows of the others stored but not yet heard of leave holes; compacting up to the first
- * hole keeps the log short under constant typing (the state may hold later rows too: applying them again on load
- * changes nothing). One instance alone always holds them all.
- */
 /** The highest seq a document's copy knows of (its state row's cover or a row above it). */
 function knownHead(entry: { uptoSeq: number; seqs: readonly number[] }): number {
   let max = entry.uptoSeq
@@ -36,6 +30,12 @@ function knownHead(entry: { uptoSeq: number; seqs: readonly number[] }): number 
   return max
 }
 
+/**
+ * The seqs right above the state row that this instance holds without a hole: what a compaction may cover. With
+ * several instances writing, rows of the others stored but not yet heard of leave holes; compacting up to the first
+ * hole keeps the log short under constant typing (the state may hold later rows too: applying them again on load
+ * changes nothing). One instance alone always holds them all.
+ */
 function knownPrefix(uptoSeq: number, seqs: readonly number[]): number[] {
   const sorted = seqs.filter((s) => s > uptoSeq).sort((a, b) => a - b)
   let n = 0

@@ -1,8 +1,8 @@
 /**
  * Rate limits on sign-in, mail-sending and token routes (express-rate-limit, per client address). One instance counts
  * in memory; several instances (REDIS_URL) count together in Redis (rate-limit-redis), so a round-robin proxy does not
- * multiply the allowance. When Redis does not answer, requests pass (logged by the caller's store): signing in keeps
- * working through an outage.
+ * multiply the allowance. When Redis does not answer, requests pass (logged at most once a minute per limiter):
+ * signing in keeps working through an outage.
  */
 import { rateLimit, type Logger, type Store } from 'express-rate-limit'
 import { RedisStore } from 'rate-limit-redis'
