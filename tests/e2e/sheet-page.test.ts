@@ -52,6 +52,8 @@ describe('the sheet page', () => {
     })
     await openLive(page, sheetId)
 
+    // figures draw as they come near the viewport: once the sweep's own plot is in, this one may sit below that reach
+    await card(page, 'fig_gaps').scrollIntoViewIfNeeded()
     await expect.poll(() => plottedNames(page, 'fig_gaps'), { timeout: 60_000 }).not.toEqual([])
     const names = (await plottedNames(page, 'fig_gaps')).filter((n) => n.startsWith('Eg = '))
     expect(names).toHaveLength(60)
@@ -61,6 +63,7 @@ describe('the sheet page', () => {
     expect(await page.evaluate(() => (window as unknown as { sawProgress?: boolean }).sawProgress)).toBe(true)
 
     // the sweep card draws the same selection of its own result
+    await card(page, 'gaps').scrollIntoViewIfNeeded()
     await expect.poll(() => plottedNames(page, 'gaps'), { timeout: 30_000 }).not.toEqual([])
     expect((await plottedNames(page, 'gaps')).filter((n) => n.startsWith('Eg = '))).toHaveLength(60)
   })
