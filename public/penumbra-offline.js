@@ -9,7 +9,8 @@
  *   copy kept in the browser. A 401, 403 or 404 from the server drops the kept answer, and so does "nobody is signed
  *   in" (GET /api/auth/me → 200 { user: null }): only a signed-in answer is kept.
  * Nothing else is touched: edits travel over the websocket, other API calls fail as usual when the server is away.
- * Signing out deletes the kept answers (cache `penumbra:answers`); the page cache holds no personal data.
+ * Signing out deletes the kept answers (cache `penumbra:answers`); the page cache holds no personal data (a page the
+ * server marks no-store, such as a sheet's page with its first view, is never kept).
  */
 const PAGE_CACHE = 'penumbra:page'
 const ANSWERS_CACHE = 'penumbra:answers'
@@ -83,7 +84,10 @@ async function page(request) {
   const cache = await caches.open(PAGE_CACHE)
   try {
     const res = await fetch(request)
-    if (res.ok && (res.headers.get('Content-Type') || '').includes('text/html')) await cache.put(PAGE_KEY, res.clone())
+    // a sheet's page with its first view (server/preview.ts) holds that sheet's cells and comes marked no-store:
+    // only the plain page is kept
+    const personal = /no-store/.test(res.headers.get('Cache-Control') || '')
+    if (res.ok && !personal && (res.headers.get('Content-Type') || '').includes('text/html')) await cache.put(PAGE_KEY, res.clone())
     return res
   } catch (err) {
     const kept = await cache.match(PAGE_KEY)

@@ -18,7 +18,8 @@ import { datasetRoutes } from './routes/datasets'
 import { EVALUATE_PATH, evaluateRoutes } from './routes/evaluate'
 import { devMailRoutes } from './routes/devMail'
 import { guestHeaders, snapshotRoutes } from './routes/snapshots'
-import { clientRoutes } from './static'
+import { clientFiles, clientPages } from './static'
+import { sheetPagePreview } from './preview'
 import { SHEET_MEDIA_TYPE } from '../shared/schema/sheet'
 import './types'
 
@@ -57,6 +58,7 @@ export function createApp(deps: AppDeps): Express {
       strictTransportSecurity: publicHttps,
     }),
   )
+  if (config.clientDir) app.use(clientFiles(config.clientDir))
   app.use(cookieParser())
   const json = express.json({ limit: config.maxBodyBytes, type: ['application/json', 'application/*+json', SHEET_MEDIA_TYPE] })
   app.use((req, res, next) => (EVALUATE_PATH.test(req.path) ? next() : json(req, res, next)))
@@ -98,7 +100,7 @@ export function createApp(deps: AppDeps): Express {
     guestHeaders(res)
     next()
   })
-  if (config.clientDir) app.use(clientRoutes(config.clientDir))
+  if (config.clientDir) app.use(clientPages(config.clientDir, sheetPagePreview(deps)))
 
   app.use(notFoundHandler)
   app.use(errorHandler(config.maxBodyBytes))

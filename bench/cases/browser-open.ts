@@ -6,7 +6,9 @@
  * the demo lab is seeded fresh. For each demo sheet: 5 cold opens (a new browser context each time: empty HTTP cache,
  * no kept copy, no service worker) and 5 warm opens (one context that has opened the sheet before). Each open is
  * timed inside the page from the start of navigation (performance.now()) to
- *   - first cell: the first card (`.pn-cell`) in the DOM,
+ *   - first cell: the first card in the DOM, either the server's first view of the sheet (`.pn-preview-card`, names,
+ *     kinds, units, values and formulas, read-only) or a live card (`.pn-cell`), whichever comes first,
+ *   - first live card: the first `.pn-cell`, the card a person can edit, with its result when one is ready,
  *   - first figure: the first plot drawn (`.pn-plot .main-svg`), for sheets with a figure cell; as a reader would,
  *     the page is scrolled to the first figure as soon as its card exists (figures draw only near the viewport),
  * and the sign-in page to its Sign in button, cold and warm alike.
@@ -28,7 +30,8 @@ const RUNS = Math.max(1, Number(process.env.BROWSER_BENCH_RUNS) || 5)
 const PROBE = `(() => {
   const seen = (window.__pnOpen = {})
   const check = () => {
-    if (seen.cell === undefined && document.querySelector('.pn-cell')) seen.cell = performance.now()
+    if (seen.cell === undefined && document.querySelector('.pn-cell, .pn-preview-card')) seen.cell = performance.now()
+    if (seen.live === undefined && document.querySelector('.pn-cell')) seen.live = performance.now()
     if (seen.figure === undefined && document.querySelector('.pn-plot .main-svg')) seen.figure = performance.now()
     // a reader heads for the first figure at once (figures draw only near the viewport)
     const plot = document.querySelector('.pn-plot .plot')
@@ -43,6 +46,7 @@ const PROBE = `(() => {
 
 interface OpenTimes {
   cell?: number
+  live?: number
   figure?: number
   signIn?: number
 }
@@ -123,7 +127,7 @@ export default async function browserOpen(): Promise<void> {
     let allMet = true
     for (const sheet of list.sheets) {
       const hasFigure = await sheetHasFigure(browser, base, sheet.id)
-      const want: (keyof OpenTimes)[] = hasFigure ? ['cell', 'figure'] : ['cell']
+      const want: (keyof OpenTimes)[] = hasFigure ? ['cell', 'live', 'figure'] : ['cell', 'live']
       const cold: OpenTimes[] = []
       const warm: OpenTimes[] = []
       const warmContext = await newContext(browser)
@@ -145,7 +149,8 @@ export default async function browserOpen(): Promise<void> {
         const cell = median(cells)
         const ratio = cell / ref
         printBench(`browser-open "${sheet.title}" ${kind} first cell`, cell, ratio, `sign-in page ${kind}`)
-        const notes = [`${RUNS} opens: ${spread(cells)} ms`]
+        const lives = times.map((t) => t.live!)
+        const notes = [`${RUNS} opens: ${spread(cells)} ms`, `first live card ${fmt(median(lives))} (${spread(lives)} ms)`]
         let figure: number | undefined
         if (hasFigure) {
           const figures = times.map((t) => t.figure!)
@@ -153,9 +158,13 @@ export default async function browserOpen(): Promise<void> {
           notes.push(`first figure ${fmt(figure)} (${spread(figures)} ms)`)
         }
         console.log(`  ${notes.join('; ')}`)
-        const met = cell <= 1000 && ratio <= 5 && (figure === undefined || figure <= 2000)
-        allMet &&= met
-        printTarget(`first cell ≤ 1 s and ≤ 5× sign-in${hasFigure ? ', first figure ≤ 2 s' : ''}`, met)
+        const cellMet = cell <= 1000 && ratio <= 5
+        printTarget('first cell ≤ 1 s and ≤ 5× sign-in', cellMet)
+        allMet &&= cellMet
+        if (figure !== undefined) {
+          printTarget('first figure ≤ 2 s', figure <= 2000)
+          allMet &&= figure <= 2000
+        }
       }
     }
     if (!allMet) console.log('  (a target missed under load says little on this shared machine: run again when it is quiet)')

@@ -8,9 +8,32 @@ export async function listSheets(labId: string): Promise<SheetSummary[]> {
   return (await api.get(`/api/labs/${seg(labId)}/sheets`, sheetsReply)).sheets
 }
 
+/** Requests for one sheet that are on their way: the header and the page ask at once and share one request. */
+const inFlight = new Map<string, Promise<Sheet>>()
+
+function readSheet(sheetId: string, quiet401: boolean): Promise<Sheet> {
+  const pending = inFlight.get(sheetId)
+  if (pending) return pending
+  const request = api.get(`/api/sheets/${seg(sheetId)}`, sheetReply, { quiet401 })
+  inFlight.set(sheetId, request)
+  const forget = () => {
+    if (inFlight.get(sheetId) === request) inFlight.delete(sheetId)
+  }
+  request.then(forget, forget)
+  return request
+}
+
 /** One sheet with its lab's name and the caller's role: `{ id, labId, labName, title, role, createdBy, updatedAt, … }`. */
 export function getSheet(sheetId: string): Promise<Sheet> {
-  return api.get(`/api/sheets/${seg(sheetId)}`, sheetReply)
+  return readSheet(sheetId, false)
+}
+
+/**
+ * Starts reading a sheet before its page asks for it (the route guard calls this while it checks the session), so the
+ * page's own getSheet joins a request already on its way. Quiet: a signed-out visitor is sent to sign in by the guard.
+ */
+export function prefetchSheet(sheetId: string): void {
+  readSheet(sheetId, true).catch(() => undefined)
 }
 
 export function createBlankSheet(labId: string, title: string): Promise<Sheet> {

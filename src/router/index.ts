@@ -7,6 +7,8 @@ import { createRouter, createWebHistory, type RouteLocationRaw } from 'vue-route
 import { useSessionStore } from '@/stores/session'
 import { safeNext } from '@/lib/navigation'
 import { getSnapshot } from '@/api/snapshots'
+import { prefetchSheet } from '@/api/sheets'
+import { dismissPagePreview, pagePreviewSheet } from '@/lib/pagePreview'
 import { snapshotPath } from '@/lib/reviewModel'
 
 export { safeNext }
@@ -72,6 +74,8 @@ router.beforeEach(async (to): Promise<RouteLocationRaw | true> => {
     if (typeof view === 'function' && !('props' in view) && !('displayName' in view) && !('__vccOpts' in view))
       void (view as () => Promise<unknown>)().catch(() => undefined)
   }
+  // a sheet's metadata is read while the session is checked, not after (the page's request joins this one)
+  if (to.name === 'sheet' && (session.signedIn || !session.loaded)) prefetchSheet(String(to.params.sheetId))
   await session.ensureLoaded()
   const access = to.meta.access ?? 'signed-in'
   if (access === 'signed-in' && !session.signedIn)
@@ -81,6 +85,9 @@ router.beforeEach(async (to): Promise<RouteLocationRaw | true> => {
 })
 
 router.afterEach((to) => {
+  // the server's first view of a sheet belongs to that sheet's page only
+  const previewed = pagePreviewSheet()
+  if (previewed !== null && (to.name !== 'sheet' || String(to.params.sheetId) !== previewed)) dismissPagePreview()
   document.title = to.meta.title ? `${to.meta.title} · Penumbra` : 'Penumbra'
 })
 

@@ -74,6 +74,15 @@ describe('the copy of a sheet kept in the browser', () => {
     // the copy is named by person and sheet, and the page can be opened again without the server
     expect(await databases(tomas.page)).toContain(`penumbra:sheet:${await userId(tomas.page)}:${sheetId}`)
     await expect.poll(() => keptForOffline(tomas.page, sheetId), { timeout: 15_000 }).toBe(true)
+    // the sheet's page as the server sends it carries the cells (its first view): reloaded under the keeper's control,
+    // it is still the plain page that is kept, with nothing of the sheet in it
+    // (read as soon as the page is parsed: the keeper stores a page before handing it over, and the sheet page asks it
+    // to fetch the plain page again a moment later)
+    await tomas.page.reload({ waitUntil: 'domcontentloaded' })
+    const keptPage = await tomas.page.evaluate(async () => (await (await caches.open('penumbra:page')).match('/'))?.text())
+    expect(keptPage).toContain('<div id="app">')
+    expect(keptPage).not.toContain('pn-preview-card')
+    await expect.poll(() => connection(tomas.page), { timeout: 20_000 }).toContain('Live')
 
     await e2e.server.halt()
     await expect.poll(() => connection(tomas.page), { timeout: 15_000 }).toContain('Offline')

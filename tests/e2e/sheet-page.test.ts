@@ -1,13 +1,14 @@
 /**
  * Working on one sheet in headless Chromium against the built app and the real server, as a researcher does:
  * a 2,000-step sweep (progress while it runs, a drawable selection of curves named by the swept parameter, plain tick
- * numbers on a linear axis), completing a function in a formula, and undoing list operations one at a time.
+ * numbers on a linear axis), completing a function in a formula, undoing list operations one at a time, and the
+ * server's first view of a sheet handing over to the live cards.
  * Each test makes its own sheet from a sheet file through the API, so they do not depend on the demo sheets' content.
  */
 import { describe, expect, it } from 'vitest'
 import type { Page } from 'playwright-core'
 import { DEMO, signIn, useBrowserSuite } from '../utils/browser'
-import { card, formulaText, sheetPage } from '../utils/sheetPage'
+import { card, connection, formulaText, resultText, sheetPage } from '../utils/sheetPage'
 
 const e2e = useBrowserSuite()
 const { createSheet, openLive } = sheetPage(() => e2e.server)
@@ -141,6 +142,57 @@ describe('the sheet page', () => {
     await expect.poll(() => formulaText(page, 'lam')).toBe('photon_wavelength(Eg) * 2')
     // 2 · h·c / 1.5 eV = 2 · 826.56 nm, to five figures (CODATA 2018: h·c/e = 1239.84198 nm·eV)
     await expect.poll(() => card(page, 'lam').locator('.result').innerText(), { timeout: 15_000 }).toContain('1653.1')
+  })
+
+  it('shows the server’s first view of the cards at once and hands over to the live cards, which take the clicks', async () => {
+    const editor = await e2e.newBrowser({ label: 'editor' })
+    const page = editor.page
+    await signIn(page, e2e.server.url, DEMO.editor)
+    const sheetId = await createSheet(page, 'First view <i>test</i>', [
+      { kind: 'parameter', name: 'Eg', value: 1.52, unit: 'eV', min: 1, max: 2 },
+      { kind: 'formula', name: 'lambda_g', source: 'photon_wavelength(Eg)', unit: 'nm' },
+      { kind: 'note', text: '## Aim\nA note with <b>markup</b> kept as text.' },
+    ])
+    // note, before any script of the page runs, what the first view holds and when it gives way
+    await page.addInitScript(() => {
+      const w = window as unknown as { firstView?: { names: string[]; links: number; at?: number; liveAt?: number; goneAt?: number; both?: boolean } }
+      const seen: NonNullable<typeof w.firstView> = { names: [], links: 0 }
+      w.firstView = seen
+      new MutationObserver(() => {
+        const preview = document.getElementById('pn-preview')
+        if (preview && seen.at === undefined && preview.querySelector('.pn-preview-card')) {
+          seen.at = performance.now()
+          seen.names = [...preview.querySelectorAll('.pn-preview-name')].map((e) => e.textContent ?? '')
+          seen.links = preview.querySelectorAll('a, form, iframe, script, img').length
+        }
+        if (seen.liveAt === undefined && document.querySelector('.pn-cell')) {
+          seen.liveAt = performance.now()
+          // the live cards are drawn in the same frame as the first view leaves, or the first view is gone already
+          requestAnimationFrame(() => (seen.both = !!document.getElementById('pn-preview')))
+        }
+        if (seen.at !== undefined && seen.goneAt === undefined && !preview) seen.goneAt = performance.now()
+      }).observe(document, { childList: true, subtree: true })
+    })
+    await page.goto(`${e2e.server.url}/sheets/${sheetId}`)
+    await expect.poll(() => connection(page), { timeout: 20_000 }).toContain('Live')
+    await expect.poll(() => page.locator('#pn-preview').count()).toBe(0)
+    const seen = await page.evaluate(() => (window as unknown as { firstView: { names: string[]; links: number; at?: number; liveAt?: number; goneAt?: number; both?: boolean } }).firstView)
+    expect(seen.names).toEqual(['Eg', 'lambda_g'])
+    expect(seen.links).toBe(0)
+    expect(seen.at).toBeDefined()
+    expect(seen.at!).toBeLessThan(seen.liveAt!)
+    expect(seen.goneAt).toBeDefined()
+    expect(seen.both).toBe(false)
+    // the live card takes the keyboard and the mouse
+    const value = card(page, 'Eg').getByLabel('Value')
+    await value.click()
+    await value.fill('1.6')
+    await value.press('Enter')
+    await expect.poll(() => resultText(page, 'lambda_g')).toMatch(/77[45]/)
+    // another page of the app carries no first view, and coming back by the app's own links brings none either
+    await page.getByRole('link', { name: 'Halvorsen Thin-Film Lab' }).first().click()
+    await expect.poll(() => page.url()).toMatch(/\/labs\/[^/]+$/)
+    expect(await page.locator('#pn-preview').count()).toBe(0)
   })
 
   it('undoes a delete made right after a duplicate on its own: the copy comes back, the original stays once', async () => {
