@@ -8,10 +8,15 @@ export async function listSheets(labId: string): Promise<SheetSummary[]> {
   return (await api.get(`/api/labs/${seg(labId)}/sheets`, sheetsReply)).sheets
 }
 
-/** Requests for one sheet that are on their way: the header and the page ask at once and share one request. */
+/**
+ * Requests for one sheet that are on their way: the header and the page ask at once and share one request. A request
+ * the route guard started ahead of the page is kept a few seconds after its answer, for the page that asked for it.
+ */
 const inFlight = new Map<string, Promise<Sheet>>()
+/** How long an answer read ahead of its page is reused (the page's scripts take about a second to start here). */
+const READ_AHEAD_KEPT_MS = 5000
 
-function readSheet(sheetId: string, quiet401: boolean): Promise<Sheet> {
+function readSheet(sheetId: string, quiet401: boolean, keepMs = 0): Promise<Sheet> {
   const pending = inFlight.get(sheetId)
   if (pending) return pending
   const request = api.get(`/api/sheets/${seg(sheetId)}`, sheetReply, { quiet401 })
@@ -19,7 +24,8 @@ function readSheet(sheetId: string, quiet401: boolean): Promise<Sheet> {
   const forget = () => {
     if (inFlight.get(sheetId) === request) inFlight.delete(sheetId)
   }
-  request.then(forget, forget)
+  const settled = () => (keepMs > 0 ? setTimeout(forget, keepMs) : forget())
+  request.then(settled, forget)
   return request
 }
 
@@ -33,7 +39,7 @@ export function getSheet(sheetId: string): Promise<Sheet> {
  * page's own getSheet joins a request already on its way. Quiet: a signed-out visitor is sent to sign in by the guard.
  */
 export function prefetchSheet(sheetId: string): void {
-  readSheet(sheetId, true).catch(() => undefined)
+  readSheet(sheetId, true, READ_AHEAD_KEPT_MS).catch(() => undefined)
 }
 
 export function createBlankSheet(labId: string, title: string): Promise<Sheet> {
@@ -49,10 +55,12 @@ export function importSheet(labId: string, file: unknown, title?: string): Promi
 }
 
 export function renameSheet(sheetId: string, title: string): Promise<Sheet> {
+  inFlight.delete(sheetId)
   return api.patch(`/api/sheets/${seg(sheetId)}`, { title }, sheetReply)
 }
 
 export function deleteSheet(sheetId: string): Promise<void> {
+  inFlight.delete(sheetId)
   return api.del(`/api/sheets/${seg(sheetId)}`)
 }
 
