@@ -11,13 +11,14 @@
  *   - first live card: the first `.pn-cell`, the card a person can edit, with its result when one is ready,
  *   - first figure: the first plot drawn (`.pn-plot .main-svg`), for sheets with a figure cell; as a reader would,
  *     the page is scrolled to the first figure as soon as its card exists (figures draw only near the viewport),
- * and the sign-in page to its Sign in button, cold and warm alike.
+ * and the sign-in page to its Sign in button, cold and warm alike. Beside them, the charting library alone: its built
+ * chunk imported into an empty page of the same server and one line drawn, the floor under any first figure.
  *
  * Needs the built client (`npx vite build`) and /usr/bin/chromium. `npm run bench -- browser` runs it alone.
  * `BROWSER_BENCH_RUNS=<n>` changes the 5. Targets (on the shared 2-core machine): first cell ≤ 1 s, first figure
  * ≤ 2 s, first cell ≤ 5× the sign-in page.
  */
-import { existsSync } from 'node:fs'
+import { existsSync, readdirSync } from 'node:fs'
 import path from 'node:path'
 import { chromium, type Browser, type BrowserContext } from 'playwright-core'
 import { CHROMIUM, CHROMIUM_ARGS, DEMO, DEMO_LAB, ROOT, startServer } from '../../tests/utils/browser'
@@ -124,6 +125,12 @@ export default async function browserOpen(): Promise<void> {
     printBench('browser-open sign-in page cold', signIn.cold)
     console.log(`  ${RUNS} opens: ${spread(signInCold)} ms; warm ${fmt(signIn.warm)} (${spread(signInWarm)} ms)`)
 
+    // the charting library by itself: the floor under any first figure the app draws with it
+    const chartAlone: number[] = []
+    for (let i = 0; i < RUNS; i++) chartAlone.push(await chartingLibraryAlone(browser, base))
+    printBench('browser-open charting library alone, cold', median(chartAlone))
+    console.log(`  ${RUNS} runs: ${spread(chartAlone)} ms from import() of its chunk to one line drawn on a log axis, in an empty page`)
+
     let allMet = true
     for (const sheet of list.sheets) {
       const hasFigure = await sheetHasFigure(browser, base, sheet.id)
@@ -185,5 +192,30 @@ async function sheetHasFigure(browser: Browser, base: string, sheetId: string): 
     return file.cells.some((cell) => cell.kind === 'figure')
   } finally {
     await c.close()
+  }
+}
+
+/**
+ * Milliseconds from import() of the built charting-library chunk (the one the figure cards load) to one small line
+ * drawn on a log axis, in a fresh profile on a page of the same server with nothing else running in it.
+ */
+async function chartingLibraryAlone(browser: Browser, base: string): Promise<number> {
+  const chunk = readdirSync(path.join(ROOT, 'dist', 'assets')).find((f) => /^plotly.*\.js$/.test(f))
+  if (!chunk) throw new Error('the built client has no charting-library chunk in dist/assets')
+  const context = await browser.newContext()
+  try {
+    const page = await context.newPage()
+    await page.goto(`${base}/api/health`)
+    return await page.evaluate(async (url) => {
+      const t0 = performance.now()
+      const mod = (await import(url)) as { default: { newPlot: (el: HTMLElement, data: unknown[], layout: unknown, config: unknown) => Promise<unknown> } }
+      const el = document.createElement('div')
+      el.style.cssText = 'width:600px;height:400px'
+      document.body.append(el)
+      await mod.default.newPlot(el, [{ x: [1, 2, 3], y: [1, 30, 200], type: 'scatter' }], { yaxis: { type: 'log' } }, { displayModeBar: false, staticPlot: false })
+      return performance.now() - t0
+    }, `/assets/${chunk}`)
+  } finally {
+    await context.close()
   }
 }
