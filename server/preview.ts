@@ -24,17 +24,6 @@ const MAX_CARDS = 40
 /** Characters of a formula, note or description shown at most. */
 const MAX_TEXT = 600
 
-const KIND_WORDS: Record<Cell['kind'], string> = {
-  parameter: 'parameter',
-  formula: 'formula',
-  spectrum: 'spectrum',
-  fit: 'fit',
-  sweep: 'sweep',
-  figure: 'figure',
-  note: 'note',
-  stack: 'stack',
-}
-
 const FIT_WORDS: Record<'tauc' | 'urbach' | 'model', string> = {
   tauc: 'band gap from a Tauc line',
   urbach: 'Urbach energy from the edge',
@@ -115,7 +104,7 @@ function card(cell: Cell): string {
   const description = 'description' in cell && cell.description ? line(cell.description, 'pn-preview-line pn-preview-muted') : ''
   return (
     `<article class="pn-preview-card" data-kind="${cell.kind}">` +
-    `<header><span class="pn-preview-kind">${KIND_WORDS[cell.kind]}</span>${name}${unit}</header>` +
+    `<header><span class="pn-preview-kind">${escapeHtml(cell.kind)}</span>${name}${unit}</header>` +
     description +
     body(cell) +
     '</article>'
