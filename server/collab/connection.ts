@@ -3,11 +3,13 @@
  * ask for the document (sync step 1), publish their own presence and query presence; their document updates are
  * dropped unread, counted, and answered once with permission-denied, and they stay connected.
  */
+import type { Duplex } from 'node:stream'
 import type { RawData, WebSocket } from 'ws'
 import type { Role } from '../db/schema'
 import { canWrite } from '../services/access'
 import type { Admission } from './auth'
 import type { DocEntry, DocumentRegistry, RegistryPeer } from './registry'
+import { holdUntilTurnEnds } from './turnWrites'
 import { checkUpdate, decodeClientMessage, encodePermissionDenied, presenceProblem, type AwarenessEntry } from './protocol'
 
 /** Close codes. 44xx tell the y-websocket client not to reconnect (the server decided); the others are transient. */
@@ -120,6 +122,8 @@ export class CollabConnection implements RegistryPeer {
     private readonly limit: RateLimit,
     private readonly onClosed: (conn: CollabConnection) => void,
     private readonly log?: (message: string) => void,
+    /** The upgraded socket under `ws`, corked while a turn's frames gather (absent: every frame is written at once). */
+    private readonly socket?: Duplex,
   ) {
     this.userId = admission.user.id
     this.userName = admission.user.name
@@ -168,6 +172,8 @@ export class CollabConnection implements RegistryPeer {
         return
       }
     } else this.backlogSince = 0
+    // One write per socket per turn of the event loop, however many edits were relayed in it (turnWrites.ts).
+    if (this.socket) holdUntilTurnEnds(this.socket)
     this.ws.send(frame)
   }
 
@@ -296,7 +302,8 @@ export class CollabConnection implements RegistryPeer {
           return
         }
         // Commit and relay now rather than on the next turn of the event loop: with WAL and synchronous=NORMAL a
-        // commit costs tens of microseconds, and waiting for a batch only adds the queue's delay to every edit.
+        // commit costs tens of microseconds, and waiting for a batch only adds the queue's delay to every edit. The
+        // frames leave each socket at the end of this turn, together with any others relayed in it (send()).
         this.registry.flush()
         return
       }

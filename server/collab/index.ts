@@ -41,8 +41,12 @@ export interface CollabOptions {
   allowedOrigins?: readonly string[]
   maxPayload?: number
   rateLimit?: Partial<RateLimit>
-  /** Compact once this many rows sit on top of a sheet's state row (default 500). */
+  /**
+   * Compact once this many rows sit on top of a sheet's state row (default 500) and its typing pauses for
+   * `compactPauseMs` (default 500 ms), or at once at four times as many rows.
+   */
   compactEvery?: number
+  compactPauseMs?: number
   /** Compact a sheet with rows after this long without a change (default 10 s). */
   idleCompactMs?: number
   /** Unload a sheet this long after its last connection left (default 30 s). */
@@ -114,6 +118,7 @@ export function createCollab(options: CollabOptions): Collab {
     bus,
     instanceId,
     compactEvery: options.compactEvery ?? 500,
+    compactPauseMs: options.compactPauseMs ?? 500,
     idleCompactMs: options.idleCompactMs ?? 10_000,
     evictAfterMs: options.evictAfterMs ?? 30_000,
     gapMs: options.gapMs,
@@ -230,7 +235,7 @@ export function createCollab(options: CollabOptions): Collab {
         ws.close(closing ? CLOSE.goingAway : 1013, closing ? 'the server is shutting down' : 'the sheet was reloaded; reconnect')
         return
       }
-      const conn = new CollabConnection(ws, admission, entry, registry, connCounters, limit, (c) => connections.delete(c), log)
+      const conn = new CollabConnection(ws, admission, entry, registry, connCounters, limit, (c) => connections.delete(c), log, socket)
       // The first recheck falls between half and all of `recheckMs` from now, so a lab reconnecting together after a
       // restart is not rechecked in one burst.
       conn.lastRecheck = Date.now() - Math.random() * (recheckMs / 2)

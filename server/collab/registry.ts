@@ -7,7 +7,12 @@
  * the queued messages, in order. The transport calls it right after each accepted update (a commit under WAL with
  * synchronous=NORMAL costs tens of microseconds, less than any batching delay would); anything else queued is
  * flushed on the next turn of the event loop (`setImmediate`). A crash before the commit loses only changes nobody
- * else has seen; their authors still hold them and resend them on reconnect.
+ * else has seen; their authors still hold them and resend them on reconnect. (The transport then holds each
+ * receiving socket's frames until the turn ends, so a burst of edits costs one write per receiver: turnWrites.ts.)
+ *
+ * Compaction on a store that answers at once holds the event loop for a few milliseconds, so under constant typing
+ * it waits for a pause (`compactPauseMs`, found by the sweep) unless the log reaches COMPACT_LIMIT_FACTOR times
+ * `compactEvery`.
  *
  * A store may answer with a Promise (a network database). The guarantees stay: while a commit is in flight, later
  * flushes, compactions and catch-ups wait their turn (one piece of store work at a time, in order), and its frames are
@@ -65,12 +70,24 @@ export interface ServerOrigin {
 }
 const BUS_ORIGIN = { kind: 'bus' } as const
 
+/** A log this many times `compactEvery` long is compacted at once, pause or not. */
+export const COMPACT_LIMIT_FACTOR = 4
+
 export interface RegistryOptions {
   store: CollabStore
   bus: CollabBus
   instanceId: string
-  /** Compact once this many rows sit on top of the state row. */
+  /**
+   * Compact once this many rows sit on top of the state row and the document has had no edit for `compactPauseMs`
+   * (checked by the sweep), or at once when the rows reach COMPACT_LIMIT_FACTOR times as many.
+   */
   compactEvery: number
+  /**
+   * On a database that answers at once, a compaction holds the event loop (a few ms for 500 rows), so every edit
+   * arriving meanwhile waits: it is left for a pause in typing unless the log has grown to the limit. 0: at once.
+   * Default 0 here; the server passes 500 ms (index.ts). Compactions of an asynchronous store ride on its commits.
+   */
+  compactPauseMs?: number
   /** Compact a document with rows after this long without a change. */
   idleCompactMs: number
   /** Drop a document from memory after this long without peers. */
@@ -498,9 +515,17 @@ export class DocumentRegistry {
         if (entry.seqs.length >= this.options.compactEvery && !stored.has(entry)) void this.compact(entry)
       return this.compactSnapshots(snapshots)
     }
-    for (const entry of stored) if (entry.seqs.length >= this.options.compactEvery) this.compact(entry)
-    for (const entry of this.entries.values())
-      if (entry.seqs.length >= this.options.compactEvery && !stored.has(entry)) this.compact(entry)
+    const now = Date.now()
+    for (const entry of stored) if (this.compactionDue(entry, now)) this.compact(entry)
+    for (const entry of this.entries.values()) if (!stored.has(entry) && this.compactionDue(entry, now)) this.compact(entry)
+  }
+
+  /** A synchronous store's compaction is due: the log is long and typing has paused, or it has reached the limit. */
+  private compactionDue(entry: DocEntry, now: number): boolean {
+    const rows = entry.seqs.length
+    const every = this.options.compactEvery
+    if (rows < every) return false
+    return rows >= every * COMPACT_LIMIT_FACTOR || now - entry.lastChangeAt >= (this.options.compactPauseMs ?? 0)
   }
 
   /**
@@ -613,10 +638,11 @@ export class DocumentRegistry {
     return false
   }
 
-  /** Periodic work: compact idle documents, evict documents without peers. */
+  /** Periodic work: compact idle documents and long logs after a pause in typing, evict documents without peers. */
   sweep(now = Date.now()): void {
     for (const entry of [...this.entries.values()]) {
       if (entry.seqs.length > 0 && now - entry.lastChangeAt >= this.options.idleCompactMs) this.compact(entry)
+      else if (this.compactionDue(entry, now)) this.compact(entry)
       if (entry.peers.size === 0 && entry.emptySince !== null && now - entry.emptySince >= this.options.evictAfterMs) this.evict(entry)
     }
   }

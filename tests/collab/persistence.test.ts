@@ -10,6 +10,7 @@ import { CLOSE, createMemoryBus } from '../../server/collab/index'
 import { buildDocument } from '../../server/collab/store'
 import { DEMO_SHEET, storedRows, until } from './support/fixture'
 import { useCollab } from './support/useCollab'
+import { ON_POSTGRES, sqliteOnly } from '../utils/db'
 
 function formulaText(doc: Y.Doc): Y.Text {
   return cellsOf(doc).get(2).get('source') as Y.Text
@@ -27,8 +28,8 @@ function contains(a: Y.Doc, b: Y.Doc): boolean {
 describe('collab: update log', () => {
   const t = useCollab({ start: false })
 
-  it('compacts about every 500 rows while thousands of updates arrive, and a reload gives an identical document', async () => {
-    await t.start({ rateLimit: { messagesPerSecond: 1e6, messageBurst: 1e6 } })
+  it('compacts about every 500 rows while thousands of updates arrive (no pause asked for), and a reload gives an identical document', async () => {
+    await t.start({ rateLimit: { messagesPerSecond: 1e6, messageBurst: 1e6 }, compactPauseMs: 0 })
     const a = t.connect('editor')
     const b = t.connect('editor2')
     await Promise.all([a.synced(), b.synced()])
@@ -64,6 +65,49 @@ describe('collab: update log', () => {
     expect(contains(reloaded, a.doc) && contains(a.doc, reloaded)).toBe(true)
     expect(formulaText(reloaded).toString()).toBe(ta.toString())
   })
+
+  it.skipIf(ON_POSTGRES)(
+    sqliteOnly('under constant typing the log waits for a pause, or for four times the threshold, before it is compacted'),
+    async () => {
+      // compactEvery 100: typing without a pause compacts only when the log reaches 400 rows (COMPACT_LIMIT_FACTOR);
+      // a pause of compactPauseMs then compacts what has grown past 100 rows, at the next sweep.
+      await t.start({ rateLimit: { messagesPerSecond: 1e6, messageBurst: 1e6 }, compactEvery: 100, compactPauseMs: 1500, sweepMs: 20 })
+      const a = t.connect('editor')
+      await a.synced()
+      const ta = formulaText(a.doc)
+      const compactions = () => t.server.collab.stats().counters.compactions
+      const rowsStored = () => t.server.collab.stats().counters.rowsStored
+      // 250 keystrokes about 2 ms apart: past the threshold, short of the limit, and no pause.
+      for (let i = 0; i < 250; i++) {
+        ta.insert(ta.length, 'x')
+        await new Promise((r) => setTimeout(r, 2))
+      }
+      await until(() => rowsStored() >= 250, 'the first 250 rows to be stored')
+      expect(compactions()).toBe(0)
+      expect(await storedRows(t.lab)).toBe(250)
+      // On without a pause: compacted at once when the log reaches 400 rows.
+      let maxRows = 0
+      for (let i = 0; i < 200; i++) {
+        ta.insert(ta.length, 'y')
+        if (i % 10 === 9) {
+          await new Promise((r) => setTimeout(r, 2))
+          maxRows = Math.max(maxRows, await storedRows(t.lab))
+        }
+      }
+      await until(() => rowsStored() >= 450, 'every row to be stored')
+      expect(compactions()).toBe(1)
+      expect(maxRows).toBeLessThan(450)
+      expect(await storedRows(t.lab)).toBeLessThan(100)
+      // Past the threshold again, then a pause: compacted without waiting for the sheet to go idle (10 s).
+      for (let i = 0; i < 120; i++) ta.insert(ta.length, 'z')
+      await until(() => rowsStored() >= 570, 'the last rows to be stored')
+      expect(await storedRows(t.lab)).toBeGreaterThanOrEqual(100)
+      await until(async () => (await storedRows(t.lab)) === 0, 'the pause to compact the log', 5000)
+      expect(compactions()).toBe(2)
+      const reloaded = await loadDocument(t.lab.handle.db, t.lab.sheetId)
+      expect(formulaText(reloaded).toString()).toBe(ta.toString())
+    },
+  )
 
   it('compacts an idle sheet, evicts it once nobody is connected, and loads it again on the next connection', async () => {
     await t.start({ idleCompactMs: 40, evictAfterMs: 80, sweepMs: 10 })
