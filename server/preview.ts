@@ -6,7 +6,6 @@
  *
  * Everything taken from the sheet is escaped; the markup carries no script and no link.
  */
-import type { Request } from 'express'
 import type { Cell, SheetFile } from '../shared/schema/sheet'
 import { QUANTITY_LABELS } from '../shared/schema/sheet'
 import { prettyUnit } from '../shared/plot/units'
@@ -15,6 +14,7 @@ import type { AppDeps } from './deps'
 import { escapeHtml } from './mail/messages'
 import { sheetAccess } from './services/access'
 import { loadSheetFile } from './services/documents'
+import type { PagePreview } from './static'
 
 /** The page's marker (index.html) where the first view goes. */
 export const PREVIEW_MARKER = '<!--pn-preview-->'
@@ -133,7 +133,7 @@ const SHEET_PAGE = /^\/sheets\/([^/]+)\/?$/
  * The first view for a request, when it asks for a sheet's page and comes from a member of the sheet's lab (the same
  * rule as GET /api/sheets/:id/file, which gives any member the whole sheet); null for anything else.
  */
-export function sheetPagePreview(deps: AppDeps): (req: Request) => Promise<string | null> {
+export function sheetPagePreview(deps: AppDeps): PagePreview {
   return async (req) => {
     const match = SHEET_PAGE.exec(req.path)
     if (!match || !req.user) return null
