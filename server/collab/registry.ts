@@ -520,11 +520,15 @@ export class DocumentRegistry {
     for (const entry of this.entries.values()) if (!stored.has(entry) && this.compactionDue(entry, now)) this.compact(entry)
   }
 
-  /** A synchronous store's compaction is due: the log is long and typing has paused, or it has reached the limit. */
+  /**
+   * A compaction is due: the log is long and, on a store that answers at once, typing has paused or the log has
+   * reached the limit. An asynchronous store's compactions do not hold the event loop: they are due at the threshold.
+   */
   private compactionDue(entry: DocEntry, now: number): boolean {
     const rows = entry.seqs.length
     const every = this.options.compactEvery
     if (rows < every) return false
+    if (this.asyncStore) return true
     return rows >= every * COMPACT_LIMIT_FACTOR || now - entry.lastChangeAt >= (this.options.compactPauseMs ?? 0)
   }
 
@@ -642,7 +646,7 @@ export class DocumentRegistry {
   sweep(now = Date.now()): void {
     for (const entry of [...this.entries.values()]) {
       if (entry.seqs.length > 0 && now - entry.lastChangeAt >= this.options.idleCompactMs) this.compact(entry)
-      else if (this.compactionDue(entry, now)) this.compact(entry)
+      else if (!this.asyncStore && this.compactionDue(entry, now)) this.compact(entry)
       if (entry.peers.size === 0 && entry.emptySince !== null && now - entry.emptySince >= this.options.evictAfterMs) this.evict(entry)
     }
   }
