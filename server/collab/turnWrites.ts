@@ -14,8 +14,17 @@ let releaseScheduled = false
 
 function release(): void {
   releaseScheduled = false
-  for (const socket of held) if (!socket.destroyed && socket.writableCorked > 0) socket.uncork()
+  // Taken out first, so a frame sent while these are written is held for a turn of its own, and one socket that
+  // throws cannot leave the others corked.
+  const sockets = [...held]
   held.clear()
+  for (const socket of sockets) {
+    try {
+      if (!socket.destroyed && socket.writableCorked > 0) socket.uncork()
+    } catch {
+      socket.destroy()
+    }
+  }
 }
 
 /** Corks the socket until the end of this turn of the event loop (once per turn). */
