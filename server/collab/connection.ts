@@ -9,7 +9,7 @@ import type { Role } from '../db/schema'
 import { canWrite } from '../services/access'
 import type { Admission } from './auth'
 import type { DocEntry, DocumentRegistry, RegistryPeer } from './registry'
-import { holdUntilTurnEnds } from './turnWrites'
+import { holdUntilTurnEnds, wireFrame } from './turnWrites'
 import { checkUpdate, decodeClientMessage, encodePermissionDenied, presenceProblem, type AwarenessEntry } from './protocol'
 
 /** Close codes. 44xx tell the y-websocket client not to reconnect (the server decided); the others are transient. */
@@ -172,9 +172,13 @@ export class CollabConnection implements RegistryPeer {
         return
       }
     } else this.backlogSince = 0
-    // One write per socket per turn of the event loop, however many edits were relayed in it (turnWrites.ts).
-    if (this.socket) holdUntilTurnEnds(this.socket)
-    this.ws.send(frame)
+    // One write per socket per turn of the event loop, however many edits were relayed in it (turnWrites.ts), of a
+    // frame built once for all receivers. Writing it to the socket under ws is safe: compression is off (index.ts), so
+    // ws never queues a frame of its own, and its control frames (ping, close) go down the same socket in call order.
+    if (this.socket) {
+      holdUntilTurnEnds(this.socket)
+      this.socket.write(wireFrame(frame))
+    } else this.ws.send(frame)
   }
 
   /** Closes with a code and reason; the connection stops receiving document traffic at once. */

@@ -37,3 +37,30 @@ export function holdUntilTurnEnds(socket: Duplex): void {
     setImmediate(release)
   }
 }
+
+const framed = new WeakMap<Uint8Array, Buffer>()
+
+/**
+ * A binary message as a server puts it on the wire (RFC 6455 §5.2: FIN, opcode 2, unmasked, then the length in 7, 16
+ * or 64 bits), framed once however many receivers it goes to: a relayed edit is framed once for all its receivers.
+ */
+export function wireFrame(payload: Uint8Array): Buffer {
+  const known = framed.get(payload)
+  if (known) return known
+  const n = payload.length
+  const head = n < 126 ? 2 : n < 65536 ? 4 : 10
+  const out = Buffer.allocUnsafe(head + n)
+  out[0] = 0x82
+  if (n < 126) out[1] = n
+  else if (n < 65536) {
+    out[1] = 126
+    out.writeUInt16BE(n, 2)
+  } else {
+    out[1] = 127
+    out.writeUInt32BE(Math.floor(n / 2 ** 32), 2)
+    out.writeUInt32BE(n >>> 0, 6)
+  }
+  out.set(payload, head)
+  framed.set(payload, out)
+  return out
+}
