@@ -299,7 +299,7 @@ export class CollabConnection implements RegistryPeer {
           return
         }
         try {
-          this.registry.applyUpdate(this.entry, this, message.update)
+          this.registry.applyUpdate(this.entry, this, message.update, message.type === 'update')
         } catch (err) {
           this.counters.malformedFrames++
           this.close(CLOSE.malformed, `update refused: ${(err as Error).message}`)

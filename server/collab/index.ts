@@ -47,6 +47,11 @@ export interface CollabOptions {
    */
   compactEvery?: number
   compactPauseMs?: number
+  /**
+   * On a SQLite file, commit each writer's update in a worker thread while it is applied, still before it is relayed
+   * (appendWorker.ts). Default true; false appends on the event loop.
+   */
+  appendWorker?: boolean
   /** Compact a sheet with rows after this long without a change (default 10 s). */
   idleCompactMs?: number
   /** Unload a sheet this long after its last connection left (default 30 s). */
@@ -113,8 +118,9 @@ export function createCollab(options: CollabOptions): Collab {
   let closing = false
   const connections = new Set<CollabConnection>()
 
+  const ownStore = options.hooks?.store ? null : defaultStore(db, { appendWorker: options.appendWorker ?? true, log })
   const registry = new DocumentRegistry({
-    store: options.hooks?.store ?? defaultStore(db),
+    store: options.hooks?.store ?? ownStore!,
     bus,
     instanceId,
     compactEvery: options.compactEvery ?? 500,
@@ -275,6 +281,7 @@ export function createCollab(options: CollabOptions): Collab {
       const open = [...connections]
       for (const conn of open) conn.close(CLOSE.goingAway, 'the server is shutting down')
       await registry.close()
+      await ownStore?.close?.()
       await ownBus?.close()
       wss.close()
       await Promise.race([Promise.all(open.map((c) => c.whenClosed)), new Promise((resolve) => setTimeout(resolve, 1000).unref())])

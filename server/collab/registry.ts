@@ -143,6 +143,8 @@ interface QueuedRow {
   row: PendingRow
   /** Its seq once an asynchronous commit stored it. */
   seq?: number
+  /** Set when the row was handed to the store before it was applied: waits for its commit and gives its seq. */
+  finish?: () => number
 }
 
 /**
@@ -156,12 +158,25 @@ interface Snapshot {
   rows: QueuedRow[]
   waiters: ((compacted: boolean) => void)[]
 }
+
+/** A row handed to the store before its update is applied: queued once the document reports the change. */
+interface EarlyRow {
+  entry: DocEntry
+  row: PendingRow
+  finish: () => number
+  queued: boolean
+  /** The part Yjs integrated, as the document reported it. */
+  integrated: Uint8Array | null
+}
+
 /** A frame for one peer, or for every peer of the document but one (`except`, the sender of a relayed update). */
 type QueuedSend = { entry: DocEntry; frame: Uint8Array } & ({ peer: RegistryPeer } | { peer: null; except: unknown })
 
 export interface RegistryCounters {
   documentsLoaded: number
   rowsStored: number
+  /** Rows committed by SQLite's append worker beside the apply (appendWorker.ts); included in rowsStored. */
+  rowsAppendedBeside: number
   messagesRelayed: number
   compactions: number
   compactionsSkipped: number
@@ -176,6 +191,8 @@ export interface RegistryCounters {
 export class DocumentRegistry {
   private readonly entries = new Map<string, DocEntry>()
   private rows: QueuedRow[] = []
+  /** The writer's update being applied while its row is committed beside it (applyUpdate). */
+  private early: EarlyRow | null = null
   private sends: QueuedSend[] = []
   private flushScheduled: NodeJS.Immediate | null = null
   private readonly loading = new Map<string, Loading>()
@@ -191,6 +208,7 @@ export class DocumentRegistry {
   readonly counters: RegistryCounters = {
     documentsLoaded: 0,
     rowsStored: 0,
+    rowsAppendedBeside: 0,
     messagesRelayed: 0,
     compactions: 0,
     compactionsSkipped: 0,
@@ -321,12 +339,42 @@ export class DocumentRegistry {
   /**
    * Applies a writer's update (already checked to parse). The document's `update` event queues the integrated change
    * for storage and relay; a part Yjs parks as pending (its dependencies are missing) is stored as the raw update, so
-   * whatever a later sync answer may carry is on disk too.
+   * whatever a later sync answer may carry is on disk too. `asSent`: a writer's own edit (not a sync answer), which
+   * SQLite's append worker may store as sent while it is applied.
    */
-  applyUpdate(entry: DocEntry, peer: RegistryPeer | ServerOrigin, update: Uint8Array): void {
+  applyUpdate(entry: DocEntry, peer: RegistryPeer | ServerOrigin, update: Uint8Array, asSent = false): void {
     const store = entry.doc.store
     const pendingStructs = store.pendingStructs
     const pendingDs = store.pendingDs
+    // SQLite's append worker: a writer's update is committed beside the apply, and waited for before anything is
+    // relayed (commit, in flush). Stored as sent, even when Yjs had nothing new from it or parked it as pending (as
+    // below), so the log knows its seq. A sync answer goes the ordinary way: it may repeat the whole document.
+    const row = { sheetId: entry.sheetId, update, userId: peer.userId }
+    const finish = asSent ? this.options.store.beginAppend?.(row) : undefined
+    if (finish) {
+      const early: EarlyRow = { entry, row, finish, queued: false, integrated: null }
+      this.early = early
+      try {
+        Y.applyUpdate(entry.doc, update, peer)
+      } catch (err) {
+        // Take the row back; what Yjs integrated before it threw is kept as an ordinary row.
+        this.rows = this.rows.filter((r) => r.finish !== finish)
+        try {
+          this.options.store.discardRow?.(entry.sheetId, finish())
+        } catch {
+          // its commit failed: nothing to take back
+        }
+        if (early.integrated) this.rows.push({ entry, row: { ...row, update: early.integrated } })
+        throw err
+      } finally {
+        this.early = null
+      }
+      if (!early.queued) {
+        this.rows.push({ entry, row, finish })
+        this.scheduleFlush()
+      }
+      return
+    }
     Y.applyUpdate(entry.doc, update, peer)
     if ((store.pendingStructs !== pendingStructs && store.pendingStructs !== null) || (store.pendingDs !== pendingDs && store.pendingDs !== null))
       this.queueRow(entry, update, peer.userId)
@@ -745,6 +793,15 @@ export class DocumentRegistry {
   }
 
   private queueRow(entry: DocEntry, update: Uint8Array, userId: string | null): void {
+    const early = this.early
+    if (early && early.entry === entry && !early.queued) {
+      early.queued = true
+      early.integrated = update
+      this.rows.push({ entry, row: early.row, finish: early.finish })
+      entry.lastChangeAt = Date.now()
+      this.scheduleFlush()
+      return
+    }
     this.rows.push({ entry, row: { sheetId: entry.sheetId, update, userId } })
     entry.lastChangeAt = Date.now()
     this.scheduleFlush()
@@ -789,7 +846,20 @@ export class DocumentRegistry {
   private commit(rows: QueuedRow[]): MaybePromise<Set<DocEntry>> {
     const stored = new Set<DocEntry>()
     if (rows.length === 0) return stored
-    const live = rows.filter((r) => !r.entry.broken)
+    // Rows already handed to SQLite's append worker: their commits are waited for here, before anything is sent.
+    for (const r of rows)
+      if (r.finish) {
+        try {
+          const seq = r.finish()
+          r.seq = seq
+          this.counters.rowsAppendedBeside++
+          if (!r.entry.broken) this.recordStored([r], [seq], stored)
+        } catch (err) {
+          this.storeFailed([r], err)
+        }
+      }
+    const live = rows.filter((r) => !r.entry.broken && !r.finish)
+    if (live.length === 0) return stored
     let seqs: MaybePromise<number[]> | null
     try {
       seqs = this.options.store.storeUpdates(live.map((r) => r.row))

@@ -8,6 +8,7 @@ import * as Y from 'yjs'
 import type { Db } from '../db/client'
 import { sheetStates, sheetUpdates } from '../db/schema'
 import { storedUpdates } from '../services/documents'
+import { startAppendWorker } from './appendWorker'
 
 export interface LoadedDocument {
   doc: Y.Doc
@@ -47,6 +48,21 @@ export interface CollabStore {
    * exactly what this process knows (`prevUptoSeq` unchanged and `coveredSeqs` are all the rows up to the new seq).
    */
   compact(sheetId: string, state: Uint8Array, prevUptoSeq: number, coveredSeqs: readonly number[]): MaybePromise<CompactOutcome>
+  /**
+   * Starts appending one row while the caller goes on (SQLite's append worker, appendWorker.ts): the function returned
+   * waits for the commit and gives the row's seq, or throws. Undefined when the store appends only in storeUpdates.
+   */
+  beginAppend?(row: PendingRow): (() => number) | undefined
+  /** Deletes one stored row: a row appended early whose update then failed to apply. */
+  discardRow?(sheetId: string, seq: number): void
+  /** Stops what the store runs beside the event loop (the append worker). */
+  close?(): Promise<void>
+}
+
+export interface SqliteStoreOptions {
+  /** Append writers' updates in a worker thread while they are applied (file databases only; appendWorker.ts). */
+  appendWorker?: boolean
+  log?: (message: string) => void
 }
 
 /** A store that always answers at once (SQLite). */
@@ -69,7 +85,7 @@ export function buildDocument(state: Uint8Array | null, updates: readonly Uint8A
   return doc
 }
 
-export function createSqliteStore(db: Db): SyncCollabStore {
+export function createSqliteStore(db: Db, options: SqliteStoreOptions = {}): SyncCollabStore {
   // Every query is prepared once. The append runs for each accepted edit before it is relayed, so its transactions
   // are better-sqlite3's own (a single row commits on its own): Drizzle's `db.transaction` builds a session object per
   // call, which doubled the time an edit waited before being sent on (bench/cases/collab-latency.ts).
@@ -99,6 +115,8 @@ export function createSqliteStore(db: Db): SyncCollabStore {
     .prepare()
   const deleteCovered = db.delete(sheetUpdates).where(and(eq(sheetUpdates.sheetId, sql.placeholder('sheetId')), lte(sheetUpdates.seq, sql.placeholder('upto')))).prepare()
 
+  const worker = options.appendWorker && !sqlite.memory ? startAppendWorker(sqlite, insertRow.source, options.log) : null
+  const deleteRow = sqlite.prepare<{ sheetId: string; seq: number }>('DELETE FROM sheet_updates WHERE sheet_id = @sheetId AND seq = @seq')
   const append = (row: PendingRow, createdAt: number) => insertRow.all({ sheetId: row.sheetId, update: toBuffer(row.update), userId: row.userId, createdAt })[0].seq
   const appendAll = sqlite.transaction((rows: readonly PendingRow[], createdAt: number) => rows.map((row) => append(row, createdAt)))
 
@@ -113,6 +131,9 @@ export function createSqliteStore(db: Db): SyncCollabStore {
   })
 
   return {
+    beginAppend: worker ? (row) => worker.begin(row) : undefined,
+    discardRow: (sheetId, seq) => void deleteRow.run({ sheetId, seq }),
+    close: async () => worker?.stop(),
     loadDocument(sheetId) {
       const stored = storedUpdates(db, sheetId)
       const doc = buildDocument(
