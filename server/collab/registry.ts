@@ -349,9 +349,10 @@ export class DocumentRegistry {
     // SQLite's append worker: a writer's update is committed beside the apply, and waited for before anything is
     // relayed (commit, in flush). Stored as sent, even when Yjs had nothing new from it or parked it as pending (as
     // below), so the log knows its seq. A sync answer goes the ordinary way: it may repeat the whole document.
-    const row = { sheetId: entry.sheetId, update, userId: peer.userId }
-    const finish = asSent ? this.options.store.beginAppend?.(row) : undefined
-    if (finish) {
+    const beginAppend = asSent ? this.options.store.beginAppend : undefined
+    const row = beginAppend && { sheetId: entry.sheetId, update, userId: peer.userId }
+    const finish = row && beginAppend.call(this.options.store, row)
+    if (row && finish) {
       const early: EarlyRow = { entry, row, finish, queued: false, integrated: null }
       this.early = early
       try {
@@ -795,14 +796,11 @@ export class DocumentRegistry {
   private queueRow(entry: DocEntry, update: Uint8Array, userId: string | null): void {
     const early = this.early
     if (early && early.entry === entry && !early.queued) {
+      // the writer's row already handed to the append worker stands for this change
       early.queued = true
       early.integrated = update
       this.rows.push({ entry, row: early.row, finish: early.finish })
-      entry.lastChangeAt = Date.now()
-      this.scheduleFlush()
-      return
-    }
-    this.rows.push({ entry, row: { sheetId: entry.sheetId, update, userId } })
+    } else this.rows.push({ entry, row: { sheetId: entry.sheetId, update, userId } })
     entry.lastChangeAt = Date.now()
     this.scheduleFlush()
   }
