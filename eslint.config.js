@@ -28,6 +28,13 @@ export default tseslint.config(
     },
   },
   {
+    // A promise nobody awaits lets a test race its own setup (a role change still on its way to PostgreSQL while the
+    // test goes on) and lets a server failure pass unseen. Work meant to run on its own says so with `void`.
+    files: ['server/**/*.ts', 'tests/**/*.ts', 'bench/**/*.ts'],
+    languageOptions: { parserOptions: { projectService: true, tsconfigRootDir: import.meta.dirname } },
+    rules: { '@typescript-eslint/no-floating-promises': 'error' },
+  },
+  {
     files: ['shared/**/*.ts'],
     rules: {
       'no-restricted-imports': [

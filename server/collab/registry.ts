@@ -497,7 +497,7 @@ export class DocumentRegistry {
       this.hold(stored.then((entries) => this.delivered(entries, sends, snapshots)))
       return
     }
-    this.delivered(stored, sends)
+    void this.delivered(stored, sends)
   }
 
   /** The documents of an asynchronous commit that are to be compacted right after it. */
@@ -565,8 +565,8 @@ export class DocumentRegistry {
       return this.compactSnapshots(snapshots)
     }
     const now = Date.now()
-    for (const entry of stored) if (this.compactionDue(entry, now)) this.compact(entry)
-    for (const entry of this.entries.values()) if (!stored.has(entry) && this.compactionDue(entry, now)) this.compact(entry)
+    for (const entry of stored) if (this.compactionDue(entry, now)) void this.compact(entry)
+    for (const entry of this.entries.values()) if (!stored.has(entry) && this.compactionDue(entry, now)) void this.compact(entry)
   }
 
   /**
@@ -694,8 +694,8 @@ export class DocumentRegistry {
   /** Periodic work: compact idle documents and long logs after a pause in typing, evict documents without peers. */
   sweep(now = Date.now()): void {
     for (const entry of [...this.entries.values()]) {
-      if (entry.seqs.length > 0 && now - entry.lastChangeAt >= this.options.idleCompactMs) this.compact(entry)
-      else if (!this.asyncStore && this.compactionDue(entry, now)) this.compact(entry)
+      if (entry.seqs.length > 0 && now - entry.lastChangeAt >= this.options.idleCompactMs) void this.compact(entry)
+      else if (!this.asyncStore && this.compactionDue(entry, now)) void this.compact(entry)
       if (entry.peers.size === 0 && entry.emptySince !== null && now - entry.emptySince >= this.options.evictAfterMs) this.evict(entry)
     }
   }

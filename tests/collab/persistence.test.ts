@@ -185,7 +185,7 @@ describe('collab: update log', () => {
     await t.start()
     const a = t.connect('viewer')
     await a.synced()
-    t.server.collab.changeDocument(t.lab.sheetId, (doc) => doc.getMap('meta').set('title', 'Edge model, annealed'), t.lab.userIds.owner)
+    await t.server.collab.changeDocument(t.lab.sheetId, (doc) => doc.getMap('meta').set('title', 'Edge model, annealed'), t.lab.userIds.owner)
     expect(docToSheetFile(await loadDocument(t.lab.handle.db, t.lab.sheetId)).title).toBe('Edge model, annealed')
     const [row] = await t.lab.handle.db.select({ userId: sheetUpdates.userId }).from(sheetUpdates).where(eq(sheetUpdates.sheetId, t.lab.sheetId))
     expect(row.userId).toBe(t.lab.userIds.owner)

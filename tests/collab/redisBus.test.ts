@@ -101,7 +101,7 @@ describe.skipIf(SKIP !== null)(`collab: instances joined by Redis streams${SKIP 
     const b = t.connect('editor2', { server: two })
     const stays = t.connect('editor', { server: two })
     await Promise.all([b.synced(), stays.synced()])
-    t.lab.setRole('editor2', null)
+    await t.lab.setRole('editor2', null)
     one.collab.membershipChanged(t.lab.labId, t.lab.userIds.editor2)
     await until(() => b.closes.length > 0, 'the removed member’s socket on instance two to close')
     expect(b.closes[0]).toEqual({ code: CLOSE.removed, reason: 'you are no longer a member of this lab' })
