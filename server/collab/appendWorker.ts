@@ -7,11 +7,15 @@
  * `npm run bench -- collab-latency` p99 went from 1.12–1.48× the bare relay (five runs) to 0.77–1.26× (median 0.97×),
  * and p50 from 0.99–1.28× to 0.95–1.02× (DEVELOPERS.md, benchmarks).
  *
- * The two threads meet on a SharedArrayBuffer: one row at a time, handed over with Atomics.notify and waited for with
- * Atomics.wait, so the event loop never gives up its turn (the frames then leave in the same turn, as before). The
- * worker holds its own connection with the same durability and inserts with the very statement the store uses, so the
- * seq is still assigned under SQLite's write lock. If the worker cannot start, or does not answer within
- * `ANSWER_MS`, it is not used again and rows are appended on the event loop as before.
+ * The two threads meet on a SharedArrayBuffer: rows are handed over with Atomics.notify and waited for with
+ * Atomics.wait, so the event loop never gives up its turn (the frames then leave in the same turn, as before). Several
+ * edits often arrive in one turn, most of all in a burst: each is handed over as it is accepted, without waiting for
+ * the one before, and whatever the worker finds waiting when it comes to them it commits in one transaction. So a
+ * burst costs one commit and one wake-up of the worker, not one each (a row whose insert fails is answered with its
+ * error alone; the others of its transaction are stored). The worker holds its own connection with the same
+ * durability and inserts with the very statement the store uses, so the seq is still assigned under SQLite's write
+ * lock, in the order the rows were handed over. If the worker cannot start, or does not answer within `ANSWER_MS`, it
+ * is not used again and rows are appended on the event loop as before.
  */
 import { Worker } from 'node:worker_threads'
 import type Database from 'better-sqlite3'
@@ -19,60 +23,101 @@ import type { PendingRow } from './store'
 
 /** Longer than the connections' busy timeout (5 s), so a commit that waits for a lock fails before we give up. */
 const ANSWER_MS = 10_000
-/** Room for one row: ids, the update (a writer's frame is at most 1 MiB) and an error message. */
+/** Room for the rows in flight: ids, the update (a writer's frame is at most 1 MiB), a length word each. */
 const DATA_BYTES = 2 * 1024 * 1024
+/** Rows handed over and not yet answered, at most; each has a slot for its place, seq, status and error message. */
+const SLOTS = 64
+const MESSAGE_BYTES = 512
 
-// Control words: requests handed over, requests answered, the answer's seq, its status, the row's length, stop, ready.
+// Control words: rows handed over, rows answered, stop, ready, transactions committed; then per slot its row's
+// offset, seq (or, when its status is 1, the length of its error message) and status.
 const REQ = 0
 const DONE = 1
-const SEQ = 2
-const STATUS = 3
-const LENGTH = 4
-const STOP = 5
-const READY = 6
-const CONTROL_BYTES = 64
+const STOP = 2
+const READY = 3
+const COMMITS = 4
+const OFFSET = 8
+const SEQ = OFFSET + SLOTS
+const STATUS = SEQ + SLOTS
+const CONTROL_WORDS = STATUS + SLOTS
+const CONTROL_BYTES = CONTROL_WORDS * 4
+const DATA_START = CONTROL_BYTES + SLOTS * MESSAGE_BYTES
 
 const WORKER_SOURCE = `
 const { workerData } = require('node:worker_threads')
 const Database = require('better-sqlite3')
-const ctrl = new Int32Array(workerData.sab, 0, 8)
-const data = new Uint8Array(workerData.sab, ${CONTROL_BYTES})
+const ctrl = new Int32Array(workerData.sab, 0, ${CONTROL_WORDS})
+const messages = new Uint8Array(workerData.sab, ${CONTROL_BYTES}, ${SLOTS * MESSAGE_BYTES})
+const data = new Uint8Array(workerData.sab, ${DATA_START})
+const view = new DataView(workerData.sab, ${DATA_START})
 const db = new Database(workerData.file, { fileMustExist: true })
 db.pragma('busy_timeout = 5000')
 db.pragma('synchronous = ' + workerData.synchronous)
 db.pragma('foreign_keys = ON')
 db.pragma('wal_autocheckpoint = 0')
 const insert = db.prepare(workerData.sql)
+const begin = db.prepare('BEGIN IMMEDIATE')
+const commit = db.prepare('COMMIT')
 const text = new TextDecoder()
 const encoder = new TextEncoder()
+function fail(slot, err) {
+  const message = encoder.encode(String(err && err.message ? err.message : err).slice(0, 160))
+  messages.set(message, slot * ${MESSAGE_BYTES})
+  ctrl[${SEQ} + slot] = message.length
+  ctrl[${STATUS} + slot] = 1
+}
 Atomics.store(ctrl, ${READY}, 1)
-let seen = 0
+let done = 0
 for (;;) {
-  Atomics.wait(ctrl, ${REQ}, seen)
+  Atomics.wait(ctrl, ${REQ}, done)
   if (Atomics.load(ctrl, ${STOP})) break
-  seen = Atomics.load(ctrl, ${REQ})
+  // every row handed over by now goes into one transaction; a row whose insert fails is answered with the error alone
+  const upto = Atomics.load(ctrl, ${REQ})
+  const createdAt = Date.now()
+  let open = false
   try {
-    const length = ctrl[${LENGTH}]
-    let p = 0
-    const sheetLength = data[p++]
-    const sheetId = text.decode(data.subarray(p, p + sheetLength))
-    p += sheetLength
-    const userLength = data[p++]
-    let userId = null
-    if (userLength !== 255) {
-      userId = text.decode(data.subarray(p, p + userLength))
-      p += userLength
-    }
-    const update = Buffer.from(data.subarray(p, length))
-    ctrl[${SEQ}] = insert.all({ sheetId, update, userId, createdAt: Date.now() })[0].seq
-    ctrl[${STATUS}] = 0
+    begin.run()
+    open = true
   } catch (err) {
-    const message = encoder.encode(String(err && err.message ? err.message : err).slice(0, 500))
-    data.set(message, 0)
-    ctrl[${LENGTH}] = message.length
-    ctrl[${STATUS}] = 1
+    for (let t = done + 1; t <= upto; t++) fail(t % ${SLOTS}, err)
   }
-  Atomics.store(ctrl, ${DONE}, seen)
+  if (open) {
+    let firstError = null
+    for (let t = done + 1; t <= upto; t++) {
+      const slot = t % ${SLOTS}
+      try {
+        let p = ctrl[${OFFSET} + slot]
+        const end = p + 4 + view.getUint32(p)
+        p += 4
+        const sheetLength = data[p++]
+        const sheetId = text.decode(data.subarray(p, p + sheetLength))
+        p += sheetLength
+        const userLength = data[p++]
+        let userId = null
+        if (userLength !== 255) {
+          userId = text.decode(data.subarray(p, p + userLength))
+          p += userLength
+        }
+        const update = Buffer.from(data.subarray(p, end))
+        ctrl[${SEQ} + slot] = insert.all({ sheetId, update, userId, createdAt })[0].seq
+        ctrl[${STATUS} + slot] = 0
+      } catch (err) {
+        fail(slot, err)
+        firstError = firstError || err
+      }
+    }
+    try {
+      // an error SQLite answers by rolling back the whole transaction (a full disk, say) fails every row of it
+      if (!db.inTransaction) throw firstError
+      commit.run()
+      Atomics.add(ctrl, ${COMMITS}, 1)
+    } catch (err) {
+      try { if (db.inTransaction) db.exec('ROLLBACK') } catch {}
+      for (let t = done + 1; t <= upto; t++) fail(t % ${SLOTS}, err)
+    }
+  }
+  done = upto
+  Atomics.store(ctrl, ${DONE}, done)
   Atomics.notify(ctrl, ${DONE})
 }
 db.close()
@@ -84,13 +129,17 @@ export interface AppendWorker {
    * throws if the commit failed). Undefined when the worker is not in use: the caller appends the row itself.
    */
   begin(row: PendingRow): (() => number) | undefined
+  /** Transactions the worker has committed (rows handed over while it commits go into its next one together). */
+  commits(): number
   stop(): Promise<void>
 }
 
 export function startAppendWorker(sqlite: Database.Database, insertSql: string, log?: (message: string) => void): AppendWorker {
-  const sab = new SharedArrayBuffer(CONTROL_BYTES + DATA_BYTES)
-  const ctrl = new Int32Array(sab, 0, 8)
-  const data = new Uint8Array(sab, CONTROL_BYTES)
+  const sab = new SharedArrayBuffer(DATA_START + DATA_BYTES)
+  const ctrl = new Int32Array(sab, 0, CONTROL_WORDS)
+  const messages = new Uint8Array(sab, CONTROL_BYTES, SLOTS * MESSAGE_BYTES)
+  const data = new Uint8Array(sab, DATA_START)
+  const view = new DataView(sab, DATA_START)
   const synchronous = sqlite.pragma('synchronous', { simple: true }) as number
   const worker = new Worker(WORKER_SOURCE, { eval: true, workerData: { sab, file: sqlite.name, sql: insertSql, synchronous } })
   worker.unref()
@@ -111,21 +160,30 @@ export function startAppendWorker(sqlite: Database.Database, insertSql: string, 
   const encoder = new TextEncoder()
   const text = new TextDecoder()
   let handedOut = 0
-  let settleOutstanding: (() => void) | null = null
+  /** Where the next row goes in the data area; back to 0 whenever the worker has answered every row. */
+  let tail = 0
+  /** Rows handed over whose answer has not been read yet, by ticket: reading it frees the ticket's slot. */
+  const unread = new Map<number, () => void>()
 
-  const answer = (ticket: number): number => {
+  /** Waits until the worker has answered every row up to `ticket`. */
+  const answered = (ticket: number): void => {
     const deadline = Date.now() + ANSWER_MS
     for (;;) {
       const done = Atomics.load(ctrl, DONE)
-      if (done >= ticket) break
+      if (done >= ticket) return
       const left = deadline - Date.now()
       if (left <= 0 || Atomics.wait(ctrl, DONE, done, left) === 'timed-out') {
         retire(`no answer within ${ANSWER_MS / 1000} s`)
         throw new Error(`the append worker did not answer within ${ANSWER_MS / 1000} s`)
       }
     }
-    if (ctrl[STATUS] !== 0) throw new Error(text.decode(data.slice(0, ctrl[LENGTH])))
-    return ctrl[SEQ]
+  }
+
+  const answer = (ticket: number): number => {
+    answered(ticket)
+    const slot = ticket % SLOTS
+    if (ctrl[STATUS + slot] !== 0) throw new Error(text.decode(messages.slice(slot * MESSAGE_BYTES, slot * MESSAGE_BYTES + ctrl[SEQ + slot])))
+    return ctrl[SEQ + slot]
   }
 
   return {
@@ -133,11 +191,25 @@ export function startAppendWorker(sqlite: Database.Database, insertSql: string, 
       if (!usable || Atomics.load(ctrl, READY) !== 1) return undefined
       const sheet = encoder.encode(row.sheetId)
       const user = row.userId === null ? null : encoder.encode(row.userId)
-      if (sheet.length > 254 || (user && user.length > 254) || 2 + sheet.length + (user?.length ?? 0) + row.update.length > DATA_BYTES) return undefined
-      // one row at a time: a row handed over earlier and not yet waited for is settled first (its result stays with it)
-      settleOutstanding?.()
+      const length = 4 + 2 + sheet.length + (user?.length ?? 0) + row.update.length
+      if (sheet.length > 254 || (user && user.length > 254) || length > DATA_BYTES) return undefined
+      const ticket = handedOut + 1
+      // the slot this ticket takes: its previous row's answer is read first (it stays with that row)
+      unread.get(ticket - SLOTS)?.()
+      if (Atomics.load(ctrl, DONE) === handedOut) tail = 0
+      else if (tail + length > DATA_BYTES) {
+        // no room left behind the rows in flight: wait for them all, then start the area again
+        try {
+          answered(handedOut)
+        } catch {
+          return undefined
+        }
+        tail = 0
+      }
       if (!usable) return undefined
-      let p = 0
+      let p = tail
+      view.setUint32(p, length - 4)
+      p += 4
       data[p++] = sheet.length
       data.set(sheet, p)
       p += sheet.length
@@ -148,8 +220,9 @@ export function startAppendWorker(sqlite: Database.Database, insertSql: string, 
         p += user.length
       }
       data.set(row.update, p)
-      ctrl[LENGTH] = p + row.update.length
-      const ticket = ++handedOut
+      ctrl[OFFSET + (ticket % SLOTS)] = tail
+      tail += length
+      handedOut = ticket
       Atomics.store(ctrl, REQ, ticket)
       Atomics.notify(ctrl, REQ)
       let result: { seq: number } | { error: Error } | undefined
@@ -160,15 +233,16 @@ export function startAppendWorker(sqlite: Database.Database, insertSql: string, 
         } catch (err) {
           result = { error: err as Error }
         }
-        if (settleOutstanding === settle) settleOutstanding = null
+        unread.delete(ticket)
       }
-      settleOutstanding = settle
+      unread.set(ticket, settle)
       return () => {
         settle()
         if ('error' in result!) throw result.error
         return result!.seq
       }
     },
+    commits: () => Atomics.load(ctrl, COMMITS),
     stop() {
       usable = false
       stopping ??= (async () => {

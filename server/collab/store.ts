@@ -85,20 +85,23 @@ export function buildDocument(state: Uint8Array | null, updates: readonly Uint8A
   return doc
 }
 
+/**
+ * Appends one row of a sheet's log. The seq is assigned in the insert itself, under SQLite's one-writer lock: one more
+ * than the sheet's last row, or than its compacted state when compaction left no rows. The append worker runs it too.
+ */
+export const INSERT_SQL = `INSERT INTO sheet_updates (sheet_id, seq, "update", user_id, created_at)
+     VALUES (@sheetId, coalesce((SELECT max(seq) FROM sheet_updates WHERE sheet_id = @sheetId), (SELECT upto_seq FROM sheet_states WHERE sheet_id = @sheetId), 0) + 1,
+             @update, @userId, @createdAt)
+     RETURNING seq`
+
 export function createSqliteStore(db: Db, options: SqliteStoreOptions = {}): SyncCollabStore {
   // Every query is prepared once. The append runs for each accepted edit before it is relayed, so its transactions
   // are better-sqlite3's own (a single row commits on its own): Drizzle's `db.transaction` builds a session object per
   // call, which doubled the time an edit waited before being sent on (bench/cases/collab-latency.ts).
   const sqlite = db.$client
-  // The seq is assigned in the insert itself, under SQLite's one-writer lock: one more than the sheet's last row, or
-  // than its compacted state when compaction left no rows. `.all()` steps the statement to its end: with `.get()` a
-  // RETURNING insert commits on reset, which skips SQLite's WAL hook and so its automatic checkpoints.
-  const insertRow = sqlite.prepare<{ sheetId: string; update: Buffer; userId: string | null; createdAt: number }, { seq: number }>(
-    `INSERT INTO sheet_updates (sheet_id, seq, "update", user_id, created_at)
-     VALUES (@sheetId, coalesce((SELECT max(seq) FROM sheet_updates WHERE sheet_id = @sheetId), (SELECT upto_seq FROM sheet_states WHERE sheet_id = @sheetId), 0) + 1,
-             @update, @userId, @createdAt)
-     RETURNING seq`,
-  )
+  // `.all()` steps the statement to its end: with `.get()` a RETURNING insert commits on reset, which skips SQLite's
+  // WAL hook and so its automatic checkpoints.
+  const insertRow = sqlite.prepare<{ sheetId: string; update: Buffer; userId: string | null; createdAt: number }, { seq: number }>(INSERT_SQL)
   const stateUpto = db.select({ uptoSeq: sheetStates.uptoSeq }).from(sheetStates).where(eq(sheetStates.sheetId, sql.placeholder('sheetId'))).prepare()
   const rowsInRange = db
     .select({ n: count() })
@@ -115,7 +118,7 @@ export function createSqliteStore(db: Db, options: SqliteStoreOptions = {}): Syn
     .prepare()
   const deleteCovered = db.delete(sheetUpdates).where(and(eq(sheetUpdates.sheetId, sql.placeholder('sheetId')), lte(sheetUpdates.seq, sql.placeholder('upto')))).prepare()
 
-  const worker = options.appendWorker && !sqlite.memory ? startAppendWorker(sqlite, insertRow.source, options.log) : null
+  const worker = options.appendWorker && !sqlite.memory ? startAppendWorker(sqlite, INSERT_SQL, options.log) : null
   const deleteRow = sqlite.prepare<{ sheetId: string; seq: number }>('DELETE FROM sheet_updates WHERE sheet_id = @sheetId AND seq = @seq')
   const append = (row: PendingRow, createdAt: number) => insertRow.all({ sheetId: row.sheetId, update: toBuffer(row.update), userId: row.userId, createdAt })[0].seq
   const appendAll = sqlite.transaction((rows: readonly PendingRow[], createdAt: number) => rows.map((row) => append(row, createdAt)))

@@ -14,7 +14,8 @@ import { cellsOf } from '../../shared/doc/sheetDoc'
 import { loadDocument } from '../../server/services/documents'
 import { createMemoryBus } from '../../server/collab/index'
 import { DocumentRegistry, type RegistryPeer } from '../../server/collab/registry'
-import { createSqliteStore, type PendingRow, type SyncCollabStore } from '../../server/collab/store'
+import { createSqliteStore, INSERT_SQL, type PendingRow, type SyncCollabStore } from '../../server/collab/store'
+import { startAppendWorker } from '../../server/collab/appendWorker'
 import { createLab, sqliteOf, until, type Lab } from './support/fixture'
 import { useCollab } from './support/useCollab'
 import { ON_POSTGRES, sqliteOnly } from '../utils/db'
@@ -107,6 +108,63 @@ describe.skipIf(ON_POSTGRES)(sqliteOnly('collab: the append worker itself'), () 
     expect(stored(lab, second)).toEqual({ update: Buffer.from([4, 5]), userId: null })
     expect(stored(lab, seqA)).toEqual({ update: Buffer.from([6]), userId: lab.userIds.owner })
     expect(stored(lab, seqB)).toEqual({ update: Buffer.from([7, 7, 7, 7]), userId: lab.userIds.editor })
+  })
+
+  it('commits the rows handed over while it was busy in one transaction, each with its own seq and bytes', async () => {
+    const { lab } = await open()
+    const sqlite = sqliteOf(lab)
+    const worker = startAppendWorker(sqlite, INSERT_SQL)
+    try {
+      await until(() => worker.begin({ sheetId: lab.sheetId, update: Uint8Array.of(0), userId: null })?.() !== undefined, 'the worker to start')
+      const before = worker.commits()
+      // The event loop holds the write lock, so the worker waits at its first row while 59 more are handed over.
+      sqlite.exec('BEGIN IMMEDIATE')
+      const finishes = Array.from({ length: 60 }, (_, i) => worker.begin({ sheetId: lab.sheetId, update: Uint8Array.of(i, i), userId: i % 2 ? lab.userIds.editor : null })!)
+      await new Promise((r) => setTimeout(r, 50))
+      sqlite.exec('COMMIT')
+      const seqs = finishes.map((f) => f())
+      expect(seqs).toEqual(seqs.map((_, i) => seqs[0] + i))
+      seqs.forEach((seq, i) => expect(stored(lab, seq)).toEqual({ update: Buffer.from([i, i]), userId: i % 2 ? lab.userIds.editor : null }))
+      // the first row alone (or with a few), then the rest together
+      expect(worker.commits() - before).toBeLessThanOrEqual(2)
+    } finally {
+      await worker.stop()
+    }
+  })
+
+  it('keeps every row when more are in flight than it has slots, and when rows fill its area', async () => {
+    const { lab, store } = await open()
+    const first = (await firstBegin(store, { sheetId: lab.sheetId, update: Uint8Array.of(1), userId: null }))()
+    // 200 small rows, none waited for until the end: more than the 64 answers it holds at once
+    const small = Array.from({ length: 200 }, (_, i) => store.beginAppend!({ sheetId: lab.sheetId, update: Uint8Array.of(i % 256, 9), userId: lab.userIds.owner })!)
+    // five rows of 900 kB: the 2 MiB area is full after two, and starts again once they are answered
+    const big = (k: number) => new Uint8Array(900_000).fill(k)
+    const large = [1, 2, 3, 4, 5].map((k) => store.beginAppend!({ sheetId: lab.sheetId, update: big(k), userId: null })!)
+    const seqs = [...small, ...large].map((f) => f())
+    expect(seqs).toEqual(seqs.map((_, i) => first + 1 + i))
+    small.forEach((_, i) => expect(stored(lab, seqs[i])?.update).toEqual(Buffer.from([i % 256, 9])))
+    large.forEach((_, k) => expect(stored(lab, seqs[200 + k])?.update.equals(Buffer.from(big(k + 1)))).toBe(true))
+  })
+
+  it('answers a failed insert among others committed together with its own error, and stores the rest', async () => {
+    const { lab } = await open()
+    const sqlite = sqliteOf(lab)
+    const worker = startAppendWorker(sqlite, INSERT_SQL)
+    try {
+      await until(() => worker.begin({ sheetId: lab.sheetId, update: Uint8Array.of(0), userId: null })?.() !== undefined, 'the worker to start')
+      sqlite.exec('BEGIN IMMEDIATE')
+      const good1 = worker.begin({ sheetId: lab.sheetId, update: Uint8Array.of(1), userId: null })!
+      const bad = worker.begin({ sheetId: randomUUID(), update: Uint8Array.of(2), userId: null })!
+      const good2 = worker.begin({ sheetId: lab.sheetId, update: Uint8Array.of(3), userId: null })!
+      sqlite.exec('COMMIT')
+      const seq1 = good1()
+      expect(() => bad()).toThrow(/FOREIGN KEY constraint failed/)
+      const seq2 = good2()
+      expect(stored(lab, seq1)?.update).toEqual(Buffer.from([1]))
+      expect(stored(lab, seq2)?.update).toEqual(Buffer.from([3]))
+    } finally {
+      await worker.stop()
+    }
   })
 
   it('reports a failed insert with SQLite’s message, and the next row still goes through', async () => {
