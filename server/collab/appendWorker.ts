@@ -3,19 +3,26 @@
  *
  * Write before relay stays as it was: the registry hands the row over (`begin`) once the update has passed its checks,
  * applies it to the document, and before it relays anything waits for the commit (the function `begin` returns). Only
- * the order changes: the commit, about 60 µs on this machine, no longer adds to the apply but runs beside it. In
- * `npm run bench -- collab-latency` p99 went from 1.12–1.48× the bare relay (five runs) to 0.77–1.26× (median 0.97×),
- * and p50 from 0.99–1.28× to 0.95–1.02× (DEVELOPERS.md, benchmarks).
+ * the order changes: the commit, about 60 µs on this machine, no longer adds to the apply but runs beside it.
  *
- * The two threads meet on a SharedArrayBuffer: rows are handed over with Atomics.notify and waited for with
- * Atomics.wait, so the event loop never gives up its turn (the frames then leave in the same turn, as before). Several
- * edits often arrive in one turn, most of all in a burst: each is handed over as it is accepted, without waiting for
- * the one before, and whatever the worker finds waiting when it comes to them it commits in one transaction. So a
- * burst costs one commit and one wake-up of the worker, not one each (a row whose insert fails is answered with its
- * error alone; the others of its transaction are stored). The worker holds its own connection with the same
+ * The two threads meet on a SharedArrayBuffer: rows are handed over with Atomics.notify, so the event loop never gives
+ * up its turn (the frames then leave in the same turn, as before). Several edits often arrive in one turn, most of all
+ * in a burst: each is handed over as it is accepted, without waiting for the one before, and whatever the worker finds
+ * waiting when it comes to them it claims and commits in one transaction (a row whose insert fails is answered with
+ * its error alone; the others of its transaction are stored). The worker holds its own connection with the same
  * durability and inserts with the very statement the store uses, so the seq is still assigned under SQLite's write
- * lock, in the order the rows were handed over. If the worker cannot start, or does not answer within `ANSWER_MS`, it
- * is not used again and rows are appended on the event loop as before.
+ * lock, in the order the rows were handed over.
+ *
+ * Waiting for the answer, the event loop avoids the two wake-ups that made its slow waits (traced over a bench run,
+ * 45–120 waits per round passed 0.5 ms: some 40 % because the worker was not awake yet, the rest because the event
+ * loop itself slept through the commit and took that long to wake):
+ * - rows the worker has not claimed yet are taken back (one compare-and-swap on the claim word) and committed on the
+ *   event loop, after any rows the worker did claim;
+ * - for a commit the worker has begun, the event loop watches the answer word for up to `SPIN_MS` before it sleeps
+ *   in Atomics.wait.
+ * In `npm run bench -- collab-latency` this brought p99 within the target in consecutive runs (DEVELOPERS.md,
+ * benchmarks). If the worker cannot start, or does not answer within `ANSWER_MS`, it is not used again and rows are
+ * appended on the event loop as before.
  */
 import { Worker } from 'node:worker_threads'
 import type Database from 'better-sqlite3'
@@ -23,6 +30,11 @@ import type { PendingRow } from './store'
 
 /** Longer than the connections' busy timeout (5 s), so a commit that waits for a lock fails before we give up. */
 const ANSWER_MS = 10_000
+/**
+ * How long the event loop watches for a commit the worker has begun before it sleeps until the answer: the commit
+ * takes tens of µs, while waking the event loop from Atomics.wait often took hundreds on a virtual machine.
+ */
+const SPIN_MS = 1
 /** Room for the rows in flight: ids, the update (a writer's frame is at most 1 MiB), a length word each. */
 const DATA_BYTES = 2 * 1024 * 1024
 /** Rows handed over and not yet answered, at most; each has a slot for its place, seq, status and error message. */
@@ -36,6 +48,8 @@ const DONE = 1
 const STOP = 2
 const READY = 3
 const COMMITS = 4
+/** The last row claimed, by the worker (to commit it) or by the event loop (taking back rows the worker has not reached). */
+const CLAIM = 5
 const OFFSET = 8
 const SEQ = OFFSET + SLOTS
 const STATUS = SEQ + SLOTS
@@ -73,6 +87,13 @@ for (;;) {
   if (Atomics.load(ctrl, ${STOP})) break
   // every row handed over by now goes into one transaction; a row whose insert fails is answered with the error alone
   const upto = Atomics.load(ctrl, ${REQ})
+  if (upto === done) continue
+  // unless the event loop, tired of waiting for this thread to wake, took them back: it answers those itself
+  const claimed = Atomics.compareExchange(ctrl, ${CLAIM}, done, upto)
+  if (claimed !== done) {
+    done = claimed
+    continue
+  }
   const createdAt = Date.now()
   let open = false
   try {
@@ -131,10 +152,16 @@ export interface AppendWorker {
   begin(row: PendingRow): (() => number) | undefined
   /** Transactions the worker has committed (rows handed over while it commits go into its next one together). */
   commits(): number
+  /** Rows the event loop committed itself because the worker had not woken up to them when their answer was due. */
+  takenBack(): number
   stop(): Promise<void>
 }
 
-export function startAppendWorker(sqlite: Database.Database, insertSql: string, log?: (message: string) => void): AppendWorker {
+/**
+ * `appendHere` commits one row on the calling thread (the store's own append): used for rows the event loop takes back
+ * because the worker has not woken up to them yet.
+ */
+export function startAppendWorker(sqlite: Database.Database, insertSql: string, appendHere: (row: PendingRow) => number, log?: (message: string) => void): AppendWorker {
   const sab = new SharedArrayBuffer(DATA_START + DATA_BYTES)
   const ctrl = new Int32Array(sab, 0, CONTROL_WORDS)
   const messages = new Uint8Array(sab, CONTROL_BYTES, SLOTS * MESSAGE_BYTES)
@@ -164,9 +191,43 @@ export function startAppendWorker(sqlite: Database.Database, insertSql: string, 
   let tail = 0
   /** Rows handed over whose answer has not been read yet, by ticket: reading it frees the ticket's slot. */
   const unread = new Map<number, () => void>()
+  /** Rows handed over and not yet answered, by ticket, for taking back. */
+  const rows = new Map<number, PendingRow>()
+  let takenBack = 0
+
+  /** Waits until every row up to `ticket` is answered, taking back those the worker has not claimed yet. */
+  const answered = (ticket: number): void => {
+    if (Atomics.load(ctrl, DONE) >= ticket) return
+    const claimed = Atomics.load(ctrl, CLAIM)
+    if (claimed < ticket && Atomics.compareExchange(ctrl, CLAIM, claimed, handedOut) === claimed) {
+      // The worker is still asleep: committing here (tens of µs) beats waiting for it to wake (often hundreds).
+      // Rows it claimed before are committed first, so seqs still follow the order rows were handed over.
+      const upto = handedOut
+      finished(claimed)
+      for (let t = claimed + 1; t <= upto; t++) {
+        const slot = t % SLOTS
+        try {
+          ctrl[SEQ + slot] = appendHere(rows.get(t)!)
+          ctrl[STATUS + slot] = 0
+        } catch (err) {
+          const message = encoder.encode(String((err as Error).message ?? err).slice(0, 160))
+          messages.set(message, slot * MESSAGE_BYTES)
+          ctrl[SEQ + slot] = message.length
+          ctrl[STATUS + slot] = 1
+        }
+      }
+      takenBack += upto - claimed
+      Atomics.store(ctrl, DONE, upto)
+      return
+    }
+    finished(ticket)
+  }
 
   /** Waits until the worker has answered every row up to `ticket`. */
-  const answered = (ticket: number): void => {
+  const finished = (ticket: number): void => {
+    if (Atomics.load(ctrl, DONE) >= ticket) return
+    const until = performance.now() + SPIN_MS
+    while (Atomics.load(ctrl, DONE) < ticket && performance.now() < until);
     const deadline = Date.now() + ANSWER_MS
     for (;;) {
       const done = Atomics.load(ctrl, DONE)
@@ -181,6 +242,7 @@ export function startAppendWorker(sqlite: Database.Database, insertSql: string, 
 
   const answer = (ticket: number): number => {
     answered(ticket)
+    rows.delete(ticket)
     const slot = ticket % SLOTS
     if (ctrl[STATUS + slot] !== 0) throw new Error(text.decode(messages.slice(slot * MESSAGE_BYTES, slot * MESSAGE_BYTES + ctrl[SEQ + slot])))
     return ctrl[SEQ + slot]
@@ -222,6 +284,7 @@ export function startAppendWorker(sqlite: Database.Database, insertSql: string, 
       data.set(row.update, p)
       ctrl[OFFSET + (ticket % SLOTS)] = tail
       tail += length
+      rows.set(ticket, row)
       handedOut = ticket
       Atomics.store(ctrl, REQ, ticket)
       Atomics.notify(ctrl, REQ)
@@ -243,6 +306,7 @@ export function startAppendWorker(sqlite: Database.Database, insertSql: string, 
       }
     },
     commits: () => Atomics.load(ctrl, COMMITS),
+    takenBack: () => takenBack,
     stop() {
       usable = false
       stopping ??= (async () => {

@@ -118,7 +118,7 @@ export function createSqliteStore(db: Db, options: SqliteStoreOptions = {}): Syn
     .prepare()
   const deleteCovered = db.delete(sheetUpdates).where(and(eq(sheetUpdates.sheetId, sql.placeholder('sheetId')), lte(sheetUpdates.seq, sql.placeholder('upto')))).prepare()
 
-  const worker = options.appendWorker && !sqlite.memory ? startAppendWorker(sqlite, INSERT_SQL, options.log) : null
+  const worker = options.appendWorker && !sqlite.memory ? startAppendWorker(sqlite, INSERT_SQL, (row) => append(row, Date.now()), options.log) : null
   const deleteRow = sqlite.prepare<{ sheetId: string; seq: number }>('DELETE FROM sheet_updates WHERE sheet_id = @sheetId AND seq = @seq')
   const append = (row: PendingRow, createdAt: number) => insertRow.all({ sheetId: row.sheetId, update: toBuffer(row.update), userId: row.userId, createdAt })[0].seq
   const appendAll = sqlite.transaction((rows: readonly PendingRow[], createdAt: number) => rows.map((row) => append(row, createdAt)))

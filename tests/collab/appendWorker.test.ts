@@ -73,6 +73,12 @@ describe.skipIf(ON_POSTGRES)(sqliteOnly('collab: appends beside the apply, on a 
   })
 })
 
+/** The store's own append on the event loop, for rows taken back from the worker. */
+function appendHere(sqlite: ReturnType<typeof sqliteOf>): (row: PendingRow) => number {
+  const insert = sqlite.prepare(INSERT_SQL)
+  return (row) => (insert.all({ sheetId: row.sheetId, update: Buffer.from(row.update), userId: row.userId, createdAt: Date.now() })[0] as { seq: number }).seq
+}
+
 describe.skipIf(ON_POSTGRES)(sqliteOnly('collab: the append worker itself'), () => {
   let lab: Lab | null = null
   let store: SyncCollabStore | null = null
@@ -113,7 +119,7 @@ describe.skipIf(ON_POSTGRES)(sqliteOnly('collab: the append worker itself'), () 
   it('commits the rows handed over while it was busy in one transaction, each with its own seq and bytes', async () => {
     const { lab } = await open()
     const sqlite = sqliteOf(lab)
-    const worker = startAppendWorker(sqlite, INSERT_SQL)
+    const worker = startAppendWorker(sqlite, INSERT_SQL, appendHere(sqlite))
     try {
       await until(() => worker.begin({ sheetId: lab.sheetId, update: Uint8Array.of(0), userId: null })?.() !== undefined, 'the worker to start')
       const before = worker.commits()
@@ -127,6 +133,31 @@ describe.skipIf(ON_POSTGRES)(sqliteOnly('collab: the append worker itself'), () 
       seqs.forEach((seq, i) => expect(stored(lab, seq)).toEqual({ update: Buffer.from([i, i]), userId: i % 2 ? lab.userIds.editor : null }))
       // the first row alone (or with a few), then the rest together
       expect(worker.commits() - before).toBeLessThanOrEqual(2)
+    } finally {
+      await worker.stop()
+    }
+  })
+
+  it('commits on the event loop the rows a busy worker has not reached, after the one it holds, seqs in order', async () => {
+    const { lab } = await open()
+    const sqlite = sqliteOf(lab)
+    const worker = startAppendWorker(sqlite, INSERT_SQL, appendHere(sqlite))
+    try {
+      await until(() => worker.begin({ sheetId: lab.sheetId, update: Uint8Array.of(0), userId: null })?.() !== undefined, 'the worker to start')
+      const before = worker.takenBack()
+      // The worker claims the first row and waits for the write lock the event loop holds; nine more follow.
+      sqlite.exec('BEGIN IMMEDIATE')
+      const held = worker.begin({ sheetId: lab.sheetId, update: Uint8Array.of(1), userId: null })!
+      await new Promise((r) => setTimeout(r, 30))
+      const later = Array.from({ length: 9 }, (_, i) => worker.begin({ sheetId: lab.sheetId, update: Uint8Array.of(2 + i), userId: lab.userIds.editor })!)
+      sqlite.exec('COMMIT')
+      // Asking for the last answer takes the nine back at once: they are committed here, after the worker's row.
+      const last = later[8]()
+      expect(worker.takenBack() - before).toBe(9)
+      const seqs = [held(), ...later.map((f) => f())]
+      expect(seqs[9]).toBe(last)
+      expect(seqs).toEqual(seqs.map((_, i) => seqs[0] + i))
+      seqs.forEach((seq, i) => expect(stored(lab, seq)).toEqual({ update: Buffer.from([1 + i]), userId: i === 0 ? null : lab.userIds.editor }))
     } finally {
       await worker.stop()
     }
@@ -149,7 +180,7 @@ describe.skipIf(ON_POSTGRES)(sqliteOnly('collab: the append worker itself'), () 
   it('answers a failed insert among others committed together with its own error, and stores the rest', async () => {
     const { lab } = await open()
     const sqlite = sqliteOf(lab)
-    const worker = startAppendWorker(sqlite, INSERT_SQL)
+    const worker = startAppendWorker(sqlite, INSERT_SQL, appendHere(sqlite))
     try {
       await until(() => worker.begin({ sheetId: lab.sheetId, update: Uint8Array.of(0), userId: null })?.() !== undefined, 'the worker to start')
       sqlite.exec('BEGIN IMMEDIATE')
