@@ -1,9 +1,11 @@
 // SQLite's append worker (server/collab/appendWorker.ts): a writer's update is committed in a worker thread while the
 // event loop applies it, and still before anything is relayed. On a database file: every relayed edit is already
 // stored when a peer receives it and a reload gives the same text; rows come back with their bytes, authors and seqs
-// in order, also when two were handed over before either was waited for; a failed insert reports SQLite's own message
-// and the next row goes through; an update Yjs refuses leaves no row behind; a stopped worker hands the appends back
-// to the event loop.
+// in order, also when two were handed over before either was waited for; rows handed over while the worker is busy
+// are committed together; rows it has not reached are taken back by the event loop and committed after its own; more
+// rows in flight than it has slots, and rows that fill its area, all keep their bytes; a failed insert reports
+// SQLite's own message, alone or among others committed together, and the next row goes through; an update Yjs
+// refuses leaves no row behind; a stopped worker hands the appends back to the event loop.
 import { afterAll, afterEach, describe, expect, it } from 'vitest'
 import { mkdtempSync, rmSync } from 'node:fs'
 import os from 'node:os'
