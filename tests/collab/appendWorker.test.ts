@@ -133,36 +133,36 @@ describe.skipIf(ON_POSTGRES)(sqliteOnly('collab: the append worker itself'), () 
 
   it('commits the rows handed over while it was busy in one transaction, each with its own seq and bytes', async () => {
     await withWorker(async (worker, lab, sqlite) => {
-    const before = worker.commits()
-    // The event loop holds the write lock, so the worker waits at its first row while 59 more are handed over.
-    sqlite.exec('BEGIN IMMEDIATE')
-    const finishes = Array.from({ length: 60 }, (_, i) => worker.begin({ sheetId: lab.sheetId, update: Uint8Array.of(i, i), userId: i % 2 ? lab.userIds.editor : null })!)
-    await new Promise((r) => setTimeout(r, 50))
-    sqlite.exec('COMMIT')
-    const seqs = finishes.map((f) => f())
-    expect(seqs).toEqual(seqs.map((_, i) => seqs[0] + i))
-    seqs.forEach((seq, i) => expect(stored(lab, seq)).toEqual({ update: Buffer.from([i, i]), userId: i % 2 ? lab.userIds.editor : null }))
-    // the first row alone (or with a few), then the rest together
-    expect(worker.commits() - before).toBeLessThanOrEqual(2)
+      const before = worker.commits()
+      // The event loop holds the write lock, so the worker waits at its first row while 59 more are handed over.
+      sqlite.exec('BEGIN IMMEDIATE')
+      const finishes = Array.from({ length: 60 }, (_, i) => worker.begin({ sheetId: lab.sheetId, update: Uint8Array.of(i, i), userId: i % 2 ? lab.userIds.editor : null })!)
+      await new Promise((r) => setTimeout(r, 50))
+      sqlite.exec('COMMIT')
+      const seqs = finishes.map((f) => f())
+      expect(seqs).toEqual(seqs.map((_, i) => seqs[0] + i))
+      seqs.forEach((seq, i) => expect(stored(lab, seq)).toEqual({ update: Buffer.from([i, i]), userId: i % 2 ? lab.userIds.editor : null }))
+      // the first row alone (or with a few), then the rest together
+      expect(worker.commits() - before).toBeLessThanOrEqual(2)
     })
   })
 
   it('commits on the event loop the rows a busy worker has not reached, after the one it holds, seqs in order', async () => {
     await withWorker(async (worker, lab, sqlite) => {
-    const before = worker.takenBack()
-    // The worker claims the first row and waits for the write lock the event loop holds; nine more follow.
-    sqlite.exec('BEGIN IMMEDIATE')
-    const held = worker.begin({ sheetId: lab.sheetId, update: Uint8Array.of(1), userId: null })!
-    await new Promise((r) => setTimeout(r, 30))
-    const later = Array.from({ length: 9 }, (_, i) => worker.begin({ sheetId: lab.sheetId, update: Uint8Array.of(2 + i), userId: lab.userIds.editor })!)
-    sqlite.exec('COMMIT')
-    // Asking for the last answer takes the nine back at once: they are committed here, after the worker's row.
-    const last = later[8]()
-    expect(worker.takenBack() - before).toBe(9)
-    const seqs = [held(), ...later.map((f) => f())]
-    expect(seqs[9]).toBe(last)
-    expect(seqs).toEqual(seqs.map((_, i) => seqs[0] + i))
-    seqs.forEach((seq, i) => expect(stored(lab, seq)).toEqual({ update: Buffer.from([1 + i]), userId: i === 0 ? null : lab.userIds.editor }))
+      const before = worker.takenBack()
+      // The worker claims the first row and waits for the write lock the event loop holds; nine more follow.
+      sqlite.exec('BEGIN IMMEDIATE')
+      const held = worker.begin({ sheetId: lab.sheetId, update: Uint8Array.of(1), userId: null })!
+      await new Promise((r) => setTimeout(r, 30))
+      const later = Array.from({ length: 9 }, (_, i) => worker.begin({ sheetId: lab.sheetId, update: Uint8Array.of(2 + i), userId: lab.userIds.editor })!)
+      sqlite.exec('COMMIT')
+      // Asking for the last answer takes the nine back at once: they are committed here, after the worker's row.
+      const last = later[8]()
+      expect(worker.takenBack() - before).toBe(9)
+      const seqs = [held(), ...later.map((f) => f())]
+      expect(seqs[9]).toBe(last)
+      expect(seqs).toEqual(seqs.map((_, i) => seqs[0] + i))
+      seqs.forEach((seq, i) => expect(stored(lab, seq)).toEqual({ update: Buffer.from([1 + i]), userId: i === 0 ? null : lab.userIds.editor }))
     })
   })
 
@@ -182,16 +182,16 @@ describe.skipIf(ON_POSTGRES)(sqliteOnly('collab: the append worker itself'), () 
 
   it('answers a failed insert among others committed together with its own error, and stores the rest', async () => {
     await withWorker(async (worker, lab, sqlite) => {
-    sqlite.exec('BEGIN IMMEDIATE')
-    const good1 = worker.begin({ sheetId: lab.sheetId, update: Uint8Array.of(1), userId: null })!
-    const bad = worker.begin({ sheetId: randomUUID(), update: Uint8Array.of(2), userId: null })!
-    const good2 = worker.begin({ sheetId: lab.sheetId, update: Uint8Array.of(3), userId: null })!
-    sqlite.exec('COMMIT')
-    const seq1 = good1()
-    expect(() => bad()).toThrow(/FOREIGN KEY constraint failed/)
-    const seq2 = good2()
-    expect(stored(lab, seq1)?.update).toEqual(Buffer.from([1]))
-    expect(stored(lab, seq2)?.update).toEqual(Buffer.from([3]))
+      sqlite.exec('BEGIN IMMEDIATE')
+      const good1 = worker.begin({ sheetId: lab.sheetId, update: Uint8Array.of(1), userId: null })!
+      const bad = worker.begin({ sheetId: randomUUID(), update: Uint8Array.of(2), userId: null })!
+      const good2 = worker.begin({ sheetId: lab.sheetId, update: Uint8Array.of(3), userId: null })!
+      sqlite.exec('COMMIT')
+      const seq1 = good1()
+      expect(() => bad()).toThrow(/FOREIGN KEY constraint failed/)
+      const seq2 = good2()
+      expect(stored(lab, seq1)?.update).toEqual(Buffer.from([1]))
+      expect(stored(lab, seq2)?.update).toEqual(Buffer.from([3]))
     })
   })
 
