@@ -134,11 +134,16 @@ describe.skipIf(ON_POSTGRES)(sqliteOnly('collab: the append worker itself'), () 
   it('commits the rows handed over while it was busy in one transaction, each with its own seq and bytes', async () => {
     await withWorker(async (worker, lab, sqlite) => {
       const before = worker.commits()
+      const taken = worker.takenBack()
+      const rows = rowCount(lab)
       // The event loop holds the write lock, so the worker waits at its first row while 59 more are handed over.
       sqlite.exec('BEGIN IMMEDIATE')
       const finishes = Array.from({ length: 60 }, (_, i) => worker.begin({ sheetId: lab.sheetId, update: Uint8Array.of(i, i), userId: i % 2 ? lab.userIds.editor : null })!)
       await new Promise((r) => setTimeout(r, 50))
       sqlite.exec('COMMIT')
+      // left to the worker (no answer asked for, so nothing is taken back)
+      await until(() => rowCount(lab) === rows + 60, 'the worker to store all 60')
+      expect(worker.takenBack()).toBe(taken)
       const seqs = finishes.map((f) => f())
       expect(seqs).toEqual(seqs.map((_, i) => seqs[0] + i))
       seqs.forEach((seq, i) => expect(stored(lab, seq)).toEqual({ update: Buffer.from([i, i]), userId: i % 2 ? lab.userIds.editor : null }))
