@@ -1,5 +1,5 @@
 // The core's purity rule as lint: shared/ may not import Vue, Express, ws, Drizzle or node:*, nor touch DOM globals;
-// the same lines are fine in the client and the server.
+// the same lines are fine in the client and the server. Server, test and bench code may not leave a promise unawaited.
 import { describe, expect, it } from 'vitest'
 import { ESLint } from 'eslint'
 import { join } from 'node:path'
@@ -26,7 +26,16 @@ describe('lint of shared/', () => {
   }, 60_000)
 
   it('allows the same imports outside shared/, and pure code inside it', async () => {
-    expect(await problems('server/probe.ts', "import express from 'express'\nexport const e = express\n")).toEqual([])
+    expect(await problems('server/index.ts', "import express from 'express'\nexport const e = express\n")).toEqual([])
     expect(await problems('shared/engine/probe.ts', "import { z } from 'zod'\nexport const s = z.string()\n")).toEqual([])
+  }, 60_000)
+})
+
+describe('lint of server, tests and bench code', () => {
+  // A file of the tree, so the type-aware rule has its project (the text linted is the one given here).
+  it('refuses a promise nobody awaits, and accepts it awaited or marked with void', async () => {
+    const floating = "export async function later(): Promise<void> {}\nlater()\n"
+    expect((await problems('tests/collab/redisBus.test.ts', floating)).join('\n')).toMatch(/no-floating-promises: Promises must be awaited/)
+    expect(await problems('server/index.ts', 'export async function later(): Promise<void> {}\nvoid later()\nawait later()\n')).toEqual([])
   }, 60_000)
 })
