@@ -193,6 +193,8 @@ export function startAppendWorker(sqlite: Database.Database, insertSql: string, 
   const unread = new Map<number, () => void>()
   /** Rows handed over and not yet answered, by ticket, for taking back. */
   const rows = new Map<number, PendingRow>()
+  /** Answers of rows taken back (their seq, or why the insert failed), by ticket, until read. */
+  const takenAnswers = new Map<number, number | Error>()
   let takenBack = 0
 
   /** Waits until every row up to `ticket` is answered, taking back those the worker has not claimed yet. */
@@ -205,15 +207,10 @@ export function startAppendWorker(sqlite: Database.Database, insertSql: string, 
       const upto = handedOut
       finished(claimed)
       for (let t = claimed + 1; t <= upto; t++) {
-        const slot = t % SLOTS
         try {
-          ctrl[SEQ + slot] = appendHere(rows.get(t)!)
-          ctrl[STATUS + slot] = 0
+          takenAnswers.set(t, appendHere(rows.get(t)!))
         } catch (err) {
-          const message = encoder.encode(String((err as Error).message ?? err).slice(0, 160))
-          messages.set(message, slot * MESSAGE_BYTES)
-          ctrl[SEQ + slot] = message.length
-          ctrl[STATUS + slot] = 1
+          takenAnswers.set(t, err as Error)
         }
       }
       takenBack += upto - claimed
@@ -243,6 +240,12 @@ export function startAppendWorker(sqlite: Database.Database, insertSql: string, 
   const answer = (ticket: number): number => {
     answered(ticket)
     rows.delete(ticket)
+    const taken = takenAnswers.get(ticket)
+    if (taken !== undefined) {
+      takenAnswers.delete(ticket)
+      if (taken instanceof Error) throw taken
+      return taken
+    }
     const slot = ticket % SLOTS
     if (ctrl[STATUS + slot] !== 0) throw new Error(text.decode(messages.slice(slot * MESSAGE_BYTES, slot * MESSAGE_BYTES + ctrl[SEQ + slot])))
     return ctrl[SEQ + slot]
