@@ -113,9 +113,12 @@ describe('collab: update log', () => {
     await t.start({ idleCompactMs: 40, evictAfterMs: 80, sweepMs: 10 })
     const a = t.connect('editor')
     await a.synced()
+    const compactions = () => t.server.collab.stats().counters.compactions
     formulaText(a.doc).insert(0, '2*')
-    await until(async () => await storedRows(t.lab) === 1, 'the update row')
-    await until(async () => await storedRows(t.lab) === 0, 'the idle compaction')
+    // The row may be compacted between two polls (40 ms idle): wait on the compaction count, then the emptied log.
+    await until(() => compactions() === 1, 'the idle compaction')
+    await until(async () => await storedRows(t.lab) === 0, 'the log emptied by the compaction')
+    expect(formulaText(await loadDocument(t.lab.handle.db, t.lab.sheetId)).toString()).toBe('2*Eg*2')
     expect(t.server.collab.stats().documents).toBe(1)
     a.destroy()
     t.forget(a)
