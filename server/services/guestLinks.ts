@@ -9,7 +9,7 @@ import { guestLinks } from '../db/tables'
 import { SNAPSHOT_PAGE_ROUTES, type GuestLink, type GuestLinkCreated, type GuestSnapshot } from '../../shared/schema/api'
 import { gone, notFound } from '../errors'
 import { hashToken, newId, newToken } from './tokens'
-import { snapshotById, userName, type SnapshotRow } from './snapshots'
+import { snapshotById, snapshotContent, userName, type SnapshotRow } from './snapshots'
 
 export type GuestLinkRow = typeof guestLinks.$inferSelect
 const DAY_MS = 24 * 3600 * 1000
@@ -77,9 +77,9 @@ export async function openGuestLink(db: Db, token: string, { countView = true }:
 
 /** What a guest sees: that snapshot's sheet file and stored results, its author's name, and nothing else of the lab. */
 export async function guestSnapshot(db: Db, link: GuestLinkRow, snapshot: SnapshotRow): Promise<GuestSnapshot> {
-  const file = JSON.parse(snapshot.file) as GuestSnapshot['file']
+  const { file, results } = snapshotContent(snapshot)
   return {
     hash: snapshot.hash, title: file.title, message: snapshot.message, authorName: await userName(db, snapshot.createdBy), createdAt: snapshot.createdAt,
-    engineVersion: snapshot.engineVersion, expiresAt: link.expiresAt, note: link.note, file, results: JSON.parse(snapshot.results) as GuestSnapshot['results'],
+    engineVersion: snapshot.engineVersion, expiresAt: link.expiresAt, note: link.note, file, results,
   }
 }

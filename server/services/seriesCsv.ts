@@ -6,15 +6,16 @@ import type { EvaluationResult } from '../../shared/schema/result'
 import type { SheetCell } from '../../shared/schema/sheet'
 import { cellCsvColumns, CsvError, csvFileName, toCsv } from '../../shared/export/csv'
 import { HttpError, notFound } from '../errors'
-import type { SnapshotRow } from './snapshots'
+import { snapshotContent, type SnapshotRow } from './snapshots'
 
 /** The CSV text and download name of a snapshot cell's series (404 no such cell, 422 no series). */
-export function snapshotCellCsv(row: Pick<SnapshotRow, 'file' | 'results'>, cellId: string, extra: readonly string[] = []): { fileName: string; csv: string } {
-  const file = JSON.parse(row.file) as { title: string; cells: SheetCell[] }
-  const cell = file.cells.find((c) => c.id === cellId)
+export function snapshotCellCsv(row: Pick<SnapshotRow, 'file' | 'results' | 'docState'>, cellId: string, extra: readonly string[] = []): { fileName: string; csv: string } {
+  const { file, results } = snapshotContent(row)
+  const cells = file.cells as SheetCell[]
+  const cell = cells.find((c) => c.id === cellId)
   if (!cell) throw notFound('No cell with that id in this snapshot.')
   try {
-    const csv = toCsv(cellCsvColumns(JSON.parse(row.results) as EvaluationResult, file.cells, cellId, extra))
+    const csv = toCsv(cellCsvColumns(results as EvaluationResult, cells, cellId, extra))
     return { fileName: csvFileName(file.title, cell.name), csv }
   } catch (err) {
     if (err instanceof CsvError) throw new HttpError(422, err.message)

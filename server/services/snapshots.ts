@@ -10,7 +10,7 @@ import type { AppDeps } from '../deps'
 import type { AppConfig } from '../config'
 import { isPostgres, type Db } from '../db/client'
 import { guestLinks, reviews, snapshots, users } from '../db/tables'
-import { docToSheetFile, newCellId } from '../../shared/doc/sheetDoc'
+import { cellsOf, docToSheetFile, newCellId } from '../../shared/doc/sheetDoc'
 import { canonicalJson, SNAPSHOT_MEMBER } from '../../shared/snapshot/canonical'
 import { parseSheetFile, withCellIds, type SheetFile } from '../../shared/schema/sheet'
 import { shortHash, type SnapshotDetail, type SnapshotSummary } from '../../shared/schema/api'
@@ -220,8 +220,56 @@ export async function snapshotSummary(db: Db, row: SnapshotRow): Promise<Snapsho
   }
 }
 
+/**
+ * A snapshot's sheet file and results as people see them: each spectrum's columns in the order the sheet showed them
+ * when it was frozen. The stored file sorts every object's keys (its hash needs one text), which would list a
+ * spectrum's columns alphabetically (R, T, wavelength) on the page, in its CSV and in a restored sheet; the frozen
+ * document (`docState`) keeps the order they were imported in. The stored texts are not changed, so the exported
+ * file and its hash stay as they were.
+ */
+export function snapshotContent(row: Pick<SnapshotRow, 'file' | 'results' | 'docState'>): { file: SnapshotDetail['file']; results: SnapshotDetail['results'] } {
+  const file = JSON.parse(row.file) as SnapshotDetail['file']
+  const results = JSON.parse(row.results) as SnapshotDetail['results']
+  const order = spectrumColumnOrder(row.docState)
+  if (order.size === 0) return { file, results }
+  for (const cell of file.cells as { id?: string; kind: string; columns?: Record<string, unknown> }[])
+    if (cell.kind === 'spectrum' && cell.id && cell.columns) cell.columns = inOrder(cell.columns, order.get(cell.id))
+  for (const cell of results.cells) {
+    const value = cell.value as { columns?: Record<string, unknown> } | null
+    if (cell.id && order.has(cell.id) && value && typeof value === 'object' && value.columns && typeof value.columns === 'object')
+      value.columns = inOrder(value.columns, order.get(cell.id))
+  }
+  return { file, results }
+}
+
+/** Each spectrum cell's column names, by cell id, in the frozen document's order. */
+function spectrumColumnOrder(docState: Uint8Array): Map<string, string[]> {
+  const doc = new Y.Doc()
+  const order = new Map<string, string[]>()
+  try {
+    Y.applyUpdate(doc, docState)
+    for (const map of cellsOf(doc).toArray()) {
+      if (!(map instanceof Y.Map) || map.get('kind') !== 'spectrum') continue
+      const id = map.get('id')
+      const columns = map.get('columns')
+      if (typeof id === 'string' && columns && typeof columns === 'object') order.set(id, Object.keys(columns))
+    }
+  } finally {
+    doc.destroy()
+  }
+  return order
+}
+
+/** `record` with the keys named in `names` first, in that order, then any others as they were. */
+function inOrder<T>(record: Record<string, T>, names: readonly string[] = []): Record<string, T> {
+  const out: Record<string, T> = {}
+  for (const name of names) if (Object.hasOwn(record, name)) out[name] = record[name]
+  for (const [name, value] of Object.entries(record)) if (!Object.hasOwn(out, name)) out[name] = value
+  return out
+}
+
 export async function snapshotDetail(db: Db, row: SnapshotRow): Promise<SnapshotDetail> {
-  return { ...(await snapshotSummary(db, row)), file: JSON.parse(row.file) as SnapshotDetail['file'], results: JSON.parse(row.results) as SnapshotDetail['results'] }
+  return { ...(await snapshotSummary(db, row)), ...snapshotContent(row) }
 }
 
 /** A sheet's snapshots, newest first. */
@@ -261,7 +309,7 @@ export async function deleteSnapshot(db: Db, row: SnapshotRow): Promise<void> {
 
 /** A new sheet in the snapshot's lab made from its file (cells keep their ids). */
 export async function restoreAsNewSheet(deps: Pick<AppDeps, 'db'>, row: SnapshotRow, userId: string, title?: string): Promise<SheetRow> {
-  const parsed = parseSheetFile(JSON.parse(row.file))
+  const parsed = parseSheetFile(snapshotContent(row).file)
   if (!parsed.ok) throw new HttpError(500, 'The snapshot file could not be read back.')
   const file = withCellIds(parsed.value, newCellId)
   return createSheet(deps, row.labId, userId, { ...file, title: title ?? `${file.title} (from ${shortHash(row.hash)})`.slice(0, 200) })

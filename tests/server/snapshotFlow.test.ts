@@ -17,6 +17,7 @@ import { datasets, snapshots } from '../../server/db/tables'
 import { SESSION_COOKIE } from '../../server/services/sessions'
 import { commentSchema, compareReply, guestSnapshotReply, reviewQueueReply, reviewSchema } from '../../shared/schema/api'
 import type { SheetFile } from '../../shared/schema/sheet'
+import { canonicalJson } from '../../shared/snapshot/canonical'
 
 afterAll(() => closeSharedEvaluator())
 
@@ -141,6 +142,49 @@ describe('GET /api/snapshots/:snapshotId/cells/:cellId/csv', () => {
     const none = await call(t, lab.users.viewer.cookie).get(`/api/snapshots/${id}/cells/n-1/csv`)
     expect(none.status).toBe(422)
     expect((await call(t, lab.users.viewer.cookie).get(`/api/snapshots/${id}/cells/no-such-cell/csv`)).status).toBe(404)
+    await t.close()
+  })
+})
+
+describe('a spectrum’s columns in a snapshot', () => {
+  it('keep the order the sheet showed (not the stored file’s sorted one) on the page, for a guest, in both CSVs and in a restored sheet; the export stays canonical', async () => {
+    const t = await makeTestApp()
+    const lab = await seedLab(t)
+    const spectrum = {
+      id: 's-film', kind: 'spectrum' as const, name: 'filmB', source: 'film-B_TR.csv',
+      columns: {
+        wavelength: { unit: 'nm', quantity: 'wavelength', values: [700, 800, 900] },
+        T: { unit: '%', quantity: 'T', values: [12.5, 40.25, 61] },
+        R: { unit: '%', quantity: 'R', values: [22, 21.5, 21] },
+      },
+    }
+    const sheetId = (await createSheet(t.deps, lab.labId, lab.users.editor.id, { ...FILE, cells: [...FILE.cells, spectrum] })).id
+    const live = await call(t, lab.users.viewer.cookie).get(`/api/sheets/${sheetId}/cells/s-film/csv`)
+    expect(live.text.split('\r\n')[0]).toBe('filmB.wavelength (nm),filmB.T (%),filmB.R (%)')
+    const snap = (await call(t, lab.users.editor.cookie).post(`/api/sheets/${sheetId}/snapshots`, { message: 'order' })).body.id as string
+    const order = ['wavelength', 'T', 'R']
+    const columnsOf = (body: { file: { cells: unknown[] }; results: { cells: { id?: string; value: unknown }[] } }) => [
+      Object.keys((body.file.cells.find((c) => (c as { id: string }).id === 's-film') as { columns: object }).columns),
+      Object.keys((body.results.cells.find((c) => c.id === 's-film')!.value as { columns: object }).columns),
+    ]
+    // the stored text sorts keys for its hash (R, T, wavelength); what people see follows the sheet
+    const row = (await snapshotById(t.db, snap))!
+    expect(Object.keys((JSON.parse(row.file).cells as { id: string; columns?: object }[]).find((c) => c.id === 's-film')!.columns!)).toEqual(['R', 'T', 'wavelength'])
+    const detail = await call(t, lab.users.viewer.cookie).get(`/api/snapshots/${snap}`)
+    expect(columnsOf(detail.body)).toEqual([order, order])
+    const csv = await call(t, lab.users.viewer.cookie).get(`/api/snapshots/${snap}/cells/s-film/csv`)
+    expect(csv.text).toBe(live.text)
+    const token = (await call(t, lab.users.owner.cookie).post(`/api/snapshots/${snap}/guest-links`, { expiresInDays: 1 })).body.url.split('/').pop()
+    expect(columnsOf((await call(t).get(`/api/guest/${token}`)).body)).toEqual([order, order])
+    expect((await call(t).get(`/api/guest/${token}/cells/s-film/csv`)).text).toBe(live.text)
+    const restored = await call(t, lab.users.editor.cookie).post(`/api/snapshots/${snap}/restore`, { into: 'new' })
+    const back = await loadSheetFile(t.db, restored.body.id)
+    expect(Object.keys((back.cells.find((c) => c.kind === 'spectrum') as { columns: object }).columns)).toEqual(order)
+    // the exported file is the stored canonical text plus its snapshot member: its hash still checks
+    const exported = await call(t, lab.users.viewer.cookie).get(`/api/snapshots/${snap}/file`)
+    const { snapshot: member, ...file } = JSON.parse(exported.text) as { snapshot: { hash: string } }
+    expect(canonicalJson(file)).toBe(row.file)
+    expect(member.hash).toBe(row.hash)
     await t.close()
   })
 })
