@@ -230,10 +230,11 @@ export async function snapshotSummary(db: Db, row: SnapshotRow): Promise<Snapsho
 export function snapshotContent(row: Pick<SnapshotRow, 'file' | 'results' | 'docState'>): { file: SnapshotDetail['file']; results: SnapshotDetail['results'] } {
   const file = JSON.parse(row.file) as SnapshotDetail['file']
   const results = JSON.parse(row.results) as SnapshotDetail['results']
+  const spectra = (file.cells as { id?: string; kind: string; columns?: Record<string, unknown> }[]).filter((c) => c.kind === 'spectrum' && c.id && c.columns)
+  // a sheet without a spectrum has nothing to reorder: its frozen document is not decoded
+  if (spectra.length === 0) return { file, results }
   const order = spectrumColumnOrder(row.docState)
-  if (order.size === 0) return { file, results }
-  for (const cell of file.cells as { id?: string; kind: string; columns?: Record<string, unknown> }[])
-    if (cell.kind === 'spectrum' && cell.id && cell.columns) cell.columns = inOrder(cell.columns, order.get(cell.id))
+  for (const cell of spectra) cell.columns = inOrder(cell.columns!, order.get(cell.id!))
   for (const cell of results.cells) {
     const value = cell.value as { columns?: Record<string, unknown> } | null
     if (cell.id && order.has(cell.id) && value && typeof value === 'object' && value.columns && typeof value.columns === 'object')
